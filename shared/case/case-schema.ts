@@ -1,0 +1,154 @@
+import { z } from 'zod';
+
+/** Version of the case parameter shape; bump when a stored case would need migrating. */
+export const CASE_SCHEMA_VERSION = 1;
+
+/** Standard gravity, m/s^2 (the default for `gravity`). */
+export const STANDARD_GRAVITY = 9.80665;
+
+/** Limits that keep a run bounded in time and memory; exported so the UI can show them. */
+export const CASE_LIMITS = {
+  maxLength: 100,
+  maxMass: 1e6,
+  maxAmplitude: 10,
+  maxFrequency: 1e5,
+  maxDuration: 1e5,
+  maxDrivePeriods: 2e6,
+  maxOutputPoints: 200_000,
+  maxHarmonics: 16,
+  maxHarmonicOrder: 64,
+} as const;
+
+const finite = () => z.number().finite();
+const positive = (max: number, unit: string) => finite().gt(0).lte(max).describe(unit);
+const nonNegative = (max: number, unit: string) => finite().gte(0).lte(max).describe(unit);
+
+const pointMassSchema = z.object({
+  kind: z.literal('point-mass'),
+  length: positive(CASE_LIMITS.maxLength, 'm: pivot to mass'),
+  mass: positive(CASE_LIMITS.maxMass, 'kg'),
+});
+
+const rodBobSchema = z.object({
+  kind: z.literal('rod-bob'),
+  rodLength: positive(CASE_LIMITS.maxLength, 'm: uniform rod hinged at one end'),
+  rodMass: nonNegative(CASE_LIMITS.maxMass, 'kg'),
+  bobMass: nonNegative(CASE_LIMITS.maxMass, 'kg: solid sphere'),
+  bobRadius: nonNegative(CASE_LIMITS.maxLength, 'm'),
+  bobDistance: nonNegative(CASE_LIMITS.maxLength, 'm: pivot to bob centre'),
+});
+
+const measuredSwingSchema = z.object({
+  kind: z.literal('measured-swing'),
+  swingFrequency: positive(1000, 'Hz: small free swing hanging down'),
+  mass: positive(CASE_LIMITS.maxMass, 'kg'),
+});
+
+export const bodySchema = z.discriminatedUnion('kind', [pointMassSchema, rodBobSchema, measuredSwingSchema]);
+
+const harmonicTermSchema = z.object({
+  order: z.number().int().gte(1).lte(CASE_LIMITS.maxHarmonicOrder).describe('multiple of the drive frequency'),
+  relAmplitude: finite().gte(-100).lte(100).describe('1: relative to drive.amplitude'),
+  phase: finite().gte(-100).lte(100).describe('rad'),
+});
+
+export const waveformSchema = z.discriminatedUnion('kind', [
+  z.object({ kind: z.literal('sine') }),
+  z.object({
+    kind: z.literal('crank-slider'),
+    connectingRod: positive(CASE_LIMITS.maxLength, 'm: connecting rod length, longer than the crank radius'),
+  }),
+  z.object({
+    kind: z.literal('harmonics'),
+    terms: z.array(harmonicTermSchema).min(1).max(CASE_LIMITS.maxHarmonics),
+  }),
+]);
+
+export const driveSchema = z.object({
+  direction: finite().gte(-Math.PI).lte(Math.PI).describe('rad: drive line from the vertical (0 vertical, pi/2 horizontal)'),
+  amplitude: nonNegative(CASE_LIMITS.maxAmplitude, 'm: sine amplitude, crank radius, or harmonics scale'),
+  frequency: positive(CASE_LIMITS.maxFrequency, 'Hz'),
+  waveform: waveformSchema,
+  ramp: z
+    .object({
+      fromFrequency: nonNegative(CASE_LIMITS.maxFrequency, 'Hz: frequency at t = 0'),
+      duration: positive(CASE_LIMITS.maxDuration, 's: linear rise to drive.frequency'),
+    })
+    .optional(),
+});
+
+export const dampingSchema = z.object({
+  viscousRatio: nonNegative(10, '1: damping ratio zeta against omega0 = sqrt(g/L)'),
+  quadratic: nonNegative(1e4, '1/rad: coefficient of -c*rate*|rate|'),
+  friction: nonNegative(1e6, 'rad/s^2: pivot friction torque divided by the moment of inertia'),
+  frictionSmoothing: positive(1e3, 'rad/s: rate scale of the tanh smoothing of friction'),
+});
+
+export const startSchema = z.object({
+  angle: finite().gte(-1000).lte(1000).describe('rad from the upright, clockwise positive'),
+  rate: finite().gte(-1e5).lte(1e5).describe('rad/s'),
+});
+
+export const runSettingsSchema = z.object({
+  duration: positive(CASE_LIMITS.maxDuration, 's: simulated time'),
+  rtol: finite().gte(1e-14).lte(1e-2).describe('1: relative tolerance of the integrator'),
+  atol: finite().gte(1e-16).lte(1e-2).describe('rad, rad/s: absolute tolerance of the integrator'),
+  outputPoints: z.number().int().gte(2).lte(CASE_LIMITS.maxOutputPoints).describe('count: most points kept per series'),
+  strobePhase: finite().gte(0).lte(2 * Math.PI).describe('rad: drive phase at which the stroboscopic section samples'),
+  transientFraction: finite().gte(0).lte(0.95).describe('1: leading share of the run ignored when classifying'),
+});
+
+export const caseParamsSchema = z
+  .object({
+    schemaVersion: z.literal(CASE_SCHEMA_VERSION),
+    body: bodySchema,
+    drive: driveSchema,
+    damping: dampingSchema,
+    start: startSchema,
+    gravity: positive(1000, 'm/s^2').default(STANDARD_GRAVITY),
+    run: runSettingsSchema,
+  })
+  .superRefine((c, ctx) => {
+    const { body, drive, run } = c;
+    if (body.kind === 'rod-bob') {
+      const mass = body.rodMass + body.bobMass;
+      if (mass <= 0) {
+        ctx.addIssue({ code: 'custom', path: ['body', 'bobMass'], message: 'rod and bob masses are both zero: the body has no mass' });
+      } else if (body.rodMass * body.rodLength / 2 + body.bobMass * body.bobDistance <= 0) {
+        ctx.addIssue({ code: 'custom', path: ['body', 'bobDistance'], message: 'centre of mass sits on the pivot: no pendulum' });
+      }
+    }
+    if (drive.waveform.kind === 'crank-slider' && drive.waveform.connectingRod <= drive.amplitude) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['drive', 'waveform', 'connectingRod'],
+        message: `connecting rod (${drive.waveform.connectingRod} m) must be longer than the crank radius (${drive.amplitude} m)`,
+      });
+    }
+    if (drive.ramp && drive.ramp.fromFrequency > drive.frequency) {
+      ctx.addIssue({ code: 'custom', path: ['drive', 'ramp', 'fromFrequency'], message: 'ramp must rise: start frequency above the drive frequency' });
+    }
+    if (run.duration * drive.frequency > CASE_LIMITS.maxDrivePeriods) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['run', 'duration'],
+        message: `run spans ${Math.round(run.duration * drive.frequency)} drive periods; at most ${CASE_LIMITS.maxDrivePeriods} are allowed`,
+      });
+    }
+    if (body.kind === 'measured-swing') {
+      const omega0 = 2 * Math.PI * body.swingFrequency;
+      if (c.gravity / (omega0 * omega0) > CASE_LIMITS.maxLength) {
+        ctx.addIssue({ code: 'custom', path: ['body', 'swingFrequency'], message: 'swing this slow means an equivalent length above 100 m' });
+      }
+    }
+  });
+
+export type CaseParams = z.infer<typeof caseParamsSchema>;
+/** Input shape before defaults are applied (gravity may be absent). */
+export type CaseParamsInput = z.input<typeof caseParamsSchema>;
+export type Body = CaseParams['body'];
+export type Drive = CaseParams['drive'];
+export type Waveform = Drive['waveform'];
+export type HarmonicTerm = Extract<Waveform, { kind: 'harmonics' }>['terms'][number];
+export type Damping = CaseParams['damping'];
+export type RunSettings = CaseParams['run'];
