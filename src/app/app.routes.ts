@@ -1,0 +1,41 @@
+import { inject } from '@angular/core';
+import { Routes } from '@angular/router';
+
+import { authGuard } from './core/auth-guard';
+import { Session } from './core/session';
+import { Shell } from './core/shell';
+
+export const routes: Routes = [
+  {
+    path: 'sign-in',
+    title: 'Sign in · Quiverpoint',
+    loadComponent: () => import('./features/sign-in/sign-in-page').then((m) => m.SignInPage),
+  },
+  {
+    path: '',
+    component: Shell,
+    canActivate: [authGuard],
+    children: [
+      {
+        path: '',
+        pathMatch: 'full',
+        title: 'Home · Quiverpoint',
+        loadComponent: () => import('./features/home/home-page').then((m) => m.HomePage),
+      },
+      {
+        path: 'labs',
+        pathMatch: 'full',
+        redirectTo: () => {
+          const labId = inject(Session).currentLab()?.id;
+          return labId ? `/labs/${labId}` : '/';
+        },
+      },
+      {
+        path: 'labs/:labId',
+        title: 'Lab · Quiverpoint',
+        loadComponent: () => import('./features/labs/lab-page').then((m) => m.LabPage),
+      },
+    ],
+  },
+  { path: '**', redirectTo: '' },
+];
