@@ -1,0 +1,56 @@
+import type { Body } from '../case/case-schema';
+
+export interface BodyProperties {
+  /** kg */
+  mass: number;
+  /** m: pivot to centre of mass */
+  comDistance: number;
+  /** kg m^2: about the pivot */
+  inertia: number;
+  /** m: L = I / (m d), the length of the point pendulum with the same swing */
+  equivalentLength: number;
+  /** rad/s: sqrt(g / L), small free swing hanging down */
+  naturalFrequency: number;
+  /** Hz */
+  swingFrequencyHz: number;
+}
+
+/**
+ * Mass, centre-of-mass distance, moment of inertia about the pivot and equivalent length of a rigid body.
+ *
+ * Method (rigid/physical pendulum, any mechanics handbook): L = I / (m d).
+ * - point mass: d = L = length, I = m L^2.
+ * - rod-bob: uniform rod hinged at one end, I = m_r l^2 / 3 with its centre at l/2, plus a solid sphere of radius R
+ *   centred at D: I = (2/5) m_b R^2 + m_b D^2 (parallel axes).
+ * - measured-swing: L = g / (2 pi f)^2 from the small free swing frequency f; modelled as a point mass at L.
+ */
+export function bodyProperties(body: Body, g: number): BodyProperties {
+  let mass: number;
+  let comDistance: number;
+  let inertia: number;
+  switch (body.kind) {
+    case 'point-mass':
+      mass = body.mass;
+      comDistance = body.length;
+      inertia = body.mass * body.length * body.length;
+      break;
+    case 'rod-bob':
+      mass = body.rodMass + body.bobMass;
+      comDistance = (body.rodMass * body.rodLength * 0.5 + body.bobMass * body.bobDistance) / mass;
+      inertia =
+        (body.rodMass * body.rodLength * body.rodLength) / 3 +
+        0.4 * body.bobMass * body.bobRadius * body.bobRadius +
+        body.bobMass * body.bobDistance * body.bobDistance;
+      break;
+    case 'measured-swing': {
+      const w = 2 * Math.PI * body.swingFrequency;
+      mass = body.mass;
+      comDistance = g / (w * w);
+      inertia = mass * comDistance * comDistance;
+      break;
+    }
+  }
+  const equivalentLength = inertia / (mass * comDistance);
+  const naturalFrequency = Math.sqrt(g / equivalentLength);
+  return { mass, comDistance, inertia, equivalentLength, naturalFrequency, swingFrequencyHz: naturalFrequency / (2 * Math.PI) };
+}
