@@ -118,13 +118,13 @@ const stepOut: [number, number, number, number] = [0, 0, 0, 0];
 
 /**
  * One Magnus step: Omega = h/2 (A1 + A2) + sqrt(3)/12 h^2 [A2, A1], returns exp(Omega) (shared buffer).
- * For A = [[0, 1], [p, c]]: [A2, A1] = A2 A1 - A1 A2 = [[p1 - p2, c1 - c2], [p2 c1 - p1 c2, p2 - p1]].
+ * For A = [[0, 1], [p, c]]: [A2, A1] = A2 A1 - A1 A2 = [[p1 - p2, c1 - c2], [p1 c2 - p2 c1, p2 - p1]].
  */
 function magnusStep(p1: number, c1: number, p2: number, c2: number, h: number): Mat2 {
   const w = COMMUTATOR_WEIGHT * h * h;
   const o11 = w * (p1 - p2);
   const o12 = h + w * (c1 - c2);
-  const o21 = 0.5 * h * (p1 + p2) + w * (p2 * c1 - p1 * c2);
+  const o21 = 0.5 * h * (p1 + p2) + w * (p1 * c2 - p2 * c1);
   const o22 = 0.5 * h * (c1 + c2) + w * (p2 - p1);
   return expm2(o11, o12, o21, o22);
 }
