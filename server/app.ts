@@ -1,0 +1,125 @@
+/**
+ * The Express application, separate from listen() so tests drive it with supertest against the real database.
+ * Order: security headers, compression, logs, JSON body, the /api route table, the /api 404, the built client
+ * (production), and the JSON error middleware last.
+ */
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
+import compression from 'compression';
+import express, { type Express, type RequestHandler } from 'express';
+import { rateLimit } from 'express-rate-limit';
+import helmet from 'helmet';
+import { pinoHttp } from 'pino-http';
+import type { Sequelize } from 'sequelize';
+import { AppError } from './app-error';
+import type { Config } from './config';
+import { createLogger, type Logger } from './logger';
+import { createAuthenticator } from './middleware/auth';
+import { apiNotFound, jsonErrors } from './middleware/errors';
+import { ANY_LAB_ROLE, requireLabRole } from './middleware/roles';
+import { signInRoute, signOutRoute } from './routes/auth-routes';
+import { healthRoute } from './routes/health-routes';
+import { acceptInvitationRoute, addMemberRoute, changeRoleRoute, membersRoute, myLabsRoute, removeMemberRoute } from './routes/lab-routes';
+import { meRoute } from './routes/me-routes';
+import { createMailer, type SendMail } from './services/mailer';
+
+export interface AppOptions {
+  config: Config;
+  sequelize: Sequelize;
+  logger?: Logger;
+  /** serve the built Angular app (default: when config.env is production) */
+  serveClient?: boolean;
+  sendMail?: SendMail;
+}
+
+/** sha256 of `this.media='all'`, the handler Angular's build puts on its deferred stylesheet link. */
+const DEFERRED_STYLESHEET_HANDLER = "'sha256-MhtPZXr7+LpJUY5qtMutB+qWfQtMaPccfe7QXtCcEYc='";
+
+export function createApp(options: AppOptions): Express {
+  const { config, sequelize } = options;
+  const logger = options.logger ?? createLogger(config.logLevel);
+  const sendMail = options.sendMail ?? createMailer(config);
+  const authenticate = createAuthenticator(config.jwtSecret);
+  const signInLimiter = rateLimit({
+    windowMs: config.signInWindowMs,
+    limit: config.signInLimit,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    handler: (_req, _res, next) =>
+      next(new AppError('too_many_attempts', 'Too many sign-in attempts from this address; wait a minute and try again.', 429)),
+  });
+
+  const app = express();
+  app.disable('x-powered-by');
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        useDefaults: false,
+        directives: {
+          defaultSrc: ["'self'"],
+          scriptSrc: ["'self'"],
+          scriptSrcAttr: ["'unsafe-hashes'", DEFERRED_STYLESHEET_HANDLER],
+          workerSrc: ["'self'", 'blob:'],
+          childSrc: ["'self'", 'blob:'],
+          styleSrc: ["'self'", "'unsafe-inline'"],
+          imgSrc: ["'self'", 'data:', 'blob:'],
+          fontSrc: ["'self'", 'data:'],
+          connectSrc: ["'self'"],
+          objectSrc: ["'none'"],
+          baseUri: ["'self'"],
+          formAction: ["'self'"],
+          frameAncestors: ["'none'"],
+        },
+      },
+      // Plain http on localhost must keep working; HSTS belongs to whatever terminates TLS in front of us.
+      strictTransportSecurity: false,
+    }),
+  );
+  app.use(compression());
+  app.use(pinoHttp({ logger, autoLogging: { ignore: (req) => req.url === '/api/health' } }));
+  app.use(express.json({ limit: '2mb' }));
+
+  const api = express.Router();
+  const owner = requireLabRole('owner');
+  const anyRole = requireLabRole(...ANY_LAB_ROLE);
+  const routes: Array<[method: 'get' | 'post' | 'patch' | 'delete', path: string, ...handlers: RequestHandler[]]> = [
+    ['get', '/health', healthRoute(sequelize)],
+    ['post', '/auth/sign-in', signInLimiter, signInRoute(config)],
+    ['post', '/auth/sign-out', authenticate, signOutRoute],
+    ['post', '/invitations/accept', signInLimiter, acceptInvitationRoute(sequelize, config)],
+    ['get', '/me', authenticate, meRoute],
+    ['get', '/labs', authenticate, myLabsRoute],
+    ['get', '/labs/:labId/members', authenticate, anyRole, membersRoute],
+    ['post', '/labs/:labId/members', authenticate, owner, addMemberRoute(sequelize, config, sendMail)],
+    ['patch', '/labs/:labId/members/:userId', authenticate, owner, changeRoleRoute(sequelize)],
+    ['delete', '/labs/:labId/members/:userId', authenticate, owner, removeMemberRoute(sequelize)],
+  ];
+  for (const [method, path, ...handlers] of routes) api[method](path, ...handlers);
+  api.use(apiNotFound);
+  app.use('/api', api);
+
+  if (options.serveClient ?? config.env === 'production') serveClient(app, config.clientDir, logger);
+  app.use(jsonErrors);
+  return app;
+}
+
+/** Serves the built Angular app; any other GET outside /api gets index.html so client routes survive a reload. */
+function serveClient(app: Express, clientDir: string, logger: Logger): void {
+  const index = join(clientDir, 'index.html');
+  if (!existsSync(index)) logger.warn({ clientDir }, 'built client not found; run `npx ng build`');
+  app.use(
+    express.static(clientDir, {
+      index: false,
+      setHeaders: (res, path) => {
+        res.setHeader('Cache-Control', /-[A-Z0-9]{8,}\.(js|css)$/.test(path) ? 'public, max-age=31536000, immutable' : 'no-cache');
+      },
+    }),
+  );
+  app.get('/{*splat}', (req, res, next) => {
+    if (req.path === '/api' || req.path.startsWith('/api/')) return next();
+    res.setHeader('Cache-Control', 'no-cache');
+    res.sendFile(index, (err) => {
+      if (err) next(new AppError('client_missing', 'The web client is not built; run `npx ng build`.', 404));
+    });
+  });
+}

@@ -1,0 +1,38 @@
+/**
+ * The demo: one invented lab and one account per role, with well-known passwords. Local use only (the accounts are
+ * listed in README and docs/database.md). Idempotent: existing rows are kept as they are.
+ */
+import type { Sequelize } from 'sequelize';
+import { hashPassword } from '../services/passwords';
+import { Lab, Membership, User, type LabRole } from './models';
+
+export const DEMO_LAB_NAME = 'Brightwater Shaker Lab';
+
+export const DEMO_ACCOUNTS: ReadonlyArray<{ email: string; name: string; role: LabRole; password: string }> = [
+  { email: 'owner@quiverpoint.test', name: 'Odile Owner', role: 'owner', password: 'quiver-owner' },
+  { email: 'analyst@quiverpoint.test', name: 'Ada Analyst', role: 'analyst', password: 'quiver-analyst' },
+  { email: 'reviewer@quiverpoint.test', name: 'Rui Reviewer', role: 'reviewer', password: 'quiver-reviewer' },
+  { email: 'viewer@quiverpoint.test', name: 'Vera Viewer', role: 'viewer', password: 'quiver-viewer' },
+];
+
+export async function seedDemo(sequelize: Sequelize): Promise<{ labId: string; created: number }> {
+  let created = 0;
+  const [lab, labCreated] = await Lab.findOrCreate({ where: { name: DEMO_LAB_NAME }, defaults: { name: DEMO_LAB_NAME } });
+  if (labCreated) created++;
+  for (const account of DEMO_ACCOUNTS) {
+    await sequelize.transaction(async (transaction) => {
+      let user = await User.findOne({ where: { email: account.email }, transaction });
+      if (!user) {
+        user = await User.create({ email: account.email, name: account.name, passwordHash: await hashPassword(account.password) }, { transaction });
+        created++;
+      }
+      const [, membershipCreated] = await Membership.findOrCreate({
+        where: { labId: lab.id, userId: user.id },
+        defaults: { labId: lab.id, userId: user.id, role: account.role },
+        transaction,
+      });
+      if (membershipCreated) created++;
+    });
+  }
+  return { labId: lab.id, created };
+}

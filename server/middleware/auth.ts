@@ -1,0 +1,76 @@
+/**
+ * Bearer-token authentication with passport-jwt. Each app gets its own Passport instance (no global state), and
+ * failures become our JSON 401s instead of passport's plain-text replies.
+ */
+import type { RequestHandler } from 'express';
+import { Passport } from 'passport';
+import { ExtractJwt, Strategy as JwtStrategy } from 'passport-jwt';
+import { AppError } from '../app-error';
+import { User } from '../db/models';
+import { isRevoked, publicUser, type PublicUser } from '../services/auth-service';
+
+declare global {
+  namespace Express {
+    interface User extends PublicUser {
+      /** the access token's id and expiry, for sign-out */
+      tokenId: string;
+      tokenExp: number;
+    }
+  }
+}
+
+interface Failure {
+  code: string;
+  message: string;
+}
+
+function failureFrom(info: unknown): Failure {
+  if (typeof info === 'object' && info !== null) {
+    const { code, message, name } = info as { code?: unknown; message?: unknown; name?: unknown };
+    if (typeof code === 'string' && typeof message === 'string') return { code, message };
+    if (name === 'TokenExpiredError') return { code: 'token_expired', message: 'Your session has expired; sign in again.' };
+    if (name === 'JsonWebTokenError' || name === 'NotBeforeError') return { code: 'invalid_token', message: 'The access token is not valid.' };
+    if (message === 'No auth token') return { code: 'unauthenticated', message: 'Sign in first: this needs an access token (Authorization: Bearer ...).' };
+  }
+  return { code: 'invalid_token', message: 'The access token is not valid.' };
+}
+
+export function createAuthenticator(jwtSecret: string): RequestHandler {
+  const passport = new Passport();
+  passport.use(
+    new JwtStrategy(
+      { jwtFromRequest: ExtractJwt.fromAuthHeaderAsBearerToken(), secretOrKey: jwtSecret, algorithms: ['HS256'] },
+      (payload: unknown, done: (err: unknown, user?: Express.User | false, info?: Failure) => void) => {
+        const claims = payload as { sub?: unknown; jti?: unknown; exp?: unknown };
+        if (typeof claims.sub !== 'string' || typeof claims.jti !== 'string' || typeof claims.exp !== 'number') {
+          done(null, false, { code: 'invalid_token', message: 'The access token is not valid.' });
+          return;
+        }
+        const { sub, jti, exp } = claims;
+        (async () => {
+          if (await isRevoked(jti)) return done(null, false, { code: 'token_revoked', message: 'This session was signed out; sign in again.' });
+          const user = await User.findByPk(sub);
+          if (!user) return done(null, false, { code: 'invalid_token', message: 'The account for this token no longer exists.' });
+          return done(null, { ...publicUser(user), tokenId: jti, tokenExp: exp });
+        })().catch((err: unknown) => done(err));
+      },
+    ),
+  );
+  return (req, res, next) => {
+    passport.authenticate('jwt', { session: false }, (err: unknown, user: Express.User | false, info: unknown) => {
+      if (err) return next(err);
+      if (!user) {
+        const { code, message } = failureFrom(info);
+        return next(new AppError(code, message, 401));
+      }
+      req.user = user;
+      return next();
+    })(req, res, next);
+  };
+}
+
+/** The signed-in user; only call behind the authenticator. */
+export function currentUser(req: Express.Request): Express.User {
+  if (!req.user) throw new AppError('unauthenticated', 'Sign in first.', 401);
+  return req.user;
+}

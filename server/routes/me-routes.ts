@@ -1,0 +1,13 @@
+import type { RequestHandler } from 'express';
+import { currentUser } from '../middleware/auth';
+import { labsOf } from '../services/lab-service';
+
+export const meRoute: RequestHandler = async (req, res) => {
+  const { tokenId: _tokenId, tokenExp, ...user } = currentUser(req);
+  const labs = await labsOf(user.id, 1000, 0);
+  res.json({
+    user,
+    memberships: labs.items.map((lab) => ({ labId: lab.id, labName: lab.name, role: lab.role })),
+    tokenExpiresAt: new Date(tokenExp * 1000).toISOString(),
+  });
+};

@@ -1,0 +1,76 @@
+/**
+ * Sign-in, access tokens and sign-out. Tokens are short-lived HS256 JWTs with a unique id (`jti`); sign-out
+ * records that id so the token stops working before it expires.
+ */
+import { randomUUID } from 'node:crypto';
+import jwt from 'jsonwebtoken';
+import { Op } from 'sequelize';
+import { AppError } from '../app-error';
+import type { Config } from '../config';
+import { AuditEvent, RevokedToken, User } from '../db/models';
+import { hashPassword, verifyPassword } from './passwords';
+
+export interface PublicUser {
+  id: string;
+  email: string;
+  name: string;
+  isSiteAdmin: boolean;
+}
+
+export interface SignedIn {
+  token: string;
+  tokenType: 'Bearer';
+  expiresAt: string;
+  user: PublicUser;
+}
+
+/** Claims we put in (and require from) an access token. */
+export interface AccessClaims {
+  sub: string;
+  jti: string;
+  exp: number;
+}
+
+export function publicUser(user: User): PublicUser {
+  return { id: user.id, email: user.email, name: user.name, isSiteAdmin: user.isSiteAdmin };
+}
+
+export function normaliseEmail(email: string): string {
+  return email.trim().toLowerCase();
+}
+
+let dummyHash: Promise<string> | undefined;
+
+export function issueToken(user: User, config: Pick<Config, 'jwtSecret' | 'jwtTtlSeconds'>): SignedIn {
+  const token = jwt.sign({}, config.jwtSecret, {
+    algorithm: 'HS256',
+    subject: user.id,
+    jwtid: randomUUID(),
+    expiresIn: config.jwtTtlSeconds,
+  });
+  const expiresAt = new Date(Date.now() + config.jwtTtlSeconds * 1000).toISOString();
+  return { token, tokenType: 'Bearer', expiresAt, user: publicUser(user) };
+}
+
+export async function signIn(email: string, password: string, config: Config): Promise<SignedIn> {
+  const user = await User.findOne({ where: { email: normaliseEmail(email) } });
+  // Verify against a throwaway hash when the user is unknown so both failures take the same time.
+  dummyHash ??= hashPassword(randomUUID());
+  const ok = await verifyPassword(user?.passwordHash ?? (await dummyHash), password);
+  if (!user || !ok) throw new AppError('bad_credentials', 'The email or password is incorrect.', 401);
+  await AuditEvent.create({ actorId: user.id, labId: null, action: 'auth.signed_in', details: {} });
+  return issueToken(user, config);
+}
+
+export async function signOut(claims: AccessClaims): Promise<void> {
+  await RevokedToken.findOrCreate({
+    where: { jti: claims.jti },
+    defaults: { jti: claims.jti, userId: claims.sub, expiresAt: new Date(claims.exp * 1000) },
+  });
+  await RevokedToken.destroy({ where: { expiresAt: { [Op.lt]: new Date() } } });
+  await AuditEvent.create({ actorId: claims.sub, labId: null, action: 'auth.signed_out', details: {} });
+}
+
+export async function isRevoked(jti: string): Promise<boolean> {
+  return (await RevokedToken.count({ where: { jti } })) > 0;
+}
