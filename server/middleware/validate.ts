@@ -7,10 +7,10 @@ export function parseInput<S extends z.ZodType>(schema: S, input: unknown, what 
   if (result.success) return result.data;
   const issue = result.error.issues[0];
   const field = issue && issue.path.length > 0 ? issue.path.join('.') : undefined;
-  if (!field && (input === undefined || input === null || typeof input !== 'object')) {
+  if (!field && (input === undefined || input === null || typeof input !== 'object' || Array.isArray(input))) {
     throw new AppError('invalid_body', `The request ${what} must be a JSON object.`, 400);
   }
-  const missing = issue?.code === 'invalid_type' && field !== undefined && readPath(input, issue.path) === undefined;
+  const missing = issue !== undefined && field !== undefined && readPath(input, issue.path) === undefined;
   const message = missing ? `${field} is required.` : `${field ?? what}: ${issue?.message ?? 'invalid value'}`;
   throw new AppError(missing ? 'missing_field' : 'invalid_field', message, 400, field);
 }
