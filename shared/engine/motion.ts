@@ -192,7 +192,7 @@ export function simulateMotion(params: CaseParams, hooks: MotionHooks = {}): Mot
 
   let nextProgress = 0.01;
   let cancelled = false;
-  const periodic = model.drive.periodic && params.drive.amplitude > 0;
+  const driven = params.drive.amplitude > 0;
   const result = integrate(
     rigDerivative(model),
     0,
@@ -205,7 +205,9 @@ export function simulateMotion(params: CaseParams, hooks: MotionHooks = {}): Mot
       // far above what any accepted case needs (about 6 steps per drive period); a guard against endless stepping
       maxSteps: Math.ceil(200 * (periods + 1) + 2e5),
       initialStep: Math.min(duration, drive.period) / 50,
-      maxStep: periodic ? drive.period / 2 : duration / 10,
+      // half a drive period: no aliasing of the forcing, and fewest calls; without a drive, an eighth of the free
+      // swing period keeps the dense interpolant (whose own error estimate is off) accurate
+      maxStep: driven ? drive.period / 2 : Math.min(duration / 10, (2 * Math.PI) / model.omega0 / 8),
       shouldCancel: hooks.shouldCancel
         ? () => {
             cancelled = hooks.shouldCancel?.() === true;

@@ -1,0 +1,106 @@
+import type { CaseParams } from '../case/case-schema';
+import { amplitudeForMeanSquare, averagedLowerFrequency } from './averaged';
+import { bodyProperties } from './body';
+import { driveKinematics } from './drive';
+
+/** A shaker's rated envelope (all optional limits are peak values except the stroke). */
+export interface ShakerEnvelope {
+  /** N: rated sine force */
+  maxForce: number;
+  /** m: peak-to-peak stroke between stops */
+  maxStroke: number;
+  /** m/s: peak velocity */
+  maxVelocity: number;
+  /** kg: armature, table and fixture moving with the pivot */
+  movingMass: number;
+}
+
+export interface SizingOptions {
+  /** wanted <s'^2> / (g L) (averaged-theory stiffness ratio); default 1.5 */
+  targetRatio?: number;
+  shaker?: ShakerEnvelope;
+}
+
+export interface ShakerCheck {
+  /** N: (moving mass + body mass) x peak acceleration */
+  force: number;
+  /** m */
+  stroke: number;
+  /** m/s */
+  velocity: number;
+  /** used share of each rating (1 = at the limit) */
+  forceUse: number;
+  strokeUse: number;
+  velocityUse: number;
+  fits: boolean;
+}
+
+export interface DriveSizing {
+  /** m/s^2 and in g */
+  peakAcceleration: number;
+  peakAccelerationG: number;
+  /** m/s */
+  peakVelocity: number;
+  /** m: peak-to-peak */
+  stroke: number;
+  /** N: pivot force on the body held upright at rest, at the drive's extreme accelerations */
+  pivotForcePeak: number;
+  /** averaged-theory stiffness ratio <s'^2> / (g L) of the case as it stands */
+  stiffnessRatio: number;
+  targetRatio: number;
+  /** m: crank radius (or amplitude) giving the target ratio at the case's frequency, null if unreachable */
+  amplitudeForTarget: number | null;
+  /** Hz and rev/min: drive (motor) speed giving the target ratio at the case's amplitude */
+  frequencyForTarget: number | null;
+  motorSpeedRpm: number | null;
+  shaker: ShakerCheck | null;
+}
+
+/**
+ * Drive sizing from the case's drive and body.
+ *
+ * Method (vibration-testing practice): peak velocity and acceleration of the actual waveform (2 pi f a and
+ * (2 pi f)^2 a for a sine); pivot force on a body at the upright, |m (s'' e + g up)| at the largest and smallest s'';
+ * shaker force = (moving mass + body mass) x peak acceleration. Crank radius and motor speed for a target margin
+ * come from averaged theory (<s'^2> = ratio x g L; Kapitza, Landau & Lifshitz section 30), so they are design
+ * estimates: the exact limits come from the Floquet analysis.
+ */
+export function driveSizing(params: CaseParams, options: SizingOptions = {}): DriveSizing {
+  const g = params.gravity;
+  const body = bodyProperties(params.body, g);
+  const L = body.equivalentLength;
+  const steadyDrive = { ...params.drive, ramp: undefined };
+  const kin = driveKinematics(steadyDrive);
+  const beta = params.drive.direction;
+  const forceAt = (acc: number) => body.mass * Math.hypot(acc * Math.sin(beta), acc * Math.cos(beta) + g);
+  const pivotForcePeak = Math.max(forceAt(kin.peakAcceleration), forceAt(-kin.peakAcceleration));
+  const targetRatio = options.targetRatio ?? 1.5;
+  const stiffnessRatio = kin.meanSquareVelocity / (g * L);
+
+  const amplitudeForTarget = amplitudeForMeanSquare(steadyDrive, params.drive.frequency, targetRatio * g * L);
+  const lower = averagedLowerFrequency(params, params.drive.amplitude);
+  const frequencyForTarget = lower === null ? null : lower * Math.sqrt(targetRatio);
+
+  let shaker: ShakerCheck | null = null;
+  if (options.shaker) {
+    const s = options.shaker;
+    const force = (s.movingMass + body.mass) * kin.peakAcceleration;
+    const forceUse = force / s.maxForce;
+    const strokeUse = kin.stroke / s.maxStroke;
+    const velocityUse = kin.peakVelocity / s.maxVelocity;
+    shaker = { force, stroke: kin.stroke, velocity: kin.peakVelocity, forceUse, strokeUse, velocityUse, fits: forceUse <= 1 && strokeUse <= 1 && velocityUse <= 1 };
+  }
+  return {
+    peakAcceleration: kin.peakAcceleration,
+    peakAccelerationG: kin.peakAcceleration / g,
+    peakVelocity: kin.peakVelocity,
+    stroke: kin.stroke,
+    pivotForcePeak,
+    stiffnessRatio,
+    targetRatio,
+    amplitudeForTarget,
+    frequencyForTarget,
+    motorSpeedRpm: frequencyForTarget === null ? null : frequencyForTarget * 60,
+    shaker,
+  };
+}
