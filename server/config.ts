@@ -33,6 +33,8 @@ const schema = z.object({
   smtpHost: z.string().min(1),
   /** QP_SMTP_PORT: SMTP port (local mail sink default 54325) */
   smtpPort: port,
+  /** QP_MAIL_SINK: `true` runs the local mail sink inside the server on QP_SMTP_PORT (local use and tests) */
+  mailSink: z.boolean(),
   /** QP_MAIL_FROM: sender address of outgoing mail */
   mailFrom: z.string().min(3),
   /** QP_PUBLIC_URL: base URL used in links sent by mail */
@@ -73,6 +75,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     signInWindowMs: env['QP_SIGNIN_WINDOW_MS'] || 60_000,
     smtpHost: env['QP_SMTP_HOST'] || '127.0.0.1',
     smtpPort: env['QP_SMTP_PORT'] || 54325,
+    mailSink: ['1', 'true', 'yes'].includes((env['QP_MAIL_SINK'] ?? '').toLowerCase()),
     mailFrom: env['QP_MAIL_FROM'] || 'Quiverpoint <no-reply@quiverpoint.localhost>',
     publicUrl: env['QP_PUBLIC_URL'] || `http://localhost:${env['PORT'] || 4310}`,
     invitationTtlHours: env['QP_INVITATION_TTL_HOURS'] || 168,

@@ -1,16 +1,23 @@
 /**
  * Starts the HTTP server: `tsx server/main.ts` in development, `node dist/server/server/main.js` in production.
- * SIGINT/SIGTERM close the server, then the database pool.
+ * With QP_MAIL_SINK=true it also runs the local mail sink. SIGINT/SIGTERM close the server, the sink, then the
+ * database pool.
  */
 import { createApp } from './app';
 import { config } from './config';
 import { createSequelize } from './db/sequelize';
 import { createLogger } from './logger';
+import { startMailSink, type MailSink } from './scripts/mail-sink';
 
 async function main(): Promise<void> {
   const cfg = config();
   const logger = createLogger(cfg.logLevel);
   const sequelize = createSequelize(cfg.databaseUrl);
+  let sink: MailSink | undefined;
+  if (cfg.mailSink) {
+    sink = await startMailSink({ port: cfg.smtpPort, host: cfg.smtpHost, log: (line) => logger.info(line) });
+    logger.info({ smtp: `${cfg.smtpHost}:${sink.port}` }, 'local mail sink listening');
+  }
   const app = createApp({ config: cfg, sequelize, logger });
   const server = app.listen(cfg.port, cfg.host, () => {
     const address = server.address();
@@ -27,7 +34,7 @@ async function main(): Promise<void> {
     closing = true;
     logger.info({ signal }, 'shutting down');
     server.close(() => {
-      sequelize.close().finally(() => process.exit(0));
+      Promise.allSettled([sink?.close(), sequelize.close()]).finally(() => process.exit(0));
     });
     server.closeIdleConnections();
     setTimeout(() => process.exit(1), 10_000).unref();

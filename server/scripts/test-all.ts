@@ -1,0 +1,72 @@
+/**
+ * `npm test`: every check, in order, stopping at the first failure, with a summary at the end.
+ * PostgreSQL (started here with fsync off if it was not running, and stopped again at the end), Debian chromium
+ * for the browser tests, then: Node tests (Vitest projects shared, reference, server, api), Angular unit tests,
+ * worker type check, client build, server build, browser tests.
+ */
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
+import { checkoutPaths } from '../paths';
+import { prepareDatabase, recreateDatabase } from './db-tasks';
+import { ensurePostgres, stopPostgres, type PgCluster } from './pg';
+import { runCommand, summary, timed, type StepResult } from './steps';
+
+const CHROMIUM = '/usr/bin/chromium';
+
+function ensureChromium(): boolean {
+  if (existsSync(CHROMIUM)) return true;
+  console.log('chromium missing: apt-get install -y chromium');
+  const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
+  if (runCommand('apt-get', ['install', '-y', 'chromium'], '/', env)) return true;
+  return runCommand('apt-get', ['update'], '/', env) && runCommand('apt-get', ['install', '-y', 'chromium'], '/', env);
+}
+
+async function main(): Promise<number> {
+  const { repoRoot } = checkoutPaths();
+  const results: StepResult[] = [];
+  const skipped: string[] = [];
+  let cluster: PgCluster | undefined;
+  const finish = (code: number) => {
+    if (cluster?.startedNow) stopPostgres();
+    console.log(`\n=== summary\n${summary(results, skipped)}\n\n${code === 0 ? 'ALL CHECKS PASSED' : 'FAILED'}`);
+    return code;
+  };
+  process.on('SIGINT', () => process.exit(finish(130)));
+
+  const npx = (...args: string[]) => () => runCommand('npx', args, repoRoot);
+  const steps: Array<[string, () => boolean | Promise<boolean>]> = [
+    [
+      'PostgreSQL ready, quiverpoint_test recreated + migrated',
+      async () => {
+        cluster = ensurePostgres({ fsync: false, databases: ['quiverpoint_test', 'quiverpoint_e2e'] });
+        await prepareDatabase(await recreateDatabase(cluster.url, 'quiverpoint_test'), { seed: false });
+        return true;
+      },
+    ],
+    ['chromium present', ensureChromium],
+    ['vitest: shared, reference, server, api', npx('vitest', 'run')],
+    ['ng test (Angular unit tests)', npx('ng', 'test', '--watch=false')],
+  ];
+  if (existsSync(join(repoRoot, 'tsconfig.worker.json'))) steps.push(['tsc workers (tsconfig.worker.json)', npx('tsc', '-p', 'tsconfig.worker.json', '--noEmit')]);
+  else skipped.push('worker type check (no tsconfig.worker.json)');
+  steps.push(['ng build (client)', npx('ng', 'build')], ['tsc server build (dist/server)', npx('tsc', '-p', 'server/tsconfig.json')]);
+  if (existsSync(join(repoRoot, 'vitest.e2e.config.mts'))) {
+    steps.push([
+      'browser tests (vitest.e2e.config.mts)',
+      () => runCommand('npx', ['vitest', 'run', '-c', 'vitest.e2e.config.mts'], repoRoot, { ...process.env, QP_E2E_SERVER: 'compiled' }),
+    ]);
+  } else skipped.push('browser tests (no vitest.e2e.config.mts)');
+
+  for (const [name, work] of steps) {
+    if (!(await timed(name, work, results))) return finish(1);
+  }
+  return finish(0);
+}
+
+main().then(
+  (code) => process.exit(code),
+  (err: unknown) => {
+    console.error(err);
+    process.exit(1);
+  },
+);

@@ -1,0 +1,58 @@
+/**
+ * For browser tests: a fresh, migrated and seeded `quiverpoint_e2e` database and the production server (built
+ * client, mail sink inside) on free ports. Call `stop()` in afterAll.
+ *
+ * Uses the TypeScript sources through tsx by default; `QP_E2E_SERVER=compiled` (set by `npm test`, which has just
+ * built it) runs dist/server instead. The Angular app must be built (`npx ng build`).
+ */
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
+import { DEMO_ACCOUNTS, DEMO_LAB_NAME } from '../../../server/db/seed';
+import { checkoutPaths } from '../../../server/paths';
+import { prepareDatabase, recreateDatabase } from '../../../server/scripts/db-tasks';
+import { ensurePostgres, stopPostgres } from '../../../server/scripts/pg';
+import { freePort, startServerProcess } from '../../../server/scripts/server-process';
+
+export { DEMO_ACCOUNTS, DEMO_LAB_NAME };
+
+export interface E2eServer {
+  baseUrl: string;
+  databaseUrl: string;
+  smtpPort: number;
+  stop(): Promise<void>;
+}
+
+export async function startE2eServer(): Promise<E2eServer> {
+  const { repoRoot } = checkoutPaths();
+  if (!existsSync(join(repoRoot, 'dist', 'quiverpoint', 'browser', 'index.html'))) {
+    throw new Error('the web client is not built: run `npx ng build` first');
+  }
+  const cluster = ensurePostgres({ fsync: false, databases: [], log: () => undefined });
+  const databaseUrl = await recreateDatabase(cluster.url, 'quiverpoint_e2e');
+  await prepareDatabase(databaseUrl, { seed: true });
+  const [port, smtpPort] = [await freePort(), await freePort()];
+  const server = await startServerProcess({
+    repoRoot,
+    mode: process.env['QP_E2E_SERVER'] === 'compiled' ? 'compiled' : 'tsx',
+    port,
+    env: {
+      ...process.env,
+      NODE_ENV: 'production',
+      DATABASE_URL: databaseUrl,
+      QP_MAIL_SINK: 'true',
+      QP_SMTP_PORT: String(smtpPort),
+      QP_PUBLIC_URL: `http://127.0.0.1:${port}`,
+      QP_SIGNIN_LIMIT: '1000',
+      LOG_LEVEL: process.env['LOG_LEVEL'] ?? 'warn',
+    },
+  });
+  return {
+    baseUrl: server.baseUrl,
+    databaseUrl,
+    smtpPort,
+    stop: async () => {
+      await server.stop();
+      if (cluster.startedNow) stopPostgres(() => undefined);
+    },
+  };
+}
