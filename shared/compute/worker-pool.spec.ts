@@ -1,0 +1,123 @@
+import { lastValueFrom, toArray } from 'rxjs';
+import { afterAll, describe, expect, it } from 'vitest';
+import { templateCase, type CaseParams } from '../case';
+import { defaultChartGrid, stabilityChart, type Grid2 } from '../engine/chart';
+import { sweep } from '../engine/sweep';
+import { handleEngineRequest } from './handle-request';
+import { createNodeEngineWorker } from './node-pool';
+import type { EngineResponse } from './protocol';
+import { WorkerPool, type PoolEvent, type WorkerLike } from './worker-pool';
+
+/** The real handler run in this thread, answering asynchronously like a worker would. */
+function inThreadWorker(): WorkerLike {
+  let alive = true;
+  const w: WorkerLike = {
+    onmessage: null,
+    onerror: null,
+    postMessage: (message) => {
+      setTimeout(() => {
+        if (!alive) return;
+        handleEngineRequest(message, (response: EngineResponse) => {
+          if (alive) w.onmessage?.({ data: response });
+        });
+      }, 0);
+    },
+    terminate: () => {
+      alive = false;
+    },
+  };
+  return w;
+}
+
+function shortCase(): CaseParams {
+  const c = templateCase();
+  return { ...c, run: { ...c.run, duration: 2, outputPoints: 400 } };
+}
+
+async function resultOf<T>(events: Promise<PoolEvent<T>[]>): Promise<{ value: T; progress: number[] }> {
+  const all = await events;
+  const last = all[all.length - 1];
+  if (last.type !== 'result') throw new Error('no result');
+  return { value: last.value, progress: all.flatMap((e) => (e.type === 'progress' ? [e.fraction] : [])) };
+}
+
+describe('WorkerPool over worker_threads', () => {
+  let threads = 0;
+  let terminated = 0;
+  const pool = new WorkerPool(() => {
+    threads++;
+    const w = createNodeEngineWorker();
+    const terminate = w.terminate;
+    w.terminate = () => {
+      terminated++;
+      terminate();
+    };
+    return w;
+  }, 2);
+  afterAll(() => pool.dispose());
+
+  it('gives the same chart as a single-thread run, with monotone progress ending at 1', async () => {
+    const c = templateCase();
+    const grid = defaultChartGrid(c, 40);
+    const { value, progress } = await resultOf(lastValueFrom(pool.chart(c, grid).pipe(toArray())));
+    const single = stabilityChart(c, grid);
+    expect(Array.from(value.maxMultiplier)).toEqual(Array.from(single.maxMultiplier));
+    expect(progress.length).toBeGreaterThan(2);
+    for (let i = 1; i < progress.length; i++) expect(progress[i]).toBeGreaterThan(progress[i - 1]);
+    expect(progress[progress.length - 1]).toBe(1);
+  }, 60_000);
+
+  it('stops work when unsubscribed: busy threads are terminated and nothing is emitted after', async () => {
+    const c = shortCase();
+    const grid: Grid2 = {
+      x: { field: 'drive.frequency', from: 20, to: 60, count: 12 },
+      y: { field: 'drive.amplitude', from: 0.005, to: 0.02, count: 12 },
+    };
+    const before = terminated;
+    const seen: string[] = [];
+    await new Promise<void>((resolve) => {
+      const sub = pool.outcomeMap(c, grid).subscribe({
+        next: (e) => {
+          seen.push(e.type);
+          if (e.type === 'progress') {
+            sub.unsubscribe();
+            resolve();
+          }
+        },
+      });
+    });
+    const countAtCancel = seen.length;
+    await new Promise((r) => setTimeout(r, 300));
+    expect(seen.length).toBe(countAtCancel);
+    expect(seen).not.toContain('result');
+    expect(terminated).toBeGreaterThan(before);
+    // The pool replaces the terminated threads and keeps working.
+    const { value } = await resultOf(lastValueFrom(pool.margins(templateCase()).pipe(toArray())));
+    expect(value.uprightHolds).toBe(true);
+    expect(threads).toBeGreaterThan(2);
+  }, 60_000);
+
+  it('reports an invalid case as an error naming the field', async () => {
+    const bad = { ...templateCase(), body: { kind: 'point-mass' as const, length: -1, mass: 1 } };
+    await expect(lastValueFrom(pool.margins(bad))).rejects.toThrow(/body\.length/);
+  }, 60_000);
+});
+
+describe('WorkerPool determinism', () => {
+  it('gives identical sweeps on 1 and 3 workers, equal to the single-thread sweep', async () => {
+    const c = shortCase();
+    const spec = { field: 'drive.frequency', from: 20, to: 50, steps: 5 };
+    const results = [];
+    for (const size of [1, 3]) {
+      const pool = new WorkerPool(inThreadWorker, size);
+      results.push((await resultOf(lastValueFrom(pool.sweep(c, spec).pipe(toArray())))).value);
+      pool.dispose();
+    }
+    const single = sweep(c, spec);
+    for (const r of results) {
+      expect(r.points).toEqual(single.points);
+      expect(r.thresholds).toEqual(single.thresholds);
+    }
+    expect(single.thresholds.length).toBeGreaterThan(0);
+  }, 120_000);
+});
