@@ -1,0 +1,85 @@
+import { describe, expect, it } from 'vitest';
+import { templateCase, type CaseParams } from '../case';
+import { driveLimits } from './floquet';
+import { basinMapRows, locateThreshold, outcomeMapRows, sweep, sweepPoints, sweepValues } from './sweep';
+import type { Grid2 } from './chart';
+
+function shortCase(duration = 3): CaseParams {
+  const c = templateCase();
+  return { ...c, run: { ...c.run, duration, outputPoints: 400 } };
+}
+
+describe('sweep', () => {
+  it('finds the upright lost below a drive frequency, at the Floquet lower limit within the stated tolerance', () => {
+    const c = shortCase();
+    const spec = { field: 'drive.frequency', from: 20, to: 60, steps: 5, tolerance: 0.05 };
+    const r = sweep(c, spec);
+    expect(r.points.map((p) => p.outcome)).toEqual(['falls', 'falls', 'holds-upright', 'holds-upright', 'holds-upright']);
+    const mult = r.thresholds.filter((t) => t.kind === 'multiplier');
+    expect(mult.length).toBe(1);
+    const limit = driveLimits(c, 'drive.frequency', 1e-7).lower ?? NaN;
+    expect(mult[0].bracket[1] - mult[0].bracket[0]).toBeLessThanOrEqual(0.05);
+    expect(mult[0].bracket[0]).toBeLessThanOrEqual(limit);
+    expect(mult[0].bracket[1]).toBeGreaterThanOrEqual(limit);
+    expect(mult[0].below).toBe('falls');
+    expect(mult[0].above).toBe('holds-upright');
+    const outcome = r.thresholds.filter((t) => t.kind === 'outcome');
+    expect(outcome.length).toBeGreaterThan(0);
+    // The motion (a finite run) and the Floquet verdict agree on where the upright is lost, to about a hertz.
+    expect(Math.abs(outcome[0].value - limit)).toBeLessThan(1.5);
+  }, 60_000);
+
+  it('gives the same points however the index range is split', () => {
+    const c = shortCase(1);
+    const spec = { field: 'drive.amplitude', from: 0.004, to: 0.02, steps: 4 };
+    const whole = sweepPoints(c, spec, 0, 4);
+    const split = [...sweepPoints(c, spec, 0, 1), ...sweepPoints(c, spec, 1, 4)];
+    expect(split).toEqual(whole);
+    expect(whole.map((p) => p.value)).toEqual(Array.from(sweepValues(spec)));
+  }, 60_000);
+
+  it('marks values that make the case invalid instead of failing the sweep', () => {
+    const c = shortCase(1);
+    const points = sweepPoints(c, { field: 'body.length', from: -0.1, to: 0.2, steps: 2 }, 0, 2);
+    expect(points[0].outcome).toBeNull();
+    expect(points[0].error).toMatch(/body\.length/);
+    expect(points[1].outcome).toBe('holds-upright');
+  }, 60_000);
+
+  it('bisects an outcome bracket down to the tolerance', () => {
+    const c = shortCase();
+    const t = locateThreshold(c, { field: 'drive.frequency', from: 20, to: 60, steps: 3, tolerance: 0.2 }, {
+      kind: 'outcome', lo: 20, hi: 40, loOutcome: 'falls', hiOutcome: 'holds-upright',
+    });
+    expect(t.bracket[1] - t.bracket[0]).toBeLessThanOrEqual(0.2);
+    expect(t.below).toBe('falls');
+    expect(t.value).toBeGreaterThan(25);
+    expect(t.value).toBeLessThan(35);
+  }, 60_000);
+});
+
+describe('outcome and basin maps', () => {
+  it('map rows are independent of the split and match the 1-D outcomes', () => {
+    const c = shortCase(1);
+    const grid: Grid2 = {
+      x: { field: 'drive.frequency', from: 20, to: 60, count: 3 },
+      y: { field: 'drive.amplitude', from: 0.008, to: 0.012, count: 2 },
+    };
+    const whole = outcomeMapRows(c, grid, 0, 2);
+    expect([...outcomeMapRows(c, grid, 0, 1), ...outcomeMapRows(c, grid, 1, 2)]).toEqual(whole);
+    expect(whole.length).toBe(6);
+    expect(whole[2].outcome).toBe('holds-upright');
+  }, 60_000);
+
+  it('basin map: starts near the upright hold, starts near hanging stay down', () => {
+    const c = shortCase(2);
+    const grid: Grid2 = {
+      x: { field: 'start.angle', from: -0.2, to: 3.0, count: 2 },
+      y: { field: 'start.rate', from: 0, to: 0, count: 1 },
+    };
+    const cells = basinMapRows(c, grid, 0, 1);
+    expect(cells[0].outcome).toBe('holds-upright');
+    expect(cells[1].outcome).toBe('falls');
+    expect(() => basinMapRows(c, { ...grid, x: { ...grid.x, field: 'drive.amplitude' } }, 0, 1)).toThrow(/start\.angle/);
+  }, 60_000);
+});
