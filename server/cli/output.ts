@@ -1,0 +1,75 @@
+/** JSON and CSV rendering of engine results for the CLI. */
+import type { RunResult } from '../../shared/engine/run-record';
+
+/** JSON with typed arrays as plain arrays and non-finite numbers as strings ("Infinity", "NaN"). */
+export function toJson(value: unknown): string {
+  return JSON.stringify(
+    value,
+    (_key, v: unknown) => {
+      if (typeof v === 'number' && !Number.isFinite(v)) return String(v);
+      if (ArrayBuffer.isView(v)) return Array.from(v as unknown as ArrayLike<number>);
+      return v;
+    },
+    2,
+  );
+}
+
+function cell(v: unknown): string {
+  if (v === null || v === undefined) return '';
+  const s = String(v);
+  return /[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+}
+
+function rows(header: readonly string[], body: ReadonlyArray<readonly unknown[]>): string {
+  return [header.join(','), ...body.map((r) => r.map(cell).join(','))].join('\n') + '\n';
+}
+
+/** A CSV table of a result: one row per sample, point or cell, with units in the header. */
+export function toCsv(result: RunResult): string {
+  switch (result.kind) {
+    case 'motion': {
+      const s = result.value.series;
+      const body: unknown[][] = [];
+      for (let i = 0; i < s.t.length; i++) body.push([s.t[i], s.theta[i], s.rate[i], s.pivotPosition[i], s.energy[i], s.pivotForce[i]]);
+      return rows(['t_s', 'theta_rad', 'rate_rad_s', 'pivot_m', 'energy_J', 'pivot_force_N'], body);
+    }
+    case 'margins': {
+      const f = result.value;
+      const body = f.periodicMotions.map((m) => [
+        m.kind, m.meanAngle, m.angle, m.rate, m.multipliers[0].re, m.multipliers[0].im, m.multipliers[1].re, m.multipliers[1].im,
+        m.maxMultiplier, m.stable,
+      ]);
+      return rows(
+        ['kind', 'mean_angle_rad', 'section_angle_rad', 'section_rate_rad_s', 'mu1_re', 'mu1_im', 'mu2_re', 'mu2_im', 'max_abs_mu', 'stable'],
+        body,
+      );
+    }
+    case 'sweep': {
+      const s = result.value;
+      return rows(
+        [s.field, 'outcome', 'max_abs_mu', 'slow_frequency_Hz', 'mean_angle_rad', 'max_deviation_rad', 'error'],
+        s.points.map((p) => [p.value, p.outcome, p.maxMultiplier, p.slowFrequencyHz, p.meanAngle, p.maxDeviation, p.error]),
+      );
+    }
+    case 'chart': {
+      const c = result.value;
+      const body: unknown[][] = [];
+      for (let r = 0; r < c.yValues.length; r++) {
+        for (let i = 0; i < c.xValues.length; i++) body.push([c.xValues[i], c.yValues[r], c.maxMultiplier[r * c.xValues.length + i]]);
+      }
+      return rows([c.grid.x.field, c.grid.y.field, 'max_abs_mu'], body);
+    }
+    case 'map':
+    case 'basin': {
+      const m = result.value;
+      const body: unknown[][] = [];
+      for (let r = 0; r < m.yValues.length; r++) {
+        for (let i = 0; i < m.xValues.length; i++) {
+          const c = m.cells[r * m.xValues.length + i];
+          body.push([m.xValues[i], m.yValues[r], c.outcome, c.meanAngle, c.maxDeviation, c.slowFrequencyHz, c.error]);
+        }
+      }
+      return rows([m.grid.x.field, m.grid.y.field, 'outcome', 'mean_angle_rad', 'max_deviation_rad', 'slow_frequency_Hz', 'error'], body);
+    }
+  }
+}

@@ -1,0 +1,340 @@
+/**
+ * Run records: what is stored with a revision for each computation, and how a reviewer's rerun is compared with it.
+ *
+ * A record holds the kind, the case, the settings, a flat summary of headline numbers, the result digest and the
+ * engine version. The result digest is the SHA-256 of the canonical JSON of the result's numbers rounded to
+ * DIGEST_SIGNIFICANT_DIGITS significant digits (non-finite values written as strings), so reruns by the same engine
+ * in any runtime give the same digest while the summary numbers are compared with stated tolerances. The same code
+ * runs in the server, the browser and the CLI.
+ */
+import type { CaseParams } from '../case/case-schema';
+import { caseDigest, valueDigest } from '../case/canonical';
+import { parseCase } from '../case/validate';
+import { axisValues, defaultChartGrid, stabilityChart, type Grid2, type StabilityChart } from './chart';
+import { floquetAnalysis, type FloquetAnalysis } from './floquet';
+import { simulateMotion, type MotionHooks, type MotionResult } from './motion';
+import {
+  assembleSweep, basinMapRows, defaultBasinGrid, outcomeMapRows, sweepPoints, sweepThresholds, thresholdBrackets,
+  type MapCell, type SweepResult, type SweepSpec,
+} from './sweep';
+import { ENGINE_VERSION } from './version';
+
+export type RunKind = 'motion' | 'margins' | 'sweep' | 'chart' | 'map' | 'basin';
+
+export const RUN_KINDS: readonly RunKind[] = ['motion', 'margins', 'sweep', 'chart', 'map', 'basin'];
+
+/** Settings per kind. */
+export type RunSettings =
+  | { kind: 'motion' }
+  | { kind: 'margins'; relTolerance: number }
+  | { kind: 'sweep'; spec: SweepSpec }
+  | { kind: 'chart'; grid: Grid2 }
+  | { kind: 'map'; grid: Grid2 }
+  | { kind: 'basin'; grid: Grid2 };
+
+/** Results of a map or basin run. */
+export interface CellMapResult {
+  engineVersion: string;
+  grid: Grid2;
+  xValues: Float64Array;
+  yValues: Float64Array;
+  cells: MapCell[];
+}
+
+export type RunResult =
+  | { kind: 'motion'; value: MotionResult }
+  | { kind: 'margins'; value: FloquetAnalysis }
+  | { kind: 'sweep'; value: SweepResult }
+  | { kind: 'chart'; value: StabilityChart }
+  | { kind: 'map'; value: CellMapResult }
+  | { kind: 'basin'; value: CellMapResult };
+
+/** Flat headline numbers of a run (and a few words). */
+export type RunSummary = Record<string, number | string | boolean | null>;
+
+export interface RunRecord {
+  kind: RunKind;
+  params: CaseParams;
+  settings: RunSettings;
+  summary: RunSummary;
+  resultDigest: string;
+  engineVersion: string;
+  /** SHA-256 of the case's canonical JSON. */
+  caseDigest?: string;
+}
+
+/** Significant digits kept in the result digest. */
+export const DIGEST_SIGNIFICANT_DIGITS = 9;
+/** Default relative tolerance when a rerun's summary numbers are compared with the stored ones. */
+export const SUMMARY_REL_TOLERANCE = 1e-6;
+/** Absolute floor of that comparison (numbers that should be zero). */
+export const SUMMARY_ABS_TOLERANCE = 1e-12;
+
+/** Default settings of a kind for a case. */
+export function defaultRunSettings(kind: RunKind, params: CaseParams): RunSettings {
+  switch (kind) {
+    case 'motion':
+      return { kind };
+    case 'margins':
+      return { kind, relTolerance: 1e-6 };
+    case 'sweep': {
+      const a = params.drive.amplitude;
+      return { kind, spec: { field: 'drive.amplitude', from: a / 4, to: a * 2, steps: 15 } };
+    }
+    case 'chart':
+      return { kind, grid: defaultChartGrid(params, 100) };
+    case 'map': {
+      const f = params.drive.frequency;
+      const a = params.drive.amplitude;
+      return {
+        kind,
+        grid: {
+          x: { field: 'drive.frequency', from: f / 2, to: 2 * f, count: 9 },
+          y: { field: 'drive.amplitude', from: a / 2, to: 2 * a, count: 9 },
+        },
+      };
+    }
+    case 'basin':
+      return { kind, grid: defaultBasinGrid(params, 11) };
+  }
+}
+
+/** Computes a run in this thread (the CLI and the server's recheck; the UI uses the worker pool). */
+export function computeRun(params: CaseParams, settings: RunSettings, hooks: MotionHooks = {}): RunResult {
+  switch (settings.kind) {
+    case 'motion':
+      return { kind: 'motion', value: simulateMotion(params, hooks) };
+    case 'margins':
+      return { kind: 'margins', value: floquetAnalysis(params, { relTolerance: settings.relTolerance }) };
+    case 'sweep': {
+      const spec = settings.spec;
+      const points = sweepPoints(params, spec, 0, spec.steps, {
+        shouldCancel: hooks.shouldCancel,
+        onProgress: (f) => hooks.onProgress?.(0.7 * f),
+      });
+      const thresholds = sweepThresholds(params, spec, thresholdBrackets(points), {
+        shouldCancel: hooks.shouldCancel,
+        onProgress: (f) => hooks.onProgress?.(0.7 + 0.3 * f),
+      });
+      return { kind: 'sweep', value: assembleSweep(params, spec, points, thresholds) };
+    }
+    case 'chart':
+      return { kind: 'chart', value: stabilityChart(params, settings.grid, hooks.onProgress) };
+    case 'map':
+    case 'basin': {
+      const grid = settings.grid;
+      const rows = settings.kind === 'map' ? outcomeMapRows : basinMapRows;
+      const cells = rows(params, grid, 0, grid.y.count, hooks);
+      const value: CellMapResult = {
+        engineVersion: ENGINE_VERSION, grid, xValues: axisValues(grid.x), yValues: axisValues(grid.y), cells,
+      };
+      return settings.kind === 'map' ? { kind: 'map', value } : { kind: 'basin', value };
+    }
+  }
+}
+
+function countOutcomes(cells: readonly MapCell[]): RunSummary {
+  const summary: RunSummary = { cells: cells.length };
+  for (const o of ['holds-upright', 'settles-tilted', 'falls', 'tumbles', 'irregular', 'invalid']) summary[`count.${o}`] = 0;
+  for (const c of cells) {
+    const key = `count.${c.outcome ?? 'invalid'}`;
+    summary[key] = Number(summary[key]) + 1;
+  }
+  return summary;
+}
+
+/** Headline numbers of a run result. */
+export function summariseRun(result: RunResult): RunSummary {
+  switch (result.kind) {
+    case 'motion': {
+      const m = result.value;
+      return {
+        outcome: m.outcome,
+        status: m.status,
+        finalTheta: m.summary.finalTheta,
+        finalRate: m.summary.finalRate,
+        maxDeviation: m.outcomeNumbers.maxDeviation,
+        meanAngle: m.outcomeNumbers.meanAngle,
+        slowFrequencyHz: m.outcomeNumbers.slowFrequencyHz,
+        peakPivotAccelerationG: m.summary.peakPivotAccelerationG,
+        peakPivotForce: m.summary.peakPivotForce,
+        rhsEvaluations: m.rhsEvaluations,
+      };
+    }
+    case 'margins': {
+      const f = result.value;
+      return {
+        uprightHolds: f.uprightHolds,
+        uprightMaxMultiplier: f.upright ? f.upright.maxMultiplier : null,
+        amplitudeLower: f.amplitudeLimits.lower,
+        amplitudeUpper: f.amplitudeLimits.upper,
+        frequencyLower: f.frequencyLimits.lower,
+        frequencyUpper: f.frequencyLimits.upper,
+        marginPercent: f.marginPercent,
+        periodicMotions: f.periodicMotions.length,
+      };
+    }
+    case 'sweep': {
+      const s = result.value;
+      const summary: RunSummary = { field: s.field, points: s.points.length, thresholds: s.thresholds.length };
+      s.points.forEach((p, i) => {
+        summary[`point.${i}.outcome`] = p.outcome;
+        summary[`point.${i}.maxMultiplier`] = p.maxMultiplier;
+      });
+      s.thresholds.forEach((t, i) => {
+        summary[`threshold.${i}.kind`] = t.kind;
+        summary[`threshold.${i}.value`] = t.value;
+      });
+      return summary;
+    }
+    case 'chart': {
+      const c = result.value;
+      let holding = 0;
+      let least = Infinity;
+      for (const v of c.maxMultiplier) {
+        if (v < 1) holding++;
+        least = Math.min(least, v);
+      }
+      return {
+        cells: c.maxMultiplier.length,
+        holdingCells: holding,
+        leastMultiplier: least,
+        caseMaxMultiplier: c.caseMark.maxMultiplier,
+      };
+    }
+    case 'map':
+    case 'basin':
+      return countOutcomes(result.value.cells);
+  }
+}
+
+/** Copy of a JSON-like value with numbers rounded for the digest; typed arrays become arrays. */
+export function digestView(value: unknown, depth = 0): unknown {
+  if (typeof value === 'number') {
+    if (!Number.isFinite(value)) return String(value);
+    return value === 0 ? 0 : Number(value.toPrecision(DIGEST_SIGNIFICANT_DIGITS));
+  }
+  if (value === null || typeof value !== 'object' || depth > 32) return value;
+  if (ArrayBuffer.isView(value)) {
+    return Array.from(value as unknown as ArrayLike<number>, (v) => digestView(v, depth + 1));
+  }
+  if (Array.isArray(value)) return value.map((v) => digestView(v, depth + 1));
+  const out: Record<string, unknown> = {};
+  for (const [k, v] of Object.entries(value)) out[k] = digestView(v, depth + 1);
+  return out;
+}
+
+/**
+ * Digest of a run result: SHA-256 of the canonical JSON of its rounded numbers. The motion's rhsEvaluations and
+ * step counts are included: they are deterministic for a given engine.
+ */
+export function resultDigest(result: RunResult): string {
+  return valueDigest(digestView(result.value));
+}
+
+/** A run record for a computed result. */
+export function makeRunRecord(params: CaseParams, settings: RunSettings, result: RunResult): RunRecord {
+  return {
+    kind: settings.kind,
+    params,
+    settings,
+    summary: summariseRun(result),
+    resultDigest: resultDigest(result),
+    engineVersion: ENGINE_VERSION,
+    caseDigest: caseDigest(params),
+  };
+}
+
+/** One compared summary entry. */
+export interface ComparedNumber {
+  key: string;
+  stored: number | string | boolean | null;
+  rerun: number | string | boolean | null;
+  /** |rerun - stored| / max(|stored|, tiny) for numbers, null otherwise. */
+  relDiff: number | null;
+  ok: boolean;
+}
+
+export interface RecheckReport {
+  /** Everything agrees (see `ok` rule in recheckRun). */
+  ok: boolean;
+  digestMatches: boolean;
+  storedDigest: string;
+  rerunDigest: string;
+  engineVersionStored: string;
+  engineVersionNow: string;
+  summaryMatches: boolean;
+  relTolerance: number;
+  compared: ComparedNumber[];
+  /** The rerun's record. */
+  rerun: RunRecord;
+}
+
+/** Compares two summaries: numbers within relTolerance (or SUMMARY_ABS_TOLERANCE), everything else equal. */
+export function compareSummaries(stored: RunSummary, rerun: RunSummary, relTolerance = SUMMARY_REL_TOLERANCE): ComparedNumber[] {
+  const keys = [...new Set([...Object.keys(stored), ...Object.keys(rerun)])].sort();
+  // JSON cannot hold non-finite numbers: stored records carry them as "Infinity", "-Infinity" or "NaN".
+  const revive = (v: number | string | boolean | null): number | string | boolean | null =>
+    v === 'Infinity' || v === '-Infinity' || v === 'NaN' ? Number(v) : v;
+  return keys.map((key) => {
+    const a = revive(key in stored ? stored[key] : null);
+    const b = revive(key in rerun ? rerun[key] : null);
+    if (typeof a === 'number' && typeof b === 'number') {
+      if (!Number.isFinite(a) || !Number.isFinite(b)) {
+        return { key, stored: a, rerun: b, relDiff: null, ok: a === b || (Number.isNaN(a) && Number.isNaN(b)) };
+      }
+      const diff = Math.abs(a - b);
+      const relDiff = diff / Math.max(Math.abs(a), SUMMARY_ABS_TOLERANCE);
+      return { key, stored: a, rerun: b, relDiff, ok: diff <= Math.max(relTolerance * Math.abs(a), SUMMARY_ABS_TOLERANCE) };
+    }
+    return { key, stored: a, rerun: b, relDiff: null, ok: a === b };
+  });
+}
+
+/** Shape check of a stored run record read from JSON (the case itself is validated by recheckRun). */
+export function parseRunRecord(input: unknown): { ok: true; value: RunRecord } | { ok: false; field: string; message: string } {
+  if (typeof input !== 'object' || input === null) return { ok: false, field: '', message: 'a run record must be an object' };
+  const r = input as Record<string, unknown>;
+  if (typeof r['kind'] !== 'string' || !RUN_KINDS.includes(r['kind'] as RunKind)) {
+    return { ok: false, field: 'kind', message: `must be one of ${RUN_KINDS.join(', ')}` };
+  }
+  const settings = r['settings'];
+  if (typeof settings !== 'object' || settings === null || (settings as Record<string, unknown>)['kind'] !== r['kind']) {
+    return { ok: false, field: 'settings.kind', message: 'settings must be an object whose kind equals the record kind' };
+  }
+  if (typeof r['summary'] !== 'object' || r['summary'] === null) return { ok: false, field: 'summary', message: 'must be an object' };
+  if (typeof r['resultDigest'] !== 'string') return { ok: false, field: 'resultDigest', message: 'must be a hex string' };
+  if (typeof r['engineVersion'] !== 'string') return { ok: false, field: 'engineVersion', message: 'must be a string' };
+  const parsed = parseCase(r['params']);
+  if (!parsed.ok) {
+    const first = parsed.issues[0];
+    return { ok: false, field: `params${first.field ? `.${first.field}` : ''}`, message: first.message };
+  }
+  return { ok: true, value: { ...(input as RunRecord), params: parsed.value } };
+}
+
+/**
+ * Reruns a stored record and compares. ok when the summary matches within the tolerance and the digest matches;
+ * when the engine version changed since the run, a digest difference alone does not fail the recheck (numbers may
+ * move in the last digits), the summary decides.
+ */
+export function recheckRun(record: RunRecord, relTolerance = SUMMARY_REL_TOLERANCE, hooks: MotionHooks = {}): RecheckReport {
+  const result = computeRun(record.params, record.settings, hooks);
+  const rerun = makeRunRecord(record.params, record.settings, result);
+  const compared = compareSummaries(record.summary, rerun.summary, relTolerance);
+  const summaryMatches = compared.every((c) => c.ok);
+  const digestMatches = rerun.resultDigest === record.resultDigest;
+  const versionChanged = record.engineVersion !== ENGINE_VERSION;
+  return {
+    ok: summaryMatches && (digestMatches || versionChanged),
+    digestMatches,
+    storedDigest: record.resultDigest,
+    rerunDigest: rerun.resultDigest,
+    engineVersionStored: record.engineVersion,
+    engineVersionNow: ENGINE_VERSION,
+    summaryMatches,
+    relTolerance,
+    compared,
+    rerun,
+  };
+}
