@@ -42,3 +42,26 @@ describe('integrate', () => {
     expect(blown.y.every(Number.isFinite)).toBe(true);
   });
 });
+
+describe('rigDerivative', () => {
+  it('agrees with rhs in every written-out branch', async () => {
+    const { buildModel, rhs } = await import('./equations');
+    const { rigDerivative } = await import('./integrate');
+    const { templateCase } = await import('../case/templates');
+    const c = templateCase();
+    const cases = [
+      c,
+      { ...c, drive: { ...c.drive, direction: 1.1 } },
+      { ...c, damping: { ...c.damping, quadratic: 0.2, friction: 1 } },
+    ];
+    for (const p of cases) {
+      const m = buildModel(p);
+      const f = rigDerivative(m);
+      for (const [t, th, r] of [[0.001, 0.3, -0.2], [0.0173, 2.9, 4]]) {
+        const [d0, d1] = f(t, [th, r]);
+        expect(d0).toBe(r);
+        expect(Math.abs(d1 - rhs(m, t, th, r))).toBeLessThan(1e-12 * Math.max(1, Math.abs(d1)));
+      }
+    }
+  });
+});

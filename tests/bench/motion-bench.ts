@@ -1,0 +1,104 @@
+// Integrator and motion benchmark on the reference notes' benchmark case (vertical sine, L = 0.2 m, a = 10 mm,
+// 40 Hz, zeta = 0.01, 200 s = 8000 drive periods, rtol 1e-10, atol 1e-12).
+import { BENCHMARK_REFERENCE, benchmarkCase } from '../../shared/engine/benchmark-case';
+import { buildModel } from '../../shared/engine/equations';
+import { integrate, rigDerivative } from '../../shared/engine/integrate';
+import { simulateMotion } from '../../shared/engine/motion';
+
+export interface IntegratorFigures {
+  label: string;
+  wallMs: number;
+  rhsEvaluations: number;
+  rhsPerPeriod: number;
+  finalAngle: number;
+  finalRate: number;
+}
+
+const mb = (bytes: number) => `${(bytes / 2 ** 20).toFixed(1)} MB`;
+
+function best<T extends { wallMs: number }>(repeats: number, once: () => T): T {
+  let winner: T | undefined;
+  for (let i = 0; i < repeats; i++) {
+    const r = once();
+    if (!winner || r.wallMs < winner.wallMs) winner = r;
+  }
+  return winner as T;
+}
+
+/** Bare odex integration of the benchmark case (no output), best of `repeats`. */
+export function benchIntegrator(repeats = 3): IntegratorFigures {
+  const params = benchmarkCase();
+  const model = buildModel(params);
+  const periods = params.run.duration * params.drive.frequency;
+  return best(repeats, () => {
+    const t0 = performance.now();
+    const r = integrate(rigDerivative(model), 0, [params.start.angle, params.start.rate], params.run.duration, {
+      rtol: params.run.rtol,
+      atol: params.run.atol,
+      maxStep: model.drive.period / 2,
+      maxSteps: 1e7,
+    });
+    return {
+      label: 'integrator only (odex, no dense output)',
+      wallMs: performance.now() - t0,
+      rhsEvaluations: r.rhsEvaluations,
+      rhsPerPeriod: r.rhsEvaluations / periods,
+      finalAngle: r.y[0],
+      finalRate: r.y[1],
+    };
+  });
+}
+
+/** Full simulateMotion of the benchmark case (dense output, strobe, slow motion, outcome), best of `repeats`. */
+export function benchMotion(repeats = 3): IntegratorFigures {
+  const params = benchmarkCase();
+  return best(repeats, () => {
+    const t0 = performance.now();
+    const r = simulateMotion(params);
+    return {
+      label: 'full motion run (dense output, strobe, slow motion)',
+      wallMs: performance.now() - t0,
+      rhsEvaluations: r.rhsEvaluations,
+      rhsPerPeriod: r.summary.rhsPerDrivePeriod,
+      finalAngle: r.summary.finalTheta,
+      finalRate: r.summary.finalRate,
+    };
+  });
+}
+
+/** Peak heap growth during a motion run of `duration` seconds (sampled at each progress report), and result size. */
+export function motionMemory(duration: number): { duration: number; peakHeapGrowth: number; resultBytes: number } {
+  const params = benchmarkCase(duration);
+  const base = process.memoryUsage().heapUsed;
+  let peak = 0;
+  const r = simulateMotion(params, { onProgress: () => (peak = Math.max(peak, process.memoryUsage().heapUsed - base)) });
+  const arrays = [r.series.t, r.series.theta, r.series.rate, r.series.energy, r.series.pivotForce, r.series.pivotPosition, r.strobe.t, r.strobe.theta, r.strobe.rate, r.slow.t, r.slow.theta, r.slow.rate];
+  return { duration, peakHeapGrowth: peak, resultBytes: arrays.reduce((s, a) => s + a.byteLength, 0) };
+}
+
+function printFigures(f: IntegratorFigures): void {
+  const ref = BENCHMARK_REFERENCE;
+  const angleDiff = Math.abs(Math.abs(f.finalAngle) - ref.finalAngle);
+  const rateDiff = Math.abs(Math.abs(f.finalRate) - ref.finalRate);
+  const verdict = f.rhsPerPeriod <= ref.dop853RhsPerPeriod ? 'at or below' : 'ABOVE';
+  console.log(`${f.label}:`);
+  console.log(`  wall time            ${f.wallMs.toFixed(0)} ms (best of 3)`);
+  console.log(`  RHS evaluations      ${f.rhsEvaluations} = ${f.rhsPerPeriod.toFixed(1)} per drive period (${verdict} DOP853's ~${ref.dop853RhsPerPeriod})`);
+  console.log(`  final angle          |${f.finalAngle.toExponential(6)}| vs ${ref.finalAngle.toExponential(5)} rad: difference ${angleDiff.toExponential(2)} (target < 1e-9)`);
+  console.log(`  final rate           |${f.finalRate.toExponential(6)}| vs ${ref.finalRate.toExponential(5)} rad/s: difference ${rateDiff.toExponential(2)}`);
+}
+
+export function run(): void {
+  // warm the JIT so timings describe steady code
+  simulateMotion(benchmarkCase(20));
+  printFigures(benchIntegrator());
+  printFigures(benchMotion());
+  const short = motionMemory(50);
+  const long = motionMemory(200);
+  console.log('memory (motion runs, output budget 4000 points):');
+  for (const m of [short, long]) {
+    console.log(`  ${String(m.duration).padStart(4)} s run: peak heap growth ${mb(m.peakHeapGrowth)}, result arrays ${mb(m.resultBytes)}`);
+  }
+  const usage = process.memoryUsage();
+  console.log(`  process now: rss ${mb(usage.rss)}, heap ${mb(usage.heapUsed)}; peak rss ${mb(process.resourceUsage().maxRSS * 1024)}`);
+}
