@@ -78,4 +78,10 @@ describe('simulateMotion', () => {
     const r = simulateMotion({ ...c, drive: { ...c.drive, amplitude: 0.004 }, damping: { ...c.damping, viscousRatio: 0.2 }, run: { ...c.run, duration: 10 } });
     expect(r.outcome, r.outcomeNumbers.reason).toBe('falls');
   });
+
+  it('refuses an impossible case with its field and reason instead of computing NaN', () => {
+    const c = templateCase();
+    expect(() => simulateMotion({ ...c, drive: { ...c.drive, amplitude: 0.05, waveform: { kind: 'crank-slider', connectingRod: 0.04 } } })).toThrow(/drive\.waveform\.connectingRod: connecting rod/);
+    expect(() => simulateMotion({ ...c, start: { angle: Number.NaN, rate: 0 } })).toThrow(/start\.angle/);
+  });
 });

@@ -1,5 +1,6 @@
 import type { CaseParams } from '../case/case-schema';
 import { caseDigest } from '../case/canonical';
+import { assertCase } from '../case/validate';
 import { classifyMotion, type MotionOutcome, type OutcomeNumbers } from './classify';
 import { buildModel, rhs, type RigModel } from './equations';
 import { integrate, rigDerivative, type IntegrateStatus } from './integrate';
@@ -112,9 +113,11 @@ function energy(model: RigModel, theta: number, rate: number): number {
  * slow motion as the mean of 16 equally spaced phase samples per drive period (trapezoid rule on a periodic
  * integrand). Memory is bounded by run.outputPoints whatever the run length: when there are more drive periods than
  * output points, every k-th period is kept. The outcome comes from `classifyMotion` on the slow motion after
- * run.transientFraction of the run.
+ * run.transientFraction of the run. Throws an Error naming every offending field for an invalid case.
  */
-export function simulateMotion(params: CaseParams, hooks: MotionHooks = {}): MotionResult {
+export function simulateMotion(input: CaseParams, hooks: MotionHooks = {}): MotionResult {
+  // validated again here: sweeps build cases with setField, and an impossible one must fail loudly, not yield NaN
+  const params = assertCase(input);
   const model = buildModel(params);
   const drive = model.drive;
   const run = params.run;
