@@ -74,7 +74,7 @@ export interface FloquetAnalysis {
   uprightIsEquilibrium: boolean;
   /** The upright (or the periodic motion near it); null when Newton finds none near the upright. */
   upright: PeriodicMotion | null;
-  /** Verdict of the upright: holds when its largest |multiplier| < 1. */
+  /** Verdict of the upright: holds when its largest |multiplier| is below 1 (or within 1e-7 of 1, undamped). */
   uprightHolds: boolean;
   /** Every distinct periodic motion found from a ring of starts (upright, tilted, hanging). */
   periodicMotions: PeriodicMotion[];
@@ -122,7 +122,7 @@ export function floquetAnalysis(params: CaseParams, options: FloquetOptions = {}
     period: sys.period,
     uprightIsEquilibrium: vertical,
     upright,
-    uprightHolds: upright !== null && upright.maxMultiplier < 1,
+    uprightHolds: upright !== null && upright.stable,
     periodicMotions,
     amplitudeLimits,
     frequencyLimits,

@@ -11,7 +11,7 @@ import type { CaseParams } from '../case/case-schema';
 import { caseDigest, valueDigest } from '../case/canonical';
 import { parseCase } from '../case/validate';
 import { axisValues, defaultChartGrid, stabilityChart, type Grid2, type StabilityChart } from './chart';
-import { floquetAnalysis, type FloquetAnalysis } from './floquet';
+import { floquetAnalysis, MULTIPLIER_UNIT_TOLERANCE, type FloquetAnalysis } from './floquet';
 import { simulateMotion, type MotionHooks, type MotionResult } from './motion';
 import {
   assembleSweep, basinMapRows, defaultBasinGrid, outcomeMapRows, sweepPoints, sweepThresholds, thresholdBrackets,
@@ -192,7 +192,7 @@ export function summariseRun(result: RunResult): RunSummary {
       let holding = 0;
       let least = Infinity;
       for (const v of c.maxMultiplier) {
-        if (v < 1) holding++;
+        if (v < 1 + MULTIPLIER_UNIT_TOLERANCE) holding++;
         least = Math.min(least, v);
       }
       return {

@@ -14,7 +14,7 @@ import { parseCase } from '../case/validate';
 import { bodyProperties } from './body';
 import { axisValues, type Grid2 } from './chart';
 import type { MotionOutcome } from './classify';
-import { uprightMaxMultiplier } from './floquet';
+import { MULTIPLIER_UNIT_TOLERANCE, uprightMaxMultiplier } from './floquet';
 import { EngineCancelledError, simulateMotion } from './motion';
 import { ENGINE_VERSION } from './version';
 
@@ -151,15 +151,19 @@ export function thresholdBrackets(points: readonly SweepPoint[]): ThresholdBrack
     if (a.outcome !== null && b.outcome !== null && a.outcome !== b.outcome) {
       out.push({ kind: 'outcome', lo: a.value, hi: b.value, loOutcome: a.outcome, hiOutcome: b.outcome });
     }
-    if (a.maxMultiplier !== null && b.maxMultiplier !== null && a.maxMultiplier < 1 !== b.maxMultiplier < 1) {
+    if (a.maxMultiplier !== null && b.maxMultiplier !== null && holdsBy(a.maxMultiplier) !== holdsBy(b.maxMultiplier)) {
       out.push({ kind: 'multiplier', lo: a.value, hi: b.value, loOutcome: verdict(a.maxMultiplier), hiOutcome: verdict(b.maxMultiplier) });
     }
   }
   return out;
 }
 
+function holdsBy(maxMultiplier: number): boolean {
+  return maxMultiplier < 1 + MULTIPLIER_UNIT_TOLERANCE;
+}
+
 function verdict(maxMultiplier: number): MotionOutcome {
-  return maxMultiplier < 1 ? 'holds-upright' : 'falls';
+  return holdsBy(maxMultiplier) ? 'holds-upright' : 'falls';
 }
 
 /**

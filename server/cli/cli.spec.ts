@@ -1,0 +1,127 @@
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { demoRigCase, parseCase, templateCase } from '../../shared/case';
+import { mathieuA, mathieuB } from '../../shared/engine/mathieu';
+
+const root = join(__dirname, '..', '..');
+const dir = mkdtempSync(join(tmpdir(), 'qp-cli-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+function cli(...args: string[]): { code: number | null; stdout: string; stderr: string } {
+  const r = spawnSync(process.execPath, ['--import', 'tsx', 'server/cli/main.ts', ...args], {
+    cwd: root,
+    encoding: 'utf8',
+    timeout: 120_000,
+  });
+  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
+}
+
+function writeCase(name: string, value: unknown): string {
+  const path = join(dir, name);
+  writeFileSync(path, JSON.stringify(value));
+  return path;
+}
+
+function shortTemplate(duration: number): string {
+  const c = templateCase();
+  return writeCase(`template-${duration}.json`, { ...c, run: { ...c.run, duration, outputPoints: 500 } });
+}
+
+function json(text: string): Record<string, unknown> {
+  return JSON.parse(text) as Record<string, unknown>;
+}
+
+describe('cli', () => {
+  it('template prints a complete valid case', () => {
+    const r = cli('template');
+    expect(r.code).toBe(0);
+    expect(parseCase(JSON.parse(r.stdout)).ok).toBe(true);
+    const demo = cli('template', '--demo', 'shaker-tall-rod');
+    expect(json(demo.stdout)['drive']).toEqual(demoRigCase('shaker-tall-rod')?.drive);
+  }, 60_000);
+
+  it('margins of the undamped template finds the upright band a0(q) < A < b1(q) (A&S ch. 20)', () => {
+    const c = templateCase();
+    const path = writeCase('undamped.json', { ...c, damping: { ...c.damping, viscousRatio: 0 } });
+    const r = cli('margins', path, '--record');
+    expect(r.code, r.stderr).toBe(0);
+    const summary = json(r.stdout)['summary'] as Record<string, number | boolean | null>;
+    expect(summary['uprightHolds']).toBe(true);
+    const lower = Number(summary['amplitudeLower']);
+    const upper = Number(summary['amplitudeUpper']);
+    const A = -4 * c.gravity / (0.2 * (2 * Math.PI * 40) ** 2);
+    // At the limits the Mathieu point sits on a0 and b1: A&S Table 20.1 characteristic curves.
+    expect(Math.abs(mathieuA(0, 2 * lower / 0.2) - A)).toBeLessThan(1e-6);
+    expect(Math.abs(mathieuB(1, 2 * upper / 0.2) - A)).toBeLessThan(1e-6);
+  }, 60_000);
+
+  it('motion --record then check confirms (exit 0) and a tampered record is disputed (exit 1)', () => {
+    const path = shortTemplate(2);
+    const run = cli('motion', path, '--record');
+    expect(run.code, run.stderr).toBe(0);
+    const record = json(run.stdout);
+    expect((record['summary'] as Record<string, unknown>)['outcome']).toBe('holds-upright');
+    const runPath = join(dir, 'run.json');
+    writeFileSync(runPath, run.stdout);
+    const ok = cli('check', runPath);
+    expect(ok.code, ok.stderr).toBe(0);
+    expect(json(ok.stdout)['digestMatches']).toBe(true);
+    const summary = record['summary'] as Record<string, number>;
+    const tampered = { ...record, summary: { ...summary, finalTheta: summary['finalTheta'] * 1.001 + 1e-6 } };
+    const badPath = join(dir, 'tampered.json');
+    writeFileSync(badPath, JSON.stringify(tampered));
+    const bad = cli('check', badPath);
+    expect(bad.code).toBe(1);
+    expect(bad.stderr).toMatch(/finalTheta/);
+  }, 120_000);
+
+  it('sweep --csv on 2 workers shows the upright lost at low frequency', () => {
+    const r = cli('sweep', shortTemplate(2), '--field', 'drive.frequency', '--from', '20', '--to', '50', '--steps', '4', '--csv', '--workers', '2');
+    expect(r.code, r.stderr).toBe(0);
+    const lines = r.stdout.trim().split('\n');
+    expect(lines[0]).toMatch(/^drive\.frequency,outcome,max_abs_mu/);
+    expect(lines).toHaveLength(5);
+    expect(lines[1]).toMatch(/^20,falls,/);
+    expect(lines[4]).toMatch(/^50,holds-upright,/);
+    expect(r.stderr).toMatch(/100%/);
+  }, 120_000);
+
+  it('chart marks the case and counts holding cells', () => {
+    const r = cli('chart', shortTemplate(2), '--n', '20');
+    expect(r.code, r.stderr).toBe(0);
+    const out = json(r.stdout);
+    const result = out['result'] as { maxMultiplier: Array<number | string>; caseMark: { x: number; y: number } };
+    expect(result.maxMultiplier).toHaveLength(400);
+    expect(result.caseMark).toMatchObject({ x: 40, y: 0.01 });
+    const holding = (out['record'] as { summary: Record<string, number> }).summary['holdingCells'];
+    expect(holding).toBeGreaterThan(0);
+    expect(holding).toBeLessThan(400);
+  }, 120_000);
+
+  it('basin over start angles tells holding starts from falling ones', () => {
+    const r = cli('basin', shortTemplate(2), '--n', '3', '--angle-from', '-0.2', '--angle-to', '3', '--rate-from', '0', '--rate-to', '0', '--csv');
+    expect(r.code, r.stderr).toBe(0);
+    const lines = r.stdout.trim().split('\n');
+    expect(lines).toHaveLength(10);
+    expect(lines[1]).toMatch(/^-0\.2,0,holds-upright/);
+    expect(lines[3]).toMatch(/^3,0,falls/);
+  }, 120_000);
+
+  it('refuses a bad case file with the field and the reason (exit 2)', () => {
+    const c = templateCase();
+    const path = writeCase('bad.json', { ...c, body: { ...c.body, length: -0.2 } });
+    const r = cli('motion', path);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/body\.length/);
+    expect(r.stdout).toBe('');
+    const missing = cli('margins', join(dir, 'missing.json'));
+    expect(missing.code).toBe(2);
+    expect(missing.stderr).toMatch(/cannot read file/);
+    const unknown = cli('frobnicate', path);
+    expect(unknown.code).toBe(2);
+    expect(readFileSync(path, 'utf8')).toContain('-0.2');
+  }, 60_000);
+});

@@ -1,0 +1,53 @@
+import { describe, expect, it } from 'vitest';
+import { setField, templateCase } from '../case';
+import {
+  compareSummaries, computeRun, digestView, makeRunRecord, parseRunRecord, recheckRun, resultDigest, type RunSettings,
+} from './run-record';
+
+describe('run records', () => {
+  const c = templateCase();
+  const settings: RunSettings = { kind: 'margins', relTolerance: 1e-6 };
+
+  it('gives the same digest on a rerun and a different one when the case changes', () => {
+    const a = resultDigest(computeRun(c, settings));
+    const b = resultDigest(computeRun(c, settings));
+    const other = resultDigest(computeRun(setField(c, 'drive.frequency', 41), settings));
+    expect(a).toMatch(/^[0-9a-f]{64}$/);
+    expect(b).toBe(a);
+    expect(other).not.toBe(a);
+  });
+
+  it('rounds numbers to 9 significant digits and writes non-finite values as text', () => {
+    expect(digestView({ x: 0.1234567891234, y: Infinity, z: new Float64Array([1 / 3]) })).toEqual({
+      x: 0.123456789, y: 'Infinity', z: [0.333333333],
+    });
+  });
+
+  it('confirms a stored record and disputes one whose numbers were changed beyond the tolerance', () => {
+    const record = JSON.parse(JSON.stringify(makeRunRecord(c, settings, computeRun(c, settings)))) as unknown;
+    const parsed = parseRunRecord(record);
+    if (!parsed.ok) throw new Error(parsed.message);
+    const report = recheckRun(parsed.value);
+    expect(report.ok).toBe(true);
+    expect(report.digestMatches).toBe(true);
+    const lower = Number(parsed.value.summary['frequencyLower']);
+    const changed = { ...parsed.value, summary: { ...parsed.value.summary, frequencyLower: lower * (1 + 1e-5) } };
+    const disputed = recheckRun(changed);
+    expect(disputed.ok).toBe(false);
+    expect(disputed.compared.filter((x) => !x.ok).map((x) => x.key)).toEqual(['frequencyLower']);
+  });
+
+  it('compares numbers within the relative tolerance and revives non-finite values stored as text', () => {
+    const rows = compareSummaries(
+      { a: 1, b: 'Infinity', c: 'falls', d: 2 },
+      { a: 1 + 5e-7, b: Infinity, c: 'falls', d: 2.01 },
+      1e-6,
+    );
+    expect(rows.map((r) => [r.key, r.ok])).toEqual([['a', true], ['b', true], ['c', true], ['d', false]]);
+  });
+
+  it('refuses a record with an invalid case, naming the field', () => {
+    const bad = parseRunRecord({ kind: 'motion', settings: { kind: 'motion' }, summary: {}, resultDigest: 'x', engineVersion: '1', params: { ...c, gravity: -1 } });
+    expect(bad).toMatchObject({ ok: false, field: 'params.gravity' });
+  });
+});
