@@ -78,6 +78,18 @@ describe('stabilityChart', () => {
     expect(Math.abs(a - ref) / ref).toBeLessThan(1e-3);
   });
 
+  it('gives the Mathieu coordinates of the axes, A = -4g/(L w^2) and q = 2a/L (A&S ch. 20)', () => {
+    const c = templateCase();
+    const grid = defaultChartGrid(c, 5);
+    const chart = assembleChart(c, grid, new Float64Array(25));
+    const w = 2 * Math.PI * chart.xValues[2];
+    expect(Math.abs((chart.mathieu?.A[2] ?? NaN) + 4 * c.gravity / (0.2 * w * w))).toBeLessThan(1e-12);
+    expect(Math.abs((chart.mathieu?.q[4] ?? NaN) - 2 * chart.yValues[4] / 0.2)).toBeLessThan(1e-12);
+    const crank = assembleChart(DEMO_RIGS[0].params, defaultChartGrid(DEMO_RIGS[0].params, 5), new Float64Array(25));
+    expect(crank.mathieu).toBeNull();
+    expect(Array.from(crank.averagedLowerLimit?.amplitude ?? []).every((a) => a > 0)).toBe(true);
+  });
+
   it('computes a 200 x 200 chart of a sine drive in well under the few-seconds budget on one core', () => {
     const c = templateCase();
     const t0 = performance.now();

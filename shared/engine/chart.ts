@@ -14,7 +14,10 @@
  */
 import type { CaseParams } from '../case/case-schema';
 import { getField, setField } from '../case/case-fields';
+import { averagedLowerAmplitude } from './averaged';
+import { bodyProperties } from './body';
 import { buildModel, jacobian } from './equations';
+import { mathieuMapping } from './mathieu';
 import { driveShape } from './drive';
 import { magnusMonodromySampled, richardson4, spectralRadius2 } from './monodromy';
 import { uprightMaxMultiplier } from './floquet';
@@ -51,6 +54,11 @@ export interface StabilityChart {
    * axis; null unless the axes are drive frequency and amplitude with a vertical drive.
    */
   averagedLowerLimit: { frequency: Float64Array; amplitude: Float64Array } | null;
+  /**
+   * The same axes in Mathieu form for a vertical sine drive: A = -4g/(L w^2) per column, q = 2a/L per row, so the
+   * chart can be drawn over (A, q) with the characteristic curves a0(q), b1(q); null otherwise.
+   */
+  mathieu: { A: Float64Array; q: Float64Array } | null;
   /** 'magnus' for the fast linear path, 'general' for per-cell Floquet analysis. */
   method: 'magnus' | 'general';
   /** Magnus steps per drive period (coarse pass; the Richardson pass uses twice as many); 0 for 'general'. */
@@ -201,16 +209,20 @@ export function assembleChart(params: CaseParams, grid: Grid2, maxMultiplier: Fl
   const magnus = usesMagnus(steady, grid);
   const xValues = axisValues(grid.x);
   let averagedLowerLimit: StabilityChart['averagedLowerLimit'] = null;
+  let mathieu: StabilityChart['mathieu'] = null;
   if (magnus) {
-    // <s'^2> = k a^2 w^2 for the case's waveform (k = 1/2 for a sine); the averaged upright needs <s'^2> > g L.
-    const model = buildModel(steady);
-    const a = Math.max(steady.drive.amplitude, 1e-12);
-    const k = model.drive.meanSquareVelocity / (a * a * model.drive.omega * model.drive.omega);
+    // Averaged upright threshold <s'^2> = g L for the case's waveform (exact crank-slider shape per frequency).
     const amplitude = new Float64Array(xValues.length);
-    for (let i = 0; i < xValues.length; i++) {
-      amplitude[i] = Math.sqrt((model.g * model.L) / k) / (2 * Math.PI * xValues[i]);
-    }
+    for (let i = 0; i < xValues.length; i++) amplitude[i] = averagedLowerAmplitude(steady, xValues[i]) ?? NaN;
     averagedLowerLimit = { frequency: Float64Array.from(xValues), amplitude };
+    if (steady.drive.waveform.kind === 'sine') {
+      const L = bodyProperties(steady.body, steady.gravity).equivalentLength;
+      const ys = axisValues(grid.y);
+      mathieu = {
+        A: Float64Array.from(xValues, (f) => mathieuMapping(L, steady.gravity, 2 * Math.PI * f, 0).A),
+        q: Float64Array.from(ys, (a) => mathieuMapping(L, steady.gravity, 1, a).q),
+      };
+    }
   }
   return {
     engineVersion: ENGINE_VERSION,
@@ -224,6 +236,7 @@ export function assembleChart(params: CaseParams, grid: Grid2, maxMultiplier: Fl
       maxMultiplier: uprightMaxMultiplier(steady),
     },
     averagedLowerLimit,
+    mathieu,
     method: magnus ? 'magnus' : 'general',
     stepsPerPeriod: magnus ? chartSteps(steady, grid) : 0,
   };
