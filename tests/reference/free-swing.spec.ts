@@ -44,7 +44,8 @@ describe('large-amplitude free swing vs elliptic functions (Abramowitz & Stegun 
         if (a < 0 !== b < 0) crossings.push(t[i - 1] + ((t[i] - t[i - 1]) * a) / (a - b));
       }
       const period = (2 * (crossings[crossings.length - 1] - crossings[0])) / (crossings.length - 1);
-      expectRelative(period, periodRef, 1e-7, `period vs 4 sqrt(L/g) K(m) at theta0 = ${theta0} (A&S ch. 17)`);
+      // the crossing times carry the global error of about ten swings, a few hundred times the per-step tolerance
+      expectRelative(period, periodRef, 1e3 * rtol, `period vs 4 sqrt(L/g) K(m) at theta0 = ${theta0} (A&S ch. 17)`);
     });
   }
 
