@@ -21,6 +21,15 @@ import { signInRoute, signOutRoute } from './routes/auth-routes';
 import { healthRoute } from './routes/health-routes';
 import { acceptInvitationRoute, addMemberRoute, changeRoleRoute, membersRoute, myLabsRoute, removeMemberRoute } from './routes/lab-routes';
 import { meRoute } from './routes/me-routes';
+import { requireCaseRole } from './middleware/case-access';
+import { requireSiteAdmin } from './middleware/site-admin';
+import { outboxRoute, sinkMailsRoute } from './routes/admin-routes';
+import { deleteTraceRoute, listTracesRoute, receiveTraceFile, traceDownloadRoute, traceRoute, uploadTraceRoute } from './routes/bench-trace-routes';
+import { createLinkRoute, listLinksRoute, publicLinkRoute, revokeLinkRoute } from './routes/case-link-routes';
+import {
+  addCommentRoute, auditRoute, caseRoute, commentsRoute, createCaseRoute, duplicateCaseRoute, listCasesRoute, patchCaseRoute,
+  recheckRequestRoute, recheckRoute, revisionRoute, saveRevisionRoute, storeRunRoute,
+} from './routes/case-routes';
 import { createMailer, type SendMail } from './services/mailer';
 
 export interface AppOptions {
@@ -91,6 +100,11 @@ export function createApp(options: AppOptions): Express {
   const api = express.Router();
   const owner = requireLabRole('owner');
   const anyRole = requireLabRole(...ANY_LAB_ROLE);
+  const labAuthor = requireLabRole('owner', 'analyst');
+  const caseReader = requireCaseRole(...ANY_LAB_ROLE);
+  const caseAuthor = requireCaseRole('owner', 'analyst');
+  const caseCommenter = requireCaseRole('owner', 'analyst', 'reviewer');
+  const caseReviewer = requireCaseRole('owner', 'reviewer');
   const routes: Array<[method: 'get' | 'post' | 'patch' | 'delete', path: string, ...handlers: RequestHandler[]]> = [
     ['get', '/health', healthRoute(sequelize)],
     ['post', '/auth/sign-in', signInLimiter, signInRoute(config)],
@@ -102,6 +116,31 @@ export function createApp(options: AppOptions): Express {
     ['post', '/labs/:labId/members', authenticate, owner, addMemberRoute(sequelize, config, sendMail)],
     ['patch', '/labs/:labId/members/:userId', authenticate, owner, changeRoleRoute(sequelize)],
     ['delete', '/labs/:labId/members/:userId', authenticate, owner, removeMemberRoute(sequelize)],
+    // case library (docs/api.md has the role matrix)
+    ['get', '/labs/:labId/cases', authenticate, anyRole, listCasesRoute],
+    ['post', '/labs/:labId/cases', authenticate, labAuthor, createCaseRoute(sequelize)],
+    ['get', '/cases/:caseId', authenticate, caseReader, caseRoute],
+    ['patch', '/cases/:caseId', authenticate, caseAuthor, patchCaseRoute(sequelize)],
+    ['post', '/cases/:caseId/duplicate', authenticate, caseAuthor, duplicateCaseRoute(sequelize)],
+    ['get', '/cases/:caseId/audit', authenticate, caseReader, auditRoute],
+    ['post', '/cases/:caseId/revisions', authenticate, caseAuthor, saveRevisionRoute(sequelize)],
+    ['get', '/cases/:caseId/revisions/:rev', authenticate, caseReader, revisionRoute],
+    ['post', '/cases/:caseId/revisions/:rev/runs', authenticate, caseAuthor, storeRunRoute(sequelize)],
+    ['get', '/cases/:caseId/revisions/:rev/comments', authenticate, caseReader, commentsRoute],
+    ['post', '/cases/:caseId/revisions/:rev/comments', authenticate, caseCommenter, addCommentRoute(sequelize)],
+    ['post', '/cases/:caseId/revisions/:rev/recheck-request', authenticate, caseAuthor, recheckRequestRoute(sequelize, config)],
+    ['post', '/cases/:caseId/revisions/:rev/rechecks', authenticate, caseReviewer, recheckRoute(sequelize, config)],
+    ['get', '/cases/:caseId/links', authenticate, caseReader, listLinksRoute],
+    ['post', '/cases/:caseId/links', authenticate, caseAuthor, createLinkRoute(sequelize, config)],
+    ['delete', '/cases/:caseId/links/:linkId', authenticate, caseAuthor, revokeLinkRoute(sequelize)],
+    ['get', '/links/:token', publicLinkRoute],
+    ['get', '/cases/:caseId/bench-traces', authenticate, caseReader, listTracesRoute],
+    ['post', '/cases/:caseId/bench-traces', authenticate, caseAuthor, receiveTraceFile, uploadTraceRoute(sequelize)],
+    ['get', '/cases/:caseId/bench-traces/:traceId', authenticate, caseReader, traceRoute],
+    ['get', '/cases/:caseId/bench-traces/:traceId/download', authenticate, caseReader, traceDownloadRoute],
+    ['delete', '/cases/:caseId/bench-traces/:traceId', authenticate, caseAuthor, deleteTraceRoute(sequelize)],
+    ['get', '/admin/outbox', authenticate, requireSiteAdmin, outboxRoute],
+    ['get', '/admin/mails', authenticate, requireSiteAdmin, sinkMailsRoute(config)],
   ];
   for (const [method, path, ...handlers] of routes) api[method](path, ...handlers);
   api.use(apiNotFound);

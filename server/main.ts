@@ -1,13 +1,15 @@
 /**
  * Starts the HTTP server: `tsx server/main.ts` in development, `node dist/server/server/main.js` in production.
- * With QP_MAIL_SINK=true it also runs the local mail sink. SIGINT/SIGTERM close the server, the sink, then the
- * database pool.
+ * With QP_MAIL_SINK=true it also runs the local mail sink; the outbox sender loop always runs. SIGINT/SIGTERM close
+ * the server, the outbox loop, the sink, then the database pool.
  */
 import { createApp } from './app';
 import { config } from './config';
 import { createSequelize } from './db/sequelize';
 import { createLogger } from './logger';
 import { startMailSink, type MailSink } from './scripts/mail-sink';
+import { createMailer } from './services/mailer';
+import { startOutboxSender } from './services/outbox-service';
 
 async function main(): Promise<void> {
   const cfg = config();
@@ -19,6 +21,7 @@ async function main(): Promise<void> {
     logger.info({ smtp: `${cfg.smtpHost}:${sink.port}` }, 'local mail sink listening');
   }
   const app = createApp({ config: cfg, sequelize, logger });
+  const outbox = startOutboxSender({ sequelize, sendMail: createMailer(cfg), logger });
   const server = app.listen(cfg.port, cfg.host, () => {
     const address = server.address();
     const port = typeof address === 'object' && address ? address.port : cfg.port;
@@ -34,7 +37,10 @@ async function main(): Promise<void> {
     closing = true;
     logger.info({ signal }, 'shutting down');
     server.close(() => {
-      Promise.allSettled([sink?.close(), sequelize.close()]).finally(() => process.exit(0));
+      outbox
+        .stop()
+        .finally(() => Promise.allSettled([sink?.close(), sequelize.close()]))
+        .finally(() => process.exit(0));
     });
     server.closeIdleConnections();
     setTimeout(() => process.exit(1), 10_000).unref();

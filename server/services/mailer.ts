@@ -5,6 +5,8 @@ export interface OutgoingMail {
   to: string;
   subject: string;
   text: string;
+  /** optional HTML alternative to `text` */
+  html?: string;
 }
 
 export type SendMail = (mail: OutgoingMail) => Promise<void>;

@@ -6,9 +6,21 @@ import { Membership } from './membership';
 import { RevokedToken } from './revoked-token';
 import { SinkMail } from './sink-mail';
 import { User } from './user';
+import { BenchTrace } from './bench-trace';
+import { CaseLink } from './case-link';
+import { CaseRecord } from './case-record';
+import { Comment } from './comment';
+import { initLibraryModels } from './library';
+import { OutboxMail } from './outbox-mail';
+import { Recheck } from './recheck';
+import { Revision } from './revision';
+import { Run } from './run';
 
 export { AuditEvent, Invitation, Lab, Membership, RevokedToken, SinkMail, User };
 export { LAB_ROLES, type LabRole } from './roles';
+export { BenchTrace, CaseLink, CaseRecord, Comment, OutboxMail, Recheck, Revision, Run };
+export type { TraceSeries } from './bench-trace';
+export { RECHECK_STATES, type RecheckState } from './recheck-states';
 
 /** Binds every model to `sequelize` and declares the associations. Call once per process. */
 export function initModels(sequelize: Sequelize): void {
@@ -18,4 +30,5 @@ export function initModels(sequelize: Sequelize): void {
   User.hasMany(Membership, { foreignKey: 'userId', as: 'memberships' });
   Lab.hasMany(Membership, { foreignKey: 'labId', as: 'memberships' });
   Invitation.belongsTo(Lab, { foreignKey: 'labId', as: 'lab' });
+  initLibraryModels(sequelize);
 }

@@ -1,0 +1,49 @@
+import type { RequestHandler } from 'express';
+import type { Sequelize } from 'sequelize';
+import { z } from 'zod';
+import type { Config } from '../config';
+import { currentUser } from '../middleware/auth';
+import { caseAccess } from '../middleware/case-access';
+import { pageQuery } from '../middleware/paging';
+import { parseInput } from '../middleware/validate';
+import { MAX_LINK_DAYS, createLink, listLinks, readLink, revokeLink } from '../services/case-link-service';
+
+const createBody = z.object({
+  revision: z.number().int().min(1),
+  expiresInDays: z.number().int().min(1).max(MAX_LINK_DAYS).default(30),
+});
+const linkParam = z.object({ linkId: z.uuid() });
+const tokenParam = z.object({ token: z.string().regex(/^[A-Za-z0-9_-]{20,100}$/) });
+
+export function createLinkRoute(sequelize: Sequelize, config: Config): RequestHandler {
+  return async (req, res) => {
+    const body = parseInput(createBody, req.body);
+    const user = currentUser(req);
+    res.status(201).json(await createLink(sequelize, config, { id: user.id, name: user.name }, caseAccess(req), body));
+  };
+}
+
+export const listLinksRoute: RequestHandler = async (req, res) => {
+  const page = parseInput(pageQuery, req.query, 'query');
+  res.json(await listLinks(caseAccess(req).caseId, page));
+};
+
+export function revokeLinkRoute(sequelize: Sequelize): RequestHandler {
+  return async (req, res) => {
+    const { linkId } = parseInput(linkParam, req.params, 'path');
+    const user = currentUser(req);
+    res.json(await revokeLink(sequelize, { id: user.id, name: user.name }, caseAccess(req), linkId));
+  };
+}
+
+/** Public, no sign-in: the revision behind a case link, read-only. */
+export const publicLinkRoute: RequestHandler = async (req, res) => {
+  const parsed = tokenParam.safeParse(req.params);
+  if (!parsed.success) {
+    res.status(404).json({ error: { code: 'link_not_found', message: 'This case link does not exist.', field: 'token' } });
+    return;
+  }
+  res.setHeader('Cache-Control', 'no-store');
+  res.setHeader('Referrer-Policy', 'no-referrer');
+  res.json(await readLink(parsed.data.token));
+};

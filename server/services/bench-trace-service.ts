@@ -1,0 +1,113 @@
+/**
+ * Bench traces of a case: measured angle traces uploaded as CSV, kept verbatim for download and parsed into SI
+ * series (time s, angle rad, pivot position m) for the Bench tab.
+ */
+import type { Sequelize } from 'sequelize';
+import { AppError } from '../app-error';
+import { BenchTrace, User, type TraceSeries } from '../db/models';
+import type { CaseAccess } from '../middleware/case-access';
+import { offsetOf, type Paged } from '../middleware/paging';
+import { parseTraceCsv, type AngleUnit } from './bench-csv';
+import { audit, personRef, type Actor, type PersonRef } from './case-service';
+
+export interface TraceView {
+  id: string;
+  label: string;
+  fileName: string;
+  sizeBytes: number;
+  rows: number;
+  columns: string[];
+  angleUnit: AngleUnit;
+  duration: number;
+  createdAt: string;
+  author: PersonRef | null;
+}
+
+export interface TraceDetail extends TraceView {
+  series: TraceSeries;
+}
+
+const withAuthor = { model: User, as: 'author', attributes: ['id', 'name'] };
+const META = ['id', 'caseId', 'label', 'fileName', 'sizeBytes', 'rows', 'columns', 'angleUnit', 'duration', 'createdAt', 'authorId'];
+
+function traceView(t: BenchTrace): TraceView {
+  return {
+    id: t.id,
+    label: t.label,
+    fileName: t.fileName,
+    sizeBytes: t.sizeBytes,
+    rows: t.rows,
+    columns: t.columns,
+    angleUnit: t.angleUnit,
+    duration: t.duration,
+    createdAt: t.createdAt.toISOString(),
+    author: personRef(t.author),
+  };
+}
+
+export async function uploadTrace(
+  sequelize: Sequelize,
+  actor: Actor,
+  access: CaseAccess,
+  file: { originalName: string; text: string; sizeBytes: number },
+  input: { label?: string | undefined; angleUnit?: AngleUnit | undefined },
+): Promise<TraceView> {
+  const parsed = parseTraceCsv(file.text, input.angleUnit);
+  return sequelize.transaction(async (transaction) => {
+    const trace = await BenchTrace.create(
+      {
+        caseId: access.caseId,
+        label: input.label ?? file.originalName.replace(/\.csv$/i, ''),
+        fileName: file.originalName,
+        sizeBytes: file.sizeBytes,
+        rows: parsed.rows,
+        columns: parsed.columns,
+        angleUnit: parsed.angleUnit,
+        duration: parsed.duration,
+        series: parsed.series,
+        csv: file.text,
+        authorId: actor.id,
+      },
+      { transaction },
+    );
+    await audit(transaction, actor.id, access.labId, 'bench_trace.uploaded', access.caseId, { traceId: trace.id, fileName: trace.fileName, rows: trace.rows });
+    return { ...traceView(trace), author: { id: actor.id, name: actor.name } };
+  });
+}
+
+export async function listTraces(caseId: string, page: { page: number; pageSize: number }): Promise<Paged<TraceView>> {
+  const { rows, count } = await BenchTrace.findAndCountAll({
+    where: { caseId },
+    attributes: META,
+    include: [withAuthor],
+    order: [['createdAt', 'DESC'], ['id', 'ASC']],
+    limit: page.pageSize,
+    offset: offsetOf(page),
+  });
+  return { items: rows.map(traceView), total: count, page: page.page, pageSize: page.pageSize };
+}
+
+async function findTrace(caseId: string, traceId: string, attributes?: string[]): Promise<BenchTrace> {
+  const trace = await BenchTrace.findOne({ where: { id: traceId, caseId }, include: [withAuthor], ...(attributes ? { attributes } : {}) });
+  if (!trace) throw new AppError('trace_not_found', 'This case has no such bench trace.', 404, 'traceId');
+  return trace;
+}
+
+export async function traceDetail(caseId: string, traceId: string): Promise<TraceDetail> {
+  const trace = await findTrace(caseId, traceId, [...META, 'series']);
+  return { ...traceView(trace), series: trace.series };
+}
+
+export async function traceCsv(caseId: string, traceId: string): Promise<{ fileName: string; csv: string }> {
+  const trace = await findTrace(caseId, traceId, ['id', 'fileName', 'csv']);
+  return { fileName: trace.fileName, csv: trace.csv };
+}
+
+export async function deleteTrace(sequelize: Sequelize, actor: Actor, access: CaseAccess, traceId: string): Promise<void> {
+  await sequelize.transaction(async (transaction) => {
+    const trace = await BenchTrace.findOne({ where: { id: traceId, caseId: access.caseId }, attributes: ['id', 'fileName'], transaction });
+    if (!trace) throw new AppError('trace_not_found', 'This case has no such bench trace.', 404, 'traceId');
+    await trace.destroy({ transaction });
+    await audit(transaction, actor.id, access.labId, 'bench_trace.deleted', access.caseId, { traceId, fileName: trace.fileName });
+  });
+}

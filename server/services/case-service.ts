@@ -1,0 +1,528 @@
+/**
+ * The case library: cases, their append-only revisions and runs, comments and the case's audit trail.
+ *
+ * Saving a revision locks the case row, checks that the caller saw the latest revision, and inserts the next
+ * number in one transaction; a concurrent save waits for the lock, then finds the number moved and gets 409 with
+ * nothing written. The unique (case_id, number) index backs this up.
+ */
+import { Op, UniqueConstraintError, type Sequelize, type Transaction, type WhereOptions } from 'sequelize';
+import { caseDigest, canonicalJson, parseCase, type CaseParams } from '../../shared/case';
+import { AppError } from '../app-error';
+import {
+  AuditEvent,
+  CaseRecord,
+  Comment,
+  Lab,
+  Recheck,
+  Revision,
+  Run,
+  User,
+  type LabRole,
+  type RecheckState,
+} from '../db/models';
+import type { CaseAccess } from '../middleware/case-access';
+import { offsetOf, type Paged } from '../middleware/paging';
+
+export interface Actor {
+  id: string;
+  name: string;
+}
+
+export interface PersonRef {
+  id: string;
+  name: string;
+}
+
+export interface CaseListItem {
+  id: string;
+  title: string;
+  tags: string[];
+  labId: string;
+  latestRevision: number;
+  recheckState: RecheckState;
+  author: PersonRef | null;
+  createdAt: string;
+  updatedAt: string;
+  archived: boolean;
+}
+
+export interface RevisionSummary {
+  number: number;
+  paramsDigest: string;
+  note: string;
+  author: PersonRef | null;
+  createdAt: string;
+  recheckState: RecheckState;
+}
+
+export interface CaseDetail extends Omit<CaseListItem, 'labId'> {
+  lab: { id: string; name: string };
+  myRole: LabRole;
+  revisions: RevisionSummary[];
+}
+
+export interface RunView {
+  id: string;
+  kind: string;
+  settings: Record<string, unknown>;
+  summary: Record<string, unknown>;
+  resultDigest: string;
+  engineVersion: string;
+  author: PersonRef | null;
+  createdAt: string;
+}
+
+export interface RecheckView {
+  id: string;
+  reviewer: PersonRef | null;
+  state: 'confirmed' | 'disputed';
+  digestMatch: boolean;
+  comparisons: unknown[];
+  comment: string;
+  createdAt: string;
+}
+
+export interface CommentView {
+  id: string;
+  body: string;
+  author: PersonRef | null;
+  createdAt: string;
+}
+
+export interface RecheckRequestView {
+  requestedBy: PersonRef | null;
+  reviewer: PersonRef | null;
+  message: string | null;
+  requestedAt: string;
+}
+
+export interface RevisionDetail extends RevisionSummary {
+  caseId: string;
+  caseTitle: string;
+  params: CaseParams;
+  schemaVersion: number;
+  recheckRequest: RecheckRequestView | null;
+  runs: RunView[];
+  rechecks: RecheckView[];
+  comments?: CommentView[];
+}
+
+export type CaseSort = '-updated' | 'updated' | 'title' | '-title';
+
+export interface CaseQuery {
+  search?: string | undefined;
+  tag?: string | undefined;
+  author?: string | undefined;
+  recheck?: RecheckState | undefined;
+  archived: boolean;
+  sort: CaseSort;
+  page: number;
+  pageSize: number;
+}
+
+const withAuthor = { model: User, as: 'author', attributes: ['id', 'name'] };
+
+export function personRef(user: User | null | undefined): PersonRef | null {
+  return user ? { id: user.id, name: user.name } : null;
+}
+
+async function people(ids: ReadonlyArray<string | null>, transaction?: Transaction): Promise<Map<string, PersonRef>> {
+  const wanted = [...new Set(ids.filter((id): id is string => id !== null))];
+  if (wanted.length === 0) return new Map();
+  const users = await User.findAll({ where: { id: wanted }, attributes: ['id', 'name'], transaction });
+  return new Map(users.map((u) => [u.id, { id: u.id, name: u.name }]));
+}
+
+/** Validates case parameters with the shared schema: 422 naming the first bad field as `params.<path>`. */
+export function validParams(input: unknown): { params: CaseParams; digest: string } {
+  const parsed = parseCase(input);
+  if (!parsed.ok) {
+    const first = parsed.issues[0];
+    const field = first?.field ? `params.${first.field}` : 'params';
+    throw new AppError('invalid_params', `${field}: ${first?.message ?? 'not a valid case'}`, 422, field);
+  }
+  // Stored in canonical form so the JSONB holds exactly what the digest covers.
+  const params = JSON.parse(canonicalJson(parsed.value)) as CaseParams;
+  return { params, digest: caseDigest(params) };
+}
+
+export async function audit(
+  transaction: Transaction | undefined,
+  actorId: string | null,
+  labId: string,
+  action: string,
+  caseId: string,
+  details: Record<string, unknown> = {},
+): Promise<void> {
+  await AuditEvent.create({ actorId, labId, action, details: { caseId, ...details } }, { transaction });
+}
+
+function listItem(c: CaseRecord): CaseListItem {
+  return {
+    id: c.id,
+    title: c.title,
+    tags: c.tags,
+    labId: c.labId,
+    latestRevision: c.latestRevision,
+    recheckState: c.recheckState,
+    author: personRef(c.author),
+    createdAt: c.createdAt.toISOString(),
+    updatedAt: c.updatedAt.toISOString(),
+    archived: c.archived,
+  };
+}
+
+function revisionSummary(r: Revision, authors: Map<string, PersonRef>): RevisionSummary {
+  return {
+    number: r.number,
+    paramsDigest: r.paramsDigest,
+    note: r.note,
+    author: r.authorId ? (authors.get(r.authorId) ?? null) : null,
+    createdAt: r.createdAt.toISOString(),
+    recheckState: r.recheckState,
+  };
+}
+
+const ORDER: Record<CaseSort, [string, 'ASC' | 'DESC']> = {
+  '-updated': ['updatedAt', 'DESC'],
+  updated: ['updatedAt', 'ASC'],
+  title: ['title', 'ASC'],
+  '-title': ['title', 'DESC'],
+};
+
+function likePattern(text: string): string {
+  return `%${text.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+}
+
+export async function listCases(labId: string, q: CaseQuery): Promise<Paged<CaseListItem>> {
+  const and: WhereOptions[] = [{ labId }, { archived: q.archived }];
+  if (q.search) {
+    const pattern = likePattern(q.search);
+    const sequelize = CaseRecord.sequelize;
+    if (!sequelize) throw new Error('models are not bound');
+    and.push({
+      [Op.or]: [
+        { title: { [Op.iLike]: pattern } },
+        sequelize.where(sequelize.fn('array_to_string', sequelize.col('tags'), ' '), { [Op.iLike]: pattern }),
+      ],
+    });
+  }
+  if (q.tag) and.push({ tags: { [Op.contains]: [q.tag] } });
+  if (q.author) and.push({ authorId: q.author });
+  if (q.recheck) and.push({ recheckState: q.recheck });
+  const [column, direction] = ORDER[q.sort];
+  const { rows, count } = await CaseRecord.findAndCountAll({
+    where: { [Op.and]: and },
+    include: [withAuthor],
+    order: [[column, direction], ['id', 'ASC']],
+    limit: q.pageSize,
+    offset: offsetOf(q),
+  });
+  return { items: rows.map(listItem), total: count, page: q.page, pageSize: q.pageSize };
+}
+
+export async function caseDetail(caseId: string, myRole: LabRole, transaction?: Transaction): Promise<CaseDetail> {
+  const found = await CaseRecord.findByPk(caseId, { include: [withAuthor], transaction });
+  if (!found) throw new AppError('case_not_found', 'No such case.', 404, 'caseId');
+  const lab = await Lab.findByPk(found.labId, { attributes: ['id', 'name'], transaction });
+  const revisions = await Revision.findAll({
+    where: { caseId },
+    attributes: ['number', 'paramsDigest', 'note', 'authorId', 'createdAt', 'recheckState'],
+    order: [['number', 'DESC']],
+    transaction,
+  });
+  const authors = await people(revisions.map((r) => r.authorId), transaction);
+  const { labId: _labId, ...item } = listItem(found);
+  return {
+    ...item,
+    lab: { id: found.labId, name: lab?.name ?? '' },
+    myRole,
+    revisions: revisions.map((r) => revisionSummary(r, authors)),
+  };
+}
+
+async function insertRevision(
+  transaction: Transaction,
+  actor: Actor,
+  record: CaseRecord,
+  number: number,
+  params: CaseParams,
+  digest: string,
+  note: string,
+): Promise<Revision> {
+  const revision = await Revision.create(
+    { caseId: record.id, number, params, schemaVersion: params.schemaVersion, paramsDigest: digest, note, authorId: actor.id },
+    { transaction },
+  );
+  await record.update({ latestRevision: number, recheckState: 'draft' }, { transaction });
+  return revision;
+}
+
+export async function createCase(
+  sequelize: Sequelize,
+  actor: Actor,
+  labId: string,
+  role: LabRole,
+  input: { title: string; tags: string[]; params: unknown; note?: string | undefined },
+): Promise<CaseDetail> {
+  const { params, digest } = validParams(input.params);
+  return sequelize.transaction(async (transaction) => {
+    const record = await CaseRecord.create({ labId, title: input.title, tags: normaliseTags(input.tags), authorId: actor.id }, { transaction });
+    await insertRevision(transaction, actor, record, 1, params, digest, input.note ?? '');
+    await audit(transaction, actor.id, labId, 'case.created', record.id, { title: record.title, revision: 1, paramsDigest: digest });
+    return caseDetail(record.id, role, transaction);
+  });
+}
+
+export function normaliseTags(tags: readonly string[]): string[] {
+  return [...new Set(tags.map((t) => t.trim().toLowerCase()).filter((t) => t.length > 0))].sort();
+}
+
+export async function updateCase(
+  sequelize: Sequelize,
+  actor: Actor,
+  access: CaseAccess,
+  patch: { title?: string | undefined; tags?: string[] | undefined; archived?: boolean | undefined },
+): Promise<CaseDetail> {
+  return sequelize.transaction(async (transaction) => {
+    const record = await CaseRecord.findByPk(access.caseId, { lock: transaction.LOCK.UPDATE, transaction });
+    if (!record) throw new AppError('case_not_found', 'No such case.', 404, 'caseId');
+    const changes: Record<string, unknown> = {};
+    if (patch.title !== undefined && patch.title !== record.title) changes['title'] = { from: record.title, to: patch.title };
+    const tags = patch.tags === undefined ? undefined : normaliseTags(patch.tags);
+    if (tags !== undefined && canonicalJson(tags) !== canonicalJson(record.tags)) changes['tags'] = { from: record.tags, to: tags };
+    if (patch.archived !== undefined && patch.archived !== record.archived) changes['archived'] = { from: record.archived, to: patch.archived };
+    if (Object.keys(changes).length > 0) {
+      await record.update(
+        {
+          ...(patch.title !== undefined ? { title: patch.title } : {}),
+          ...(tags !== undefined ? { tags } : {}),
+          ...(patch.archived !== undefined ? { archived: patch.archived } : {}),
+        },
+        { transaction },
+      );
+      const action = 'archived' in changes ? (patch.archived ? 'case.archived' : 'case.restored') : 'case.updated';
+      await audit(transaction, actor.id, access.labId, action, record.id, { changes });
+    }
+    return caseDetail(record.id, access.role, transaction);
+  });
+}
+
+export async function findRevision(caseId: string, number: number, transaction?: Transaction): Promise<Revision> {
+  const revision = await Revision.findOne({ where: { caseId, number }, transaction });
+  if (!revision) throw new AppError('revision_not_found', `This case has no revision r${number}.`, 404, 'revision');
+  return revision;
+}
+
+export async function duplicateCase(
+  sequelize: Sequelize,
+  actor: Actor,
+  access: CaseAccess,
+  input: { title?: string | undefined; revision?: number | undefined },
+): Promise<CaseDetail> {
+  return sequelize.transaction(async (transaction) => {
+    const source = await CaseRecord.findByPk(access.caseId, { transaction });
+    if (!source) throw new AppError('case_not_found', 'No such case.', 404, 'caseId');
+    const from = await findRevision(source.id, input.revision ?? source.latestRevision, transaction);
+    const title = input.title ?? `Copy of ${source.title}`.slice(0, 200);
+    const record = await CaseRecord.create({ labId: source.labId, title, tags: source.tags, authorId: actor.id }, { transaction });
+    const params = from.params as CaseParams;
+    await insertRevision(transaction, actor, record, 1, params, from.paramsDigest, `Duplicated from "${source.title}" r${from.number}.`);
+    await audit(transaction, actor.id, source.labId, 'case.duplicated', record.id, { fromCaseId: source.id, fromRevision: from.number });
+    return caseDetail(record.id, access.role, transaction);
+  });
+}
+
+function runView(r: Run, authors: Map<string, PersonRef>): RunView {
+  return {
+    id: r.id,
+    kind: r.kind,
+    settings: r.settings,
+    summary: r.summary,
+    resultDigest: r.resultDigest,
+    engineVersion: r.engineVersion,
+    author: r.authorId ? (authors.get(r.authorId) ?? null) : null,
+    createdAt: r.createdAt.toISOString(),
+  };
+}
+
+export function recheckView(r: Recheck, reviewers: Map<string, PersonRef>): RecheckView {
+  return {
+    id: r.id,
+    reviewer: r.reviewerId ? (reviewers.get(r.reviewerId) ?? null) : null,
+    state: r.state,
+    digestMatch: r.digestMatch,
+    comparisons: r.comparisons,
+    comment: r.comment,
+    createdAt: r.createdAt.toISOString(),
+  };
+}
+
+function commentView(c: Comment, authors: Map<string, PersonRef>): CommentView {
+  return { id: c.id, body: c.body, author: c.authorId ? (authors.get(c.authorId) ?? null) : null, createdAt: c.createdAt.toISOString() };
+}
+
+/** A revision with its runs, rechecks and (unless `withComments` is false, as for case links) comments. */
+export async function revisionDetail(caseId: string, number: number, options: { withComments?: boolean; transaction?: Transaction } = {}): Promise<RevisionDetail> {
+  const { transaction } = options;
+  const record = await CaseRecord.findByPk(caseId, { attributes: ['id', 'title'], transaction });
+  if (!record) throw new AppError('case_not_found', 'No such case.', 404, 'caseId');
+  const revision = await findRevision(caseId, number, transaction);
+  const [runs, rechecks, comments] = await Promise.all([
+    Run.findAll({ where: { revisionId: revision.id }, order: [['createdAt', 'ASC'], ['id', 'ASC']], transaction }),
+    Recheck.findAll({ where: { revisionId: revision.id }, order: [['createdAt', 'ASC'], ['id', 'ASC']], transaction }),
+    options.withComments === false
+      ? Promise.resolve([])
+      : Comment.findAll({ where: { revisionId: revision.id }, order: [['createdAt', 'ASC'], ['id', 'ASC']], transaction }),
+  ]);
+  const refs = await people(
+    [
+      revision.authorId,
+      revision.recheckRequestedById,
+      revision.recheckReviewerId,
+      ...runs.map((r) => r.authorId),
+      ...rechecks.map((r) => r.reviewerId),
+      ...comments.map((c) => c.authorId),
+    ],
+    transaction,
+  );
+  const ref = (id: string | null) => (id ? (refs.get(id) ?? null) : null);
+  return {
+    caseId,
+    caseTitle: record.title,
+    ...revisionSummary(revision, refs),
+    params: revision.params as CaseParams,
+    schemaVersion: revision.schemaVersion,
+    recheckRequest: revision.recheckRequestedAt
+      ? {
+          requestedBy: ref(revision.recheckRequestedById),
+          reviewer: ref(revision.recheckReviewerId),
+          message: revision.recheckMessage,
+          requestedAt: revision.recheckRequestedAt.toISOString(),
+        }
+      : null,
+    runs: runs.map((r) => runView(r, refs)),
+    rechecks: rechecks.map((r) => recheckView(r, refs)),
+    ...(options.withComments === false ? {} : { comments: comments.map((c) => commentView(c, refs)) }),
+  };
+}
+
+export async function saveRevision(
+  sequelize: Sequelize,
+  actor: Actor,
+  access: CaseAccess,
+  input: { baseRevision: number; params: unknown; note?: string | undefined },
+): Promise<RevisionDetail> {
+  const { params, digest } = validParams(input.params);
+  try {
+    return await sequelize.transaction(async (transaction) => {
+      const record = await CaseRecord.findByPk(access.caseId, { lock: transaction.LOCK.UPDATE, transaction });
+      if (!record) throw new AppError('case_not_found', 'No such case.', 404, 'caseId');
+      if (record.archived) throw new AppError('case_archived', 'This case is archived; restore it before saving a new revision.', 409);
+      if (input.baseRevision !== record.latestRevision) throw staleRevision(input.baseRevision, record.latestRevision);
+      const number = record.latestRevision + 1;
+      await insertRevision(transaction, actor, record, number, params, digest, input.note ?? '');
+      await audit(transaction, actor.id, access.labId, 'revision.saved', record.id, { revision: number, paramsDigest: digest });
+      return revisionDetail(record.id, number, { transaction });
+    });
+  } catch (err) {
+    if (err instanceof UniqueConstraintError) throw staleRevision(input.baseRevision, input.baseRevision + 1);
+    throw err;
+  }
+}
+
+function staleRevision(base: number, latest: number): AppError {
+  return new AppError(
+    'stale-revision',
+    `This case moved on: you edited r${base} but the latest is r${latest}. Nothing was saved; open r${latest}, reapply your changes and save again.`,
+    409,
+    'baseRevision',
+  );
+}
+
+/** Shape of a stored run as the client sends it (the shared RunRecord). */
+export interface RunInput {
+  kind: string;
+  params: unknown;
+  settings: Record<string, unknown>;
+  summary: Record<string, number | string | boolean | null>;
+  resultDigest: string;
+  engineVersion: string;
+  caseDigest?: string | undefined;
+}
+
+export async function storeRun(sequelize: Sequelize, actor: Actor, access: CaseAccess, number: number, input: RunInput): Promise<RunView> {
+  if (input.settings['kind'] !== input.kind) {
+    throw new AppError('invalid_field', 'settings.kind must equal kind.', 422, 'settings.kind');
+  }
+  const { digest } = validParams(input.params);
+  return sequelize.transaction(async (transaction) => {
+    const revision = await findRevision(access.caseId, number, transaction);
+    if (digest !== revision.paramsDigest) {
+      throw new AppError('params_mismatch', `The run was computed for other parameters than r${number} (digest ${digest.slice(0, 12)}... is not ${revision.paramsDigest.slice(0, 12)}...).`, 422, 'params');
+    }
+    if (input.caseDigest !== undefined && input.caseDigest !== revision.paramsDigest) {
+      throw new AppError('params_mismatch', `caseDigest does not match r${number}'s parameters digest.`, 422, 'caseDigest');
+    }
+    const run = await Run.create(
+      {
+        revisionId: revision.id,
+        kind: input.kind,
+        settings: input.settings,
+        summary: input.summary,
+        resultDigest: input.resultDigest,
+        engineVersion: input.engineVersion,
+        authorId: actor.id,
+      },
+      { transaction },
+    );
+    await audit(transaction, actor.id, access.labId, 'run.stored', access.caseId, { revision: number, runId: run.id, kind: run.kind });
+    return runView(run, new Map([[actor.id, { id: actor.id, name: actor.name }]]));
+  });
+}
+
+export async function listComments(caseId: string, number: number): Promise<CommentView[]> {
+  const revision = await findRevision(caseId, number);
+  const comments = await Comment.findAll({ where: { revisionId: revision.id }, order: [['createdAt', 'ASC'], ['id', 'ASC']] });
+  const authors = await people(comments.map((c) => c.authorId));
+  return comments.map((c) => commentView(c, authors));
+}
+
+export async function addComment(sequelize: Sequelize, actor: Actor, access: CaseAccess, number: number, body: string): Promise<CommentView> {
+  return sequelize.transaction(async (transaction) => {
+    const revision = await findRevision(access.caseId, number, transaction);
+    const comment = await Comment.create({ revisionId: revision.id, authorId: actor.id, body }, { transaction });
+    await audit(transaction, actor.id, access.labId, 'comment.added', access.caseId, { revision: number, commentId: comment.id });
+    return commentView(comment, new Map([[actor.id, { id: actor.id, name: actor.name }]]));
+  });
+}
+
+export interface AuditView {
+  id: string;
+  action: string;
+  actor: PersonRef | null;
+  details: Record<string, unknown>;
+  createdAt: string;
+}
+
+export async function caseAudit(caseId: string, page: { page: number; pageSize: number }): Promise<Paged<AuditView>> {
+  const { rows, count } = await AuditEvent.findAndCountAll({
+    where: { details: { caseId } },
+    order: [['id', 'DESC']],
+    limit: page.pageSize,
+    offset: offsetOf(page),
+  });
+  const actors = await people(rows.map((e) => e.actorId));
+  return {
+    items: rows.map((e) => ({
+      id: String(e.id),
+      action: e.action,
+      actor: e.actorId ? (actors.get(e.actorId) ?? null) : null,
+      details: e.details,
+      createdAt: e.createdAt.toISOString(),
+    })),
+    total: count,
+    page: page.page,
+    pageSize: page.pageSize,
+  };
+}
