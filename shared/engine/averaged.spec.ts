@@ -44,4 +44,10 @@ describe('averagedAnalysis', () => {
       expect(Math.abs(u(e.angle + h) - u(e.angle - h)) / (2 * h)).toBeLessThan(1e-6);
     }
   });
+
+  it('refuses an impossible case with its field instead of returning NaN', () => {
+    const c = templateCase();
+    expect(() => averagedAnalysis({ ...c, body: { kind: 'point-mass', length: -1, mass: 1 } })).toThrow(/body\.length/);
+  });
 });
+

@@ -1,4 +1,5 @@
 import type { CaseParams, Drive } from '../case/case-schema';
+import { assertCase } from '../case/validate';
 import { bodyProperties } from './body';
 import { driveKinematics } from './drive';
 
@@ -173,9 +174,11 @@ export function averagedLowerFrequency(params: CaseParams, amplitude: number): n
  * a^2 w^2 > 2 g L, slow frequency Omega^2 = a^2 w^2 / (2 L^2) - g / L. Horizontal: cos(phi*) = 2 g L / (a^2 w^2)
  * from the downward vertical. Valid when w >> omega0 and a << L (see frequencyRatio, amplitudeRatio); the upper
  * stability limit is beyond this theory (Floquet analysis covers it).
+ * Throws an Error naming every offending field for an invalid case.
  * References: P. L. Kapitza, Zh. Eksp. Teor. Fiz. 21, 588 (1951); Landau & Lifshitz, Mechanics, section 30.
  */
-export function averagedAnalysis(params: CaseParams): AveragedAnalysis {
+export function averagedAnalysis(input: CaseParams): AveragedAnalysis {
+  const params = assertCase(input);
   const g = params.gravity;
   const body = bodyProperties(params.body, g);
   const L = body.equivalentLength;

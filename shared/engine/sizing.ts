@@ -1,5 +1,6 @@
 import type { CaseParams } from '../case/case-schema';
 import { amplitudeForMeanSquare, averagedLowerFrequency } from './averaged';
+import { assertCase } from '../case/validate';
 import { bodyProperties } from './body';
 import { driveKinematics } from './drive';
 
@@ -63,9 +64,11 @@ export interface DriveSizing {
  * (2 pi f)^2 a for a sine); pivot force on a body at the upright, |m (s'' e + g up)| at the largest and smallest s'';
  * shaker force = (moving mass + body mass) x peak acceleration. Crank radius and motor speed for a target margin
  * come from averaged theory (<s'^2> = ratio x g L; Kapitza, Landau & Lifshitz section 30), so they are design
- * estimates: the exact limits come from the Floquet analysis.
+ * estimates: the exact limits come from the Floquet analysis. Throws an Error naming every offending field for an
+ * invalid case.
  */
-export function driveSizing(params: CaseParams, options: SizingOptions = {}): DriveSizing {
+export function driveSizing(input: CaseParams, options: SizingOptions = {}): DriveSizing {
+  const params = assertCase(input);
   const g = params.gravity;
   const body = bodyProperties(params.body, g);
   const L = body.equivalentLength;
