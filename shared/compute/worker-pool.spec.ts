@@ -6,7 +6,7 @@ import { sweep } from '../engine/sweep';
 import { handleEngineRequest } from './handle-request';
 import { createNodeEngineWorker } from './node-pool';
 import type { EngineResponse } from './protocol';
-import { WorkerPool, type PoolEvent, type WorkerLike } from './worker-pool';
+import { fromWebWorker, WorkerPool, type PoolEvent, type WebWorkerHandle, type WorkerLike } from './worker-pool';
 
 /** The real handler run in this thread, answering asynchronously like a worker would. */
 function inThreadWorker(): WorkerLike {
@@ -120,4 +120,32 @@ describe('WorkerPool determinism', () => {
     }
     expect(single.thresholds.length).toBeGreaterThan(0);
   }, 120_000);
+});
+
+describe('fromWebWorker', () => {
+  it('runs a pool job through a Web Worker-shaped object and ignores foreign messages', async () => {
+    const made: WebWorkerHandle[] = [];
+    const factory = (): WorkerLike => {
+      const handle: WebWorkerHandle = {
+        onmessage: null,
+        onerror: null,
+        terminate: () => undefined,
+        postMessage: (message: unknown) => {
+          setTimeout(() => {
+            const deliver = handle.onmessage;
+            if (typeof deliver !== 'function') return;
+            deliver({ data: { hello: 'not an engine response' } });
+            handleEngineRequest(message, (response) => deliver({ data: response }));
+          }, 0);
+        },
+      };
+      made.push(handle);
+      return fromWebWorker(handle);
+    };
+    const pool = new WorkerPool(factory, 1);
+    const { value } = await resultOf(lastValueFrom(pool.margins(templateCase()).pipe(toArray())));
+    expect(value.uprightHolds).toBe(true);
+    expect(made).toHaveLength(1);
+    pool.dispose();
+  }, 60_000);
 });

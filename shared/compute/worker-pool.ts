@@ -17,7 +17,7 @@ import {
   assembleSweep, thresholdBrackets, sweepValues, type BasinCell, type MapCell, type SweepPoint, type SweepResult,
   type SweepSpec, type SweepThreshold,
 } from '../engine/sweep';
-import type { EngineRequest, EngineResponse, EngineResult } from './protocol';
+import { isEngineResponse, type EngineRequest, type EngineResponse, type EngineResult } from './protocol';
 import { ENGINE_VERSION } from '../engine/version';
 
 /** The part of a Worker the pool uses; Web Workers fit as they are, worker_threads through an adapter. */
@@ -29,6 +29,39 @@ export interface WorkerLike {
 }
 
 export type WorkerFactory = () => WorkerLike;
+
+/**
+ * The structural part of a browser `Worker` the adapter needs (no DOM types in shared code; a DOM Worker fits).
+ * Handlers are typed `unknown` so the DOM's MessageEvent handler types do not have to match ours.
+ */
+export interface WebWorkerHandle {
+  postMessage(message: unknown): void;
+  terminate(): void;
+  onmessage: unknown;
+  onerror: unknown;
+}
+
+/**
+ * Adapts a browser Web Worker: `new WorkerPool(() => fromWebWorker(new Worker(new URL(...), { type: 'module' })), n)`.
+ * Messages that are not engine responses are ignored.
+ */
+export function fromWebWorker(worker: WebWorkerHandle): WorkerLike {
+  const like: WorkerLike = {
+    postMessage: (message) => worker.postMessage(message),
+    onmessage: null,
+    onerror: null,
+    terminate: () => worker.terminate(),
+  };
+  worker.onmessage = (event: unknown) => {
+    const data = typeof event === 'object' && event !== null && 'data' in event ? event.data : undefined;
+    if (isEngineResponse(data)) like.onmessage?.({ data });
+  };
+  worker.onerror = (event: unknown) => {
+    const message = typeof event === 'object' && event !== null && 'message' in event ? String(event.message) : undefined;
+    like.onerror?.({ message });
+  };
+  return like;
+}
 
 /** What a job's Observable emits: progress fractions, then one result. */
 export type PoolEvent<T> = { type: 'progress'; fraction: number } | { type: 'result'; value: T };
