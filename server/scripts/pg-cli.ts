@@ -3,20 +3,27 @@
  */
 import { ensurePostgres, statusPostgres, stopPostgres } from './pg';
 
-const command = process.argv[2] ?? 'status';
-try {
+async function main(command: string): Promise<number> {
   if (command === 'up') {
-    const cluster = ensurePostgres({ databases: ['quiverpoint', 'quiverpoint_test', 'quiverpoint_e2e'] });
-    console.log(cluster.external ? `using ${cluster.url}` : `PostgreSQL ready: ${cluster.url.replace(/:[^:@/]+@/, ':***@')}`);
+    const cluster = await ensurePostgres({ databases: ['quiverpoint', 'quiverpoint_test', 'quiverpoint_e2e'] });
+    console.log(cluster.external ? 'using the server in DATABASE_URL' : `PostgreSQL ready: ${cluster.url.replace(/:[^:@/]+@/, ':***@')}`);
   } else if (command === 'down') {
     stopPostgres();
   } else if (command === 'status') {
     console.log(statusPostgres());
   } else {
     console.error('usage: pg-cli.ts up|down|status');
-    process.exitCode = 2;
+    return 2;
   }
-} catch (err) {
-  console.error(err instanceof Error ? err.message : String(err));
-  process.exitCode = 1;
+  return 0;
 }
+
+main(process.argv[2] ?? 'status').then(
+  (code) => {
+    process.exitCode = code;
+  },
+  (err: unknown) => {
+    console.error(err instanceof Error ? err.message : String(err));
+    process.exitCode = 1;
+  },
+);

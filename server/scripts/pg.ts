@@ -7,6 +7,7 @@
  */
 import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readdirSync, chmodSync, chownSync, readFileSync } from 'node:fs';
+import { connect } from 'node:net';
 import { dirname, join } from 'node:path';
 import { checkoutPaths, privateDatabaseUrl, APP_ROLE, APP_ROLE_PASSWORD, DEFAULT_BASE } from '../paths';
 
@@ -98,6 +99,41 @@ function clusterRunning(bin: string, dataDir: string): boolean {
   return run(join(bin, 'pg_ctl'), ['status', '-D', dataDir], { asPostgres: true, allowFail: true }).ok;
 }
 
+/** The port a running cluster listens on, from line 4 of postmaster.pid. */
+function runningPort(dataDir: string): number | undefined {
+  const pidFile = join(dataDir, 'postmaster.pid');
+  if (!existsSync(pidFile)) return undefined;
+  const port = Number(readFileSync(pidFile, 'utf8').split('\n')[3]);
+  return Number.isInteger(port) && port > 0 ? port : undefined;
+}
+
+function portInUse(port: number): Promise<boolean> {
+  return new Promise((resolve) => {
+    const socket = connect({ host: '127.0.0.1', port });
+    socket.setTimeout(1_000);
+    socket.once('connect', () => {
+      socket.destroy();
+      resolve(true);
+    });
+    socket.once('timeout', () => {
+      socket.destroy();
+      resolve(true);
+    });
+    socket.once('error', () => resolve(false));
+  });
+}
+
+/** The configured port, or when something else holds it, the next free one of the following 20. */
+async function choosePort(wanted: number, log: (line: string) => void): Promise<number> {
+  for (let port = wanted; port < wanted + 20 && port <= 65535; port++) {
+    if (!(await portInUse(port))) {
+      if (port !== wanted) log(`port ${wanted} is taken by another program; using ${port} for this cluster`);
+      return port;
+    }
+  }
+  throw new Error(`ports ${wanted}-${wanted + 19} are all in use; set QP_PG_PORT to a free port`);
+}
+
 function psql(bin: string, runDir: string, port: number, sql: string, db = 'postgres'): string {
   return run(join(bin, 'psql'), ['-h', runDir, '-p', String(port), '-U', PG_USER, '-d', db, '-v', 'ON_ERROR_STOP=1', '-Atqc', sql], {
     asPostgres: true,
@@ -109,15 +145,20 @@ function tailLog(logFile: string): string {
   return readFileSync(logFile, 'utf8').split('\n').slice(-15).join('\n');
 }
 
-/** Installs, initialises and starts the private cluster when needed, and creates the role and databases. */
-export function ensurePostgres(options: EnsureOptions = {}): PgCluster {
+/**
+ * Installs, initialises and starts the private cluster when needed, and creates the role and databases.
+ * The port actually used (the running cluster's, or a free one when QP_PG_PORT's is taken by another program) is
+ * written back to process.env.QP_PG_PORT so the config and child processes agree.
+ */
+export async function ensurePostgres(options: EnsureOptions = {}): Promise<PgCluster> {
   const log = options.log ?? ((line: string) => console.log(`[pg] ${line}`));
   const paths = checkoutPaths();
   if (process.env['DATABASE_URL']) {
     log('DATABASE_URL is set: using that server, no private cluster');
     return { external: true, url: process.env['DATABASE_URL'], port: 0, dataDir: '', runDir: '', logFile: '', startedNow: false };
   }
-  const { pgData: dataDir, pgRunDir: runDir, pgPort: port } = paths;
+  const { pgData: dataDir, pgRunDir: runDir } = paths;
+  let port = paths.pgPort;
   const logFile = join(runDir, 'postgresql.log');
   const bin = findPgBin() ?? installPostgres(log);
   ensurePostgresUser();
@@ -135,8 +176,10 @@ export function ensurePostgres(options: EnsureOptions = {}): PgCluster {
 
   let startedNow = false;
   if (clusterRunning(bin, dataDir)) {
-    log(`cluster already running (${dataDir})`);
+    port = runningPort(dataDir) ?? port;
+    log(`cluster already running on port ${port} (${dataDir})`);
   } else {
+    port = await choosePort(port, log);
     const settings = [`-p ${port}`, `-k ${runDir}`, `-c listen_addresses=127.0.0.1`, `-c fsync=${options.fsync === false ? 'off' : 'on'}`];
     if (options.fsync === false) settings.push('-c synchronous_commit=off', '-c full_page_writes=off');
     log(`starting on 127.0.0.1:${port} (fsync ${options.fsync === false ? 'off' : 'on'}), log ${logFile}`);
@@ -148,6 +191,7 @@ export function ensurePostgres(options: EnsureOptions = {}): PgCluster {
     startedNow = true;
   }
 
+  process.env['QP_PG_PORT'] = String(port);
   const hasRole = psql(bin, runDir, port, `SELECT 1 FROM pg_roles WHERE rolname = '${APP_ROLE}'`) === '1';
   if (!hasRole) {
     log(`creating role ${APP_ROLE}`);
@@ -183,5 +227,5 @@ export function statusPostgres(): string {
   const { pgData, pgPort } = checkoutPaths();
   if (!bin) return 'PostgreSQL not installed';
   if (!existsSync(join(pgData, 'PG_VERSION'))) return `no cluster yet at ${pgData}`;
-  return clusterRunning(bin, pgData) ? `running at 127.0.0.1:${pgPort}, data ${pgData}` : `stopped, data ${pgData}`;
+  return clusterRunning(bin, pgData) ? `running at 127.0.0.1:${runningPort(pgData) ?? pgPort}, data ${pgData}` : `stopped, data ${pgData}`;
 }

@@ -16,7 +16,7 @@ import { runCommand } from './steps';
 async function main(): Promise<void> {
   const { repoRoot } = checkoutPaths();
   const cfg = config();
-  const cluster = ensurePostgres({ databases: ['quiverpoint'] });
+  const cluster = await ensurePostgres({ databases: ['quiverpoint'] });
   let server: ServerProcess | undefined;
   let stopping = false;
   const stopAll = async (code: number) => {

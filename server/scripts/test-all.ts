@@ -38,7 +38,7 @@ async function main(): Promise<number> {
     [
       'PostgreSQL ready, quiverpoint_test recreated + migrated',
       async () => {
-        cluster = ensurePostgres({ fsync: false, databases: ['quiverpoint_test', 'quiverpoint_e2e'] });
+        cluster = await ensurePostgres({ fsync: false, databases: ['quiverpoint_test', 'quiverpoint_e2e'] });
         await prepareDatabase(await recreateDatabase(cluster.url, 'quiverpoint_test'), { seed: false });
         return true;
       },

@@ -13,7 +13,7 @@ declare module 'vitest' {
 }
 
 export default async function setup(project: TestProject): Promise<() => void> {
-  const cluster = ensurePostgres({ fsync: false, log: () => undefined });
+  const cluster = await ensurePostgres({ fsync: false, log: () => undefined });
   const url = await recreateDatabase(cluster.url, 'quiverpoint_test');
   await prepareDatabase(url, { seed: false });
   project.provide('databaseUrl', url);

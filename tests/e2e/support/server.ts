@@ -27,7 +27,7 @@ export async function startE2eServer(): Promise<E2eServer> {
   if (!existsSync(join(repoRoot, 'dist', 'quiverpoint', 'browser', 'index.html'))) {
     throw new Error('the web client is not built: run `npx ng build` first');
   }
-  const cluster = ensurePostgres({ fsync: false, databases: [], log: () => undefined });
+  const cluster = await ensurePostgres({ fsync: false, databases: [], log: () => undefined });
   const databaseUrl = await recreateDatabase(cluster.url, 'quiverpoint_e2e');
   await prepareDatabase(databaseUrl, { seed: true });
   const [port, smtpPort] = [await freePort(), await freePort()];
