@@ -4,6 +4,12 @@ import { BENCHMARK_REFERENCE, benchmarkCase } from '../../shared/engine/benchmar
 import { buildModel } from '../../shared/engine/equations';
 import { integrate, rigDerivative } from '../../shared/engine/integrate';
 import { simulateMotion } from '../../shared/engine/motion';
+import { setFlagsFromString } from 'node:v8';
+import { runInNewContext } from 'node:vm';
+
+// a callable collector, so retained memory can be told apart from garbage not yet collected
+setFlagsFromString('--expose-gc');
+const collect = runInNewContext('gc') as () => void;
 
 export interface IntegratorFigures {
   label: string;
@@ -66,14 +72,33 @@ export function benchMotion(repeats = 3): IntegratorFigures {
   });
 }
 
-/** Peak heap growth during a motion run of `duration` seconds (sampled at each progress report), and result size. */
-export function motionMemory(duration: number): { duration: number; peakHeapGrowth: number; resultBytes: number } {
+export interface MemoryFigures {
+  duration: number;
+  /** bytes: largest heap growth seen at the progress reports (includes uncollected garbage) */
+  peakHeapGrowth: number;
+  /** bytes: heap still held after the run and a full collection, with the result alive */
+  retainedAfterRun: number;
+  /** bytes: the result's typed arrays */
+  resultBytes: number;
+}
+
+/** JS heap plus ArrayBuffer backing stores (typed arrays live outside the heap proper). */
+function used(): number {
+  const m = process.memoryUsage();
+  return m.heapUsed + m.arrayBuffers;
+}
+
+/** Memory use of a motion run of `duration` seconds of the benchmark case. */
+export function motionMemory(duration: number): MemoryFigures {
   const params = benchmarkCase(duration);
-  const base = process.memoryUsage().heapUsed;
+  collect();
+  const base = used();
   let peak = 0;
-  const r = simulateMotion(params, { onProgress: () => (peak = Math.max(peak, process.memoryUsage().heapUsed - base)) });
+  const r = simulateMotion(params, { onProgress: () => (peak = Math.max(peak, used() - base)) });
+  collect();
+  const retainedAfterRun = used() - base;
   const arrays = [r.series.t, r.series.theta, r.series.rate, r.series.energy, r.series.pivotForce, r.series.pivotPosition, r.strobe.t, r.strobe.theta, r.strobe.rate, r.slow.t, r.slow.theta, r.slow.rate];
-  return { duration, peakHeapGrowth: peak, resultBytes: arrays.reduce((s, a) => s + a.byteLength, 0) };
+  return { duration, peakHeapGrowth: peak, retainedAfterRun, resultBytes: arrays.reduce((s, a) => s + a.byteLength, 0) };
 }
 
 function printFigures(f: IntegratorFigures): void {
@@ -93,11 +118,13 @@ export function run(): void {
   simulateMotion(benchmarkCase(20));
   printFigures(benchIntegrator());
   printFigures(benchMotion());
-  const short = motionMemory(50);
+  const short = motionMemory(20);
   const long = motionMemory(200);
-  console.log('memory (motion runs, output budget 4000 points):');
+  console.log('memory (JS heap + array buffers) of motion runs, output budget 4000 points:');
   for (const m of [short, long]) {
-    console.log(`  ${String(m.duration).padStart(4)} s run: peak heap growth ${mb(m.peakHeapGrowth)}, result arrays ${mb(m.resultBytes)}`);
+    console.log(
+      `  ${String(m.duration).padStart(4)} s run: peak growth ${mb(m.peakHeapGrowth)}, retained after GC ${mb(m.retainedAfterRun)}, result arrays ${mb(m.resultBytes)}`,
+    );
   }
   const usage = process.memoryUsage();
   console.log(`  process now: rss ${mb(usage.rss)}, heap ${mb(usage.heapUsed)}; peak rss ${mb(process.resourceUsage().maxRSS * 1024)}`);

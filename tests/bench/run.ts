@@ -15,7 +15,10 @@ async function main(): Promise<void> {
   const dir = __dirname;
   const files = readdirSync(dir).filter((f) => f.endsWith('-bench.ts')).sort();
   for (const file of files) {
-    const mod: unknown = await import(pathToFileURL(join(dir, file)).href);
+    const loaded: unknown = await import(pathToFileURL(join(dir, file)).href);
+    // a CommonJS-compiled module may arrive wrapped in `default`
+    const wrapped = typeof loaded === 'object' && loaded !== null ? (loaded as { default?: unknown }).default : undefined;
+    const mod = isBenchModule(loaded) ? loaded : wrapped;
     if (!isBenchModule(mod)) throw new Error(`${file} does not export run()`);
     console.log(`\n=== ${file} ===`);
     await mod.run();
