@@ -368,13 +368,11 @@ export async function revisionDetail(caseId: string, number: number, options: { 
   const record = await CaseRecord.findByPk(caseId, { attributes: ['id', 'title'], transaction });
   if (!record) throw new AppError('case_not_found', 'No such case.', 404, 'caseId');
   const revision = await findRevision(caseId, number, transaction);
-  const [runs, rechecks, comments] = await Promise.all([
-    Run.findAll({ where: { revisionId: revision.id }, order: [['createdAt', 'ASC'], ['id', 'ASC']], transaction }),
-    Recheck.findAll({ where: { revisionId: revision.id }, order: [['createdAt', 'ASC'], ['id', 'ASC']], transaction }),
-    options.withComments === false
-      ? Promise.resolve([])
-      : Comment.findAll({ where: { revisionId: revision.id }, order: [['createdAt', 'ASC'], ['id', 'ASC']], transaction }),
-  ]);
+  // One after another: inside a transaction they share one connection.
+  const oldestFirst: Array<[string, 'ASC']> = [['createdAt', 'ASC'], ['id', 'ASC']];
+  const runs = await Run.findAll({ where: { revisionId: revision.id }, order: oldestFirst, transaction });
+  const rechecks = await Recheck.findAll({ where: { revisionId: revision.id }, order: oldestFirst, transaction });
+  const comments = options.withComments === false ? [] : await Comment.findAll({ where: { revisionId: revision.id }, order: oldestFirst, transaction });
   const refs = await people(
     [
       revision.authorId,
