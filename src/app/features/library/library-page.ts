@@ -1,0 +1,232 @@
+import { DatePipe } from '@angular/common';
+import { ChangeDetectionStrategy, Component, ErrorHandler, computed, inject, signal } from '@angular/core';
+import { rxResource, toObservable, toSignal } from '@angular/core/rxjs-interop';
+import { MatButtonModule } from '@angular/material/button';
+import { MatChipsModule } from '@angular/material/chips';
+import { MatDialog } from '@angular/material/dialog';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatMenuModule } from '@angular/material/menu';
+import { MatPaginatorModule, PageEvent } from '@angular/material/paginator';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSelectModule } from '@angular/material/select';
+import { MatSlideToggleModule } from '@angular/material/slide-toggle';
+import { MatSnackBar } from '@angular/material/snack-bar';
+import { MatSortModule, Sort } from '@angular/material/sort';
+import { MatTableModule } from '@angular/material/table';
+import { Router, RouterLink } from '@angular/router';
+import { debounceTime, distinctUntilChanged, of } from 'rxjs';
+
+import { describeError } from '../../core/error-message';
+import { Session } from '../../core/session';
+import { LabMembers } from '../labs/lab-members';
+import { RecheckChip } from '../recheck/recheck-chip';
+import { CreateCaseDialog, CreateCaseData } from './create-case-dialog';
+import { CaseQuery, CaseSort, LibraryApi } from './library-api';
+import { CaseSummary, RECHECK_STATES, RecheckState } from './library-types';
+
+/** Pause after the last keystroke before the search goes to the server. */
+export const SEARCH_DEBOUNCE_MS = 300;
+export const PAGE_SIZES = [10, 20, 50];
+
+const RECHECK_LABELS: Record<RecheckState, string> = {
+  draft: 'Draft',
+  'awaiting-recheck': 'Awaiting recheck',
+  confirmed: 'Confirmed',
+  disputed: 'Disputed',
+};
+
+/** mat-sort's (column, direction) as the server's sort parameter; no direction means the default order. */
+export function sortParam(sort: Sort): CaseSort {
+  if (sort.direction === '' || (sort.active !== 'title' && sort.active !== 'updated')) return '-updated';
+  return sort.direction === 'asc' ? sort.active : `-${sort.active}`;
+}
+
+@Component({
+  selector: 'qp-library-page',
+  imports: [
+    DatePipe,
+    RouterLink,
+    MatButtonModule,
+    MatChipsModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatMenuModule,
+    MatPaginatorModule,
+    MatProgressBarModule,
+    MatSelectModule,
+    MatSlideToggleModule,
+    MatSortModule,
+    MatTableModule,
+    RecheckChip,
+  ],
+  templateUrl: './library-page.html',
+  styleUrl: './library-page.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class LibraryPage {
+  private readonly api = inject(LibraryApi);
+  private readonly session = inject(Session);
+  private readonly labMembers = inject(LabMembers);
+  private readonly dialog = inject(MatDialog);
+  private readonly snackBar = inject(MatSnackBar);
+  private readonly router = inject(Router);
+  private readonly errorHandler = inject(ErrorHandler);
+
+  protected readonly lab = this.session.currentLab;
+  protected readonly canEdit = computed(() => {
+    const role = this.session.currentMembership()?.role;
+    return role === 'analyst' || role === 'owner';
+  });
+  protected readonly recheckStates = RECHECK_STATES.map((value) => ({ value, label: RECHECK_LABELS[value] }));
+  protected readonly pageSizes = PAGE_SIZES;
+  protected readonly columns = computed(() => [
+    'title',
+    'tags',
+    'revision',
+    'recheck',
+    'author',
+    'updated',
+    ...(this.canEdit() ? ['actions'] : []),
+  ]);
+
+  protected readonly searchText = signal('');
+  private readonly search = toSignal(
+    toObservable(this.searchText).pipe(debounceTime(SEARCH_DEBOUNCE_MS), distinctUntilChanged()),
+    { initialValue: '' },
+  );
+  protected readonly tag = signal('');
+  protected readonly author = signal('');
+  protected readonly recheck = signal<RecheckState | ''>('');
+  protected readonly archived = signal(false);
+  protected readonly sort = signal<Sort>({ active: 'updated', direction: 'desc' });
+  protected readonly page = signal(1);
+  protected readonly pageSize = signal(PAGE_SIZES[1]);
+
+  protected readonly query = computed<CaseQuery>(() => ({
+    search: this.search(),
+    tag: this.tag(),
+    author: this.author(),
+    recheck: this.recheck(),
+    archived: this.archived(),
+    sort: sortParam(this.sort()),
+    page: this.page(),
+    pageSize: this.pageSize(),
+  }));
+  protected readonly cases = rxResource({
+    params: () => {
+      const labId = this.lab()?.id;
+      return labId ? { labId, query: this.query() } : undefined;
+    },
+    stream: ({ params }) => this.api.listCases(params.labId, params.query),
+  });
+  protected readonly members = rxResource({
+    params: () => this.lab()?.id,
+    stream: ({ params }) => (params ? this.labMembers.list(params) : of([])),
+  });
+  protected readonly authors = computed(() =>
+    [...(this.members.value() ?? [])].sort((a, b) => a.user.name.localeCompare(b.user.name)),
+  );
+  /** Keeps the last page on screen while the next one loads, so the table does not flicker. */
+  protected readonly rows = computed(() => (this.cases.hasValue() ? this.cases.value().items : []));
+  protected readonly total = computed(() => (this.cases.hasValue() ? this.cases.value().total : 0));
+  protected readonly loadError = computed(() => {
+    const error = this.cases.error();
+    return error ? describeError(error.cause ?? error) : null;
+  });
+  protected readonly filtered = computed(
+    () => this.search().trim() !== '' || this.tag() !== '' || this.author() !== '' || this.recheck() !== '',
+  );
+
+  protected setSearch(value: string): void {
+    this.searchText.set(value);
+    this.page.set(1);
+  }
+
+  protected setTag(value: string): void {
+    this.tag.set(value.trim());
+    this.page.set(1);
+  }
+
+  protected setAuthor(value: string): void {
+    this.author.set(value);
+    this.page.set(1);
+  }
+
+  protected setRecheck(value: RecheckState | ''): void {
+    this.recheck.set(value);
+    this.page.set(1);
+  }
+
+  protected setArchived(value: boolean): void {
+    this.archived.set(value);
+    this.page.set(1);
+  }
+
+  protected sortBy(sort: Sort): void {
+    this.sort.set(sort);
+    this.page.set(1);
+  }
+
+  protected changePage(event: PageEvent): void {
+    this.page.set(event.pageIndex + 1);
+    this.pageSize.set(event.pageSize);
+  }
+
+  protected clearFilters(): void {
+    this.searchText.set('');
+    this.tag.set('');
+    this.author.set('');
+    this.recheck.set('');
+    this.page.set(1);
+  }
+
+  protected caseLink(row: CaseSummary): string[] {
+    return ['/cases', row.id, 'r', String(row.latestRevision)];
+  }
+
+  protected createCase(): void {
+    const lab = this.lab();
+    if (!lab) return;
+    this.dialog
+      .open<CreateCaseDialog, CreateCaseData>(CreateCaseDialog, { data: { labId: lab.id, labName: lab.name } })
+      .afterClosed()
+      .subscribe((created: unknown) => {
+        if (isCreated(created)) void this.router.navigate(['/cases', created.id, 'r', String(created.latestRevision)]);
+      });
+  }
+
+  protected duplicate(row: CaseSummary): void {
+    this.api.duplicateCase(row.id, `${row.title} (copy)`).subscribe({
+      next: (copy) => {
+        this.cases.reload();
+        this.snackBar
+          .open(`Duplicated as "${copy.title}".`, 'Open', { duration: 6000 })
+          .onAction()
+          .subscribe(() => void this.router.navigate(['/cases', copy.id, 'r', String(copy.latestRevision)]));
+      },
+      error: (error: unknown) => this.errorHandler.handleError(error),
+    });
+  }
+
+  protected setArchivedFor(row: CaseSummary, archived: boolean): void {
+    this.api.updateCase(row.id, { archived }).subscribe({
+      next: () => {
+        this.cases.reload();
+        const ref = this.snackBar.open(
+          archived ? `Archived "${row.title}".` : `Restored "${row.title}".`,
+          archived ? 'Undo' : undefined,
+          { duration: 6000 },
+        );
+        if (archived) ref.onAction().subscribe(() => this.setArchivedFor(row, false));
+      },
+      error: (error: unknown) => this.errorHandler.handleError(error),
+    });
+  }
+}
+
+function isCreated(value: unknown): value is { id: string; latestRevision: number } {
+  return typeof value === 'object' && value !== null && 'id' in value && typeof value.id === 'string';
+}
