@@ -1,4 +1,4 @@
-import { lastValueFrom, toArray } from 'rxjs';
+import { lastValueFrom, toArray, type Observable } from 'rxjs';
 import { afterAll, describe, expect, it } from 'vitest';
 import { templateCase, type CaseParams } from '../case';
 import { defaultChartGrid, stabilityChart, type Grid2 } from '../engine/chart';
@@ -34,8 +34,8 @@ function shortCase(): CaseParams {
   return { ...c, run: { ...c.run, duration: 2, outputPoints: 400 } };
 }
 
-async function resultOf<T>(events: Promise<PoolEvent<T>[]>): Promise<{ value: T; progress: number[] }> {
-  const all = await events;
+async function collect<T>(job: Observable<PoolEvent<T>>): Promise<{ value: T; progress: number[] }> {
+  const all = await lastValueFrom(job.pipe(toArray()));
   const last = all[all.length - 1];
   if (last.type !== 'result') throw new Error('no result');
   return { value: last.value, progress: all.flatMap((e) => (e.type === 'progress' ? [e.fraction] : [])) };
@@ -59,7 +59,7 @@ describe('WorkerPool over worker_threads', () => {
   it('gives the same chart as a single-thread run, with monotone progress ending at 1', async () => {
     const c = templateCase();
     const grid = defaultChartGrid(c, 40);
-    const { value, progress } = await resultOf(lastValueFrom(pool.chart(c, grid).pipe(toArray())));
+    const { value, progress } = await collect(pool.chart(c, grid));
     const single = stabilityChart(c, grid);
     expect(Array.from(value.maxMultiplier)).toEqual(Array.from(single.maxMultiplier));
     expect(progress.length).toBeGreaterThan(2);
@@ -92,7 +92,7 @@ describe('WorkerPool over worker_threads', () => {
     expect(seen).not.toContain('result');
     expect(terminated).toBeGreaterThan(before);
     // The pool replaces the terminated threads and keeps working.
-    const { value } = await resultOf(lastValueFrom(pool.margins(templateCase()).pipe(toArray())));
+    const { value } = await collect(pool.margins(templateCase()));
     expect(value.uprightHolds).toBe(true);
     expect(threads).toBeGreaterThan(2);
   }, 60_000);
@@ -110,7 +110,7 @@ describe('WorkerPool determinism', () => {
     const results = [];
     for (const size of [1, 3]) {
       const pool = new WorkerPool(inThreadWorker, size);
-      results.push((await resultOf(lastValueFrom(pool.sweep(c, spec).pipe(toArray())))).value);
+      results.push((await collect(pool.sweep(c, spec))).value);
       pool.dispose();
     }
     const single = sweep(c, spec);
@@ -143,7 +143,7 @@ describe('fromWebWorker', () => {
       return fromWebWorker(handle);
     };
     const pool = new WorkerPool(factory, 1);
-    const { value } = await resultOf(lastValueFrom(pool.margins(templateCase()).pipe(toArray())));
+    const { value } = await collect(pool.margins(templateCase()));
     expect(value.uprightHolds).toBe(true);
     expect(made).toHaveLength(1);
     pool.dispose();

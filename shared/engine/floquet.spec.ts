@@ -60,7 +60,8 @@ describe('floquetAnalysis', () => {
   it('gives multipliers whose product is exp(-2 zeta w0 T) (Liouville formula)', () => {
     const c = templateCase();
     const r = floquetAnalysis(c);
-    const [m1, m2] = r.upright?.multipliers ?? [];
+    if (!r.upright) throw new Error('no upright found');
+    const [m1, m2] = r.upright.multipliers;
     const product = m1.re * m2.re - m1.im * m2.im;
     const w0 = Math.sqrt(c.gravity / 0.2);
     expectClose(product, Math.exp(-2 * c.damping.viscousRatio * w0 * r.period), 1e-8, 'det of monodromy');
