@@ -23,7 +23,7 @@ const USAGE = `usage: npm run cli -- <command> [options]
   motion  <case.json>                      simulate the motion; outcome and series
   margins <case.json> [--tolerance 1e-6]   Floquet multipliers, periodic motions, drive limits, margin
   sweep   <case.json> --field drive.amplitude --from X --to Y --steps N [--log] [--tolerance T]
-  chart   <case.json> [--freq-from F --freq-to F --amp-from A --amp-to A --n 200 --linear]
+  chart   <case.json> [--freq-from F --freq-to F --amp-from A --amp-to A --n 200 (40 oblique) --linear]
   map     <case.json> --x-field F --x-from X --x-to X --y-field F --y-from Y --y-to Y [--n 9]
   basin   <case.json> [--n 11 --angle-from -3.14 --angle-to 3.14 --rate-from R --rate-to R]
   check   <run.json>                       rerun a stored run record and compare digest and summary
@@ -92,7 +92,9 @@ async function onPool<T>(args: ParsedArgs, label: string, job: (pool: ReturnType
 }
 
 function chartGrid(args: ParsedArgs, params: CaseParams): Grid2 {
-  const n = countOption(args, 'n', 200, 1000);
+  // Oblique drives take the general path (Newton per cell, a few ms each): a coarser default grid.
+  const vertical = Math.abs(Math.sin(params.drive.direction)) < 1e-12;
+  const n = countOption(args, 'n', vertical ? 200 : 40, 1000);
   const def = defaultChartGrid(params, n);
   const scale = flag(args, 'linear') ? 'linear' : 'log';
   const grid: Grid2 = {

@@ -49,6 +49,28 @@ describe('stabilityChart', () => {
     expect(checked - insideCount).toBeGreaterThan(100);
   });
 
+  it('follows the periodic motion near the upright for an oblique drive (general path, Newton per cell)', () => {
+    const c = setField(templateCase(), 'drive.direction', 0.2);
+    const grid = defaultChartGrid(c, 6);
+    const chart = stabilityChart(c, grid);
+    expect(chart.method).toBe('general');
+    const xs = axisValues(grid.x);
+    const ys = axisValues(grid.y);
+    let holding = 0;
+    for (let r = 0; r < 6; r++) {
+      for (let i = 0; i < 6; i++) {
+        const ref = uprightMaxMultiplier(setField(setField(c, 'drive.amplitude', ys[r]), 'drive.frequency', xs[i]));
+        const v = chart.maxMultiplier[r * 6 + i];
+        if (Number.isFinite(ref)) expect(Math.abs(v - ref), `cell (${r}, ${i}): ${v} vs ${ref}`).toBeLessThan(1e-6 * ref);
+        else expect(v).toBe(Infinity);
+        if (v < 1) holding++;
+      }
+    }
+    expect(holding).toBeGreaterThan(0);
+    const split = [...stabilityChartRows(c, grid, 0, 2).values, ...stabilityChartRows(c, grid, 2, 6).values];
+    expect(split).toEqual(Array.from(chart.maxMultiplier));
+  }, 60_000);
+
   it('gives identical numbers however the rows are split', () => {
     const c = DEMO_RIGS[1].params;
     const grid: Grid2 = defaultChartGrid(c, 24);

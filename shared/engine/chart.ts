@@ -20,7 +20,7 @@ import { buildModel, jacobian } from './equations';
 import { mathieuMapping } from './mathieu';
 import { driveShape } from './drive';
 import { magnusMonodromySampled, richardson4, spectralRadius2 } from './monodromy';
-import { uprightMaxMultiplier } from './floquet';
+import { uprightMaxMultiplier, uprightMotion } from './floquet';
 import { steadyDrive } from './periodic-system';
 import { ENGINE_VERSION } from './version';
 
@@ -135,8 +135,13 @@ export function stabilityChartRows(
     for (let r = rowFrom; r < rowTo; r++) {
       if (shouldCancel?.()) return { values, cancelled: true };
       const rowCase = setField(steady, grid.y.field, ys[r]);
+      // Continuation along the row: each cell's Newton starts from its left neighbour's periodic motion. Rows
+      // start from rest, so the numbers do not depend on how rows are split between workers.
+      let guess: [number, number] | undefined;
       for (let i = 0; i < nx; i++) {
-        values[(r - rowFrom) * nx + i] = uprightMaxMultiplier(setField(rowCase, grid.x.field, xs[i]));
+        const motion = uprightMotion(setField(rowCase, grid.x.field, xs[i]), guess);
+        values[(r - rowFrom) * nx + i] = motion ? motion.maxMultiplier : Infinity;
+        guess = motion ? [motion.angle, motion.rate] : undefined;
       }
       onProgress?.((r - rowFrom + 1) / rows);
     }

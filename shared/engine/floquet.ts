@@ -138,16 +138,18 @@ function isVertical(params: CaseParams): boolean {
 /**
  * The upright's periodic motion and multipliers. Vertical drive: the exact equilibrium theta = 0 with the linear
  * monodromy (Magnus + Richardson). Otherwise the fixed point of the period map nearest the upright, by Newton from
- * rest at theta = 0.
+ * `start` (default rest at theta = 0; when a start other than rest fails, rest is tried too). A motion whose mean
+ * angle is more than 0.5 rad from the upright does not count.
  */
-export function uprightMotion(params: CaseParams): PeriodicMotion | null {
+export function uprightMotion(params: CaseParams, start?: readonly [number, number]): PeriodicMotion | null {
   const steady = steadyDrive(params);
   const sys = periodicSystem(steady);
   if (isVertical(steady)) {
     const m = uprightMonodromy(sys);
     return describe(0, 0, 0, m, 'upright');
   }
-  const fp = findPeriodicMotion(sys, 0, 0);
+  let fp = start ? findPeriodicMotion(sys, start[0], start[1]) : null;
+  if (!fp || Math.abs(wrapAngle(fp.meanAngle)) > 0.5) fp = findPeriodicMotion(sys, 0, 0);
   if (!fp || Math.abs(wrapAngle(fp.meanAngle)) > 0.5) return null;
   return describe(fp.theta, fp.rate, fp.meanAngle, fp.monodromy, 'upright');
 }

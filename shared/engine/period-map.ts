@@ -89,7 +89,7 @@ export interface FixedPoint {
 /**
  * Newton's method on P(x) - x = 0 from (theta, rate). Steps are limited to 0.5 rad / 0.5 omega-scaled rate so
  * a poor start cannot jump across the circle. Converged when the residual is below 1e-10 (rad, rad/s scaled by the
- * drive angular frequency). Returns null when it does not converge in `maxIterations` or Phi - I is singular.
+ * drive angular frequency) or the Newton step below 1e-11. Returns null when it does not converge in `maxIterations` or Phi - I is singular.
  */
 export function findPeriodicMotion(
   sys: PeriodicSystem, theta: number, rate: number, maxIterations = 30,
@@ -111,6 +111,11 @@ export function findPeriodicMotion(
     if (!Number.isFinite(det) || Math.abs(det) < 1e-14) return null;
     let d0 = -(d * g0 - b * g1) / det;
     let d1 = -(-c * g0 + a * g1) / det;
+    // A Newton step this small lands within rounding of the fixed point (quadratic convergence): accept it without
+    // another period map; the monodromy changes by O(step) there.
+    if (Math.abs(d0) < 1e-11 && Math.abs(d1) < 1e-11 * omega) {
+      return { theta: th + d0, rate: w + d1, monodromy: r.monodromy, meanAngle: r.meanAngle, iterations: k + 1 };
+    }
     const scale = Math.max(Math.abs(d0) / 0.5, Math.abs(d1) / (0.5 * omega), 1);
     d0 /= scale;
     d1 /= scale;
