@@ -1,5 +1,5 @@
 import { HttpClient } from '@angular/common/http';
-import { Injectable, computed, inject, signal } from '@angular/core';
+import { Injectable, computed, inject, signal, untracked } from '@angular/core';
 import { Observable, map, switchMap, tap } from 'rxjs';
 
 export type LabRole = 'owner' | 'analyst' | 'reviewer' | 'viewer';
@@ -70,7 +70,7 @@ export class Session {
       map((reply) => {
         const user = isRecord(reply) ? parseUser(reply['user']) : null;
         if (!isRecord(reply) || !user) throw new Error('The server sent an unexpected reply about your account.');
-        return { user, memberships: parseMemberships(reply['memberships']) };
+        return { user, memberships: parseMeMemberships(reply['memberships']) };
       }),
       tap((me) => {
         const current = this.state();
@@ -103,9 +103,11 @@ export class Session {
     });
   }
 
+  /** Safe to call from an effect: it neither tracks nor rewrites the state when nothing changes. */
   selectLab(labId: string): void {
-    const current = this.state();
-    if (!current || !current.memberships.some((m) => m.lab.id === labId)) return;
+    const current = untracked(this.state);
+    if (!current || current.currentLabId === labId) return;
+    if (!current.memberships.some((m) => m.lab.id === labId)) return;
     this.store({ ...current, currentLabId: labId });
   }
 
@@ -174,6 +176,16 @@ function parseMembership(value: unknown): Membership | null {
 function parseMemberships(value: unknown): Membership[] {
   const list = Array.isArray(value) ? value : [];
   return list.map(parseMembership).filter((m): m is Membership => m !== null);
+}
+
+/** `GET /api/me` lists memberships as `{ labId, labName, role }`. */
+function parseMeMemberships(value: unknown): Membership[] {
+  const list = Array.isArray(value) ? value : [];
+  return parseMemberships(
+    list.map((entry: unknown) =>
+      isRecord(entry) ? { lab: { id: entry['labId'], name: entry['labName'] }, role: entry['role'] } : null,
+    ),
+  );
 }
 
 /** Stored data may come from an older build or be tampered with: accept only what parses. */

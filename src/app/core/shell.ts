@@ -60,7 +60,10 @@ export class Shell {
   protected readonly currentRole = computed(() => this.session.currentMembership()?.role ?? null);
   protected readonly navItems = computed<readonly NavItem[]>(() => {
     const lab = this.currentLab();
-    const items: NavItem[] = [{ label: 'Home', icon: 'home', link: '/', exact: true }];
+    const items: NavItem[] = [
+      { label: 'Home', icon: 'home', link: '/', exact: true },
+      { label: 'New case', icon: 'add_circle', link: '/cases/new', exact: false },
+    ];
     if (lab) items.push({ label: 'Lab members', icon: 'group', link: `/labs/${lab.id}`, exact: false });
     return items;
   });

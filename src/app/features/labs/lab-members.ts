@@ -9,6 +9,9 @@ export interface LabMember {
   readonly role: LabRole;
 }
 
+/** The server's largest page; labs are small teams, so one page shows everyone. */
+const MEMBER_PAGE_SIZE = 500;
+
 export const LAB_ROLES: readonly { readonly value: LabRole; readonly label: string; readonly can: string }[] = [
   { value: 'owner', label: 'Owner', can: 'manages members and everything below' },
   { value: 'analyst', label: 'Analyst', can: 'creates cases, saves revisions and runs' },
@@ -16,18 +19,46 @@ export const LAB_ROLES: readonly { readonly value: LabRole; readonly label: stri
   { value: 'viewer', label: 'Viewer', can: 'reads cases and runs' },
 ];
 
-/** Accepts either a bare list or `{ members: [...] }`, and drops entries that do not parse. */
+/** A pending invitation for an address that has no account yet. */
+export interface LabInvitation {
+  readonly email: string;
+  readonly role: LabRole;
+  readonly expiresAt: string;
+}
+
+export type AddMemberResult =
+  | { readonly kind: 'member'; readonly member: LabMember }
+  | { readonly kind: 'invitation'; readonly invitation: LabInvitation; readonly mailed: boolean };
+
+function isRecord(value: unknown): value is Record<string, unknown> {
+  return typeof value === 'object' && value !== null;
+}
+
+/** One `{ userId, name, email, role }` entry of the members page. */
+function parseMember(value: unknown): LabMember | null {
+  if (!isRecord(value) || !isLabRole(value['role'])) return null;
+  const user = parseUser({ id: value['userId'], name: value['name'], email: value['email'] });
+  return user ? { user, role: value['role'] } : null;
+}
+
+/** `GET /api/labs/:labId/members` answers a page: `{ items, total, limit, offset }`. */
 export function parseMembers(reply: unknown): LabMember[] {
-  const list: unknown =
-    typeof reply === 'object' && reply !== null && 'members' in reply ? reply.members : reply;
-  if (!Array.isArray(list)) return [];
-  const members: LabMember[] = [];
-  for (const entry of list as unknown[]) {
-    if (typeof entry !== 'object' || entry === null || !('role' in entry) || !('user' in entry)) continue;
-    const user = parseUser(entry.user);
-    if (user && isLabRole(entry.role)) members.push({ user, role: entry.role });
+  const items = isRecord(reply) && Array.isArray(reply['items']) ? (reply['items'] as unknown[]) : [];
+  return items.map(parseMember).filter((m): m is LabMember => m !== null);
+}
+
+export function parseAddResult(reply: unknown): AddMemberResult {
+  if (isRecord(reply) && reply['kind'] === 'member') {
+    const member = parseMember(reply['member']);
+    if (member) return { kind: 'member', member };
   }
-  return members;
+  if (isRecord(reply) && reply['kind'] === 'invitation' && isRecord(reply['invitation'])) {
+    const { email, role, expiresAt } = reply['invitation'];
+    if (typeof email === 'string' && isLabRole(role) && typeof expiresAt === 'string') {
+      return { kind: 'invitation', invitation: { email, role, expiresAt }, mailed: reply['mailed'] === true };
+    }
+  }
+  throw new Error('The server sent an unexpected reply to adding a member.');
 }
 
 /** The lab membership endpoints. The server enforces who may call which. */
@@ -36,11 +67,16 @@ export class LabMembers {
   private readonly http = inject(HttpClient);
 
   list(labId: string): Observable<LabMember[]> {
-    return this.http.get<unknown>(`/api/labs/${encodeURIComponent(labId)}/members`).pipe(map(parseMembers));
+    return this.http
+      .get<unknown>(`/api/labs/${encodeURIComponent(labId)}/members`, { params: { limit: MEMBER_PAGE_SIZE } })
+      .pipe(map(parseMembers));
   }
 
-  add(labId: string, email: string, role: LabRole): Observable<unknown> {
-    return this.http.post<unknown>(`/api/labs/${encodeURIComponent(labId)}/members`, { email, role });
+  /** Adds an existing account, or invites an address that has none yet. */
+  add(labId: string, email: string, role: LabRole): Observable<AddMemberResult> {
+    return this.http
+      .post<unknown>(`/api/labs/${encodeURIComponent(labId)}/members`, { email, role })
+      .pipe(map(parseAddResult));
   }
 
   changeRole(labId: string, userId: string, role: LabRole): Observable<unknown> {

@@ -22,7 +22,7 @@ import { MatTableModule } from '@angular/material/table';
 
 import { apiErrorOf, describeError } from '../../core/error-message';
 import { LabRole, Session } from '../../core/session';
-import { LAB_ROLES, LabMember, LabMembers } from './lab-members';
+import { AddMemberResult, LAB_ROLES, LabMember, LabMembers } from './lab-members';
 
 @Component({
   selector: 'qp-lab-page',
@@ -96,13 +96,11 @@ export class LabPage {
     const { email, role } = this.addForm.getRawValue();
     this.adding.set(true);
     this.labMembers.add(this.labId(), email.trim(), role).subscribe({
-      next: () => {
+      next: (result) => {
         this.adding.set(false);
         formDirective.resetForm({ email: '', role: 'analyst' });
         this.members.reload();
-        this.snackBar.open(`Added ${email.trim()} as ${this.roleLabel(role).toLowerCase()}.`, 'OK', {
-          duration: 4000,
-        });
+        this.snackBar.open(this.describeAdded(result), 'OK', { duration: 6000 });
       },
       error: (error: unknown) => {
         this.adding.set(false);
@@ -114,6 +112,17 @@ export class LabPage {
         }
       },
     });
+  }
+
+  private describeAdded(result: AddMemberResult): string {
+    if (result.kind === 'member') {
+      return `Added ${result.member.user.name} as ${this.roleLabel(result.member.role).toLowerCase()}.`;
+    }
+    const { email, role } = result.invitation;
+    const as = this.roleLabel(role).toLowerCase();
+    return result.mailed
+      ? `${email} has no account yet: we e-mailed them an invitation to join as ${as}.`
+      : `${email} has no account yet: an invitation to join as ${as} was created, but the e-mail could not be sent.`;
   }
 
   protected changeRole(member: LabMember, role: LabRole): void {
