@@ -113,7 +113,10 @@ export function variedCase(params: CaseParams, changes: ReadonlyArray<[string, n
 
 /** Motion outcome of one varied case. */
 export function motionCell(params: CaseParams, changes: ReadonlyArray<[string, number]>, shouldCancel?: () => boolean): MapCell {
-  const c = variedCase(params, changes);
+  return cellOf(variedCase(params, changes), shouldCancel);
+}
+
+function cellOf(c: CaseParams | string, shouldCancel?: () => boolean): MapCell {
   if (typeof c === 'string') {
     return { outcome: null, meanAngle: null, maxDeviation: null, slowFrequencyHz: null, error: c };
   }
@@ -132,8 +135,8 @@ export function sweepPoints(params: CaseParams, spec: SweepSpec, from: number, t
   const points: SweepPoint[] = [];
   for (let i = from; i < to; i++) {
     if (hooks.shouldCancel?.()) throw new EngineCancelledError();
-    const cell = motionCell(params, [[spec.field, values[i]]], hooks.shouldCancel);
     const c = variedCase(params, [[spec.field, values[i]]]);
+    const cell = cellOf(c, hooks.shouldCancel);
     const maxMultiplier = typeof c === 'string' ? null : uprightMaxMultiplier(c);
     points.push({ index: i, value: values[i], ...cell, maxMultiplier });
     hooks.onProgress?.((i - from + 1) / (to - from));
