@@ -31,6 +31,10 @@ export const routes: Routes = [
         },
       },
       {
+        path: 'cases',
+        loadChildren: () => import('./features/case/case.routes').then((m) => m.CASE_ROUTES),
+      },
+      {
         path: 'labs/:labId',
         title: 'Lab · Quiverpoint',
         loadComponent: () => import('./features/labs/lab-page').then((m) => m.LabPage),

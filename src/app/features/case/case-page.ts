@@ -1,0 +1,136 @@
+import { ChangeDetectionStrategy, Component, ErrorHandler, computed, inject, signal } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { FormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatSnackBar } from '@angular/material/snack-bar';
+import { MatTabsModule } from '@angular/material/tabs';
+import { MatTooltipModule } from '@angular/material/tooltip';
+import { ActivatedRoute, Router, RouterLink, RouterLinkActive, RouterOutlet } from '@angular/router';
+import { EMPTY, catchError, combineLatest, switchMap, tap } from 'rxjs';
+
+import { downloadText } from '../../ui/csv';
+import { caseFileJson, caseFileName, readCaseFile } from './case-file';
+import { CASE_TABS } from './case-tabs';
+import { CaseWorkspace, messageOf } from './case-workspace';
+
+/** The case page: toolbar (title, revision, Save, case file in and out) over the tab bar of the case's tabs. */
+@Component({
+  selector: 'qp-case-page',
+  imports: [
+    FormsModule,
+    MatButtonModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatTabsModule,
+    MatTooltipModule,
+    RouterLink,
+    RouterLinkActive,
+    RouterOutlet,
+  ],
+  providers: [CaseWorkspace],
+  templateUrl: './case-page.html',
+  styleUrl: './case-page.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class CasePage {
+  private readonly route = inject(ActivatedRoute);
+  private readonly router = inject(Router);
+  private readonly snackBar = inject(MatSnackBar);
+  private readonly errorHandler = inject(ErrorHandler);
+  protected readonly workspace = inject(CaseWorkspace);
+
+  protected readonly tabs = CASE_TABS;
+  protected readonly problem = signal<string | null>(null);
+  protected readonly opened = this.workspace.opened;
+  protected readonly revisionLabel = computed(() => {
+    const opened = this.opened();
+    if (!opened) return 'not saved yet';
+    const latest = opened.latestRevision > opened.revision ? ` (latest r${opened.latestRevision})` : '';
+    return `r${opened.revision}${latest}`;
+  });
+  protected readonly canSave = computed(
+    () => !this.workspace.saving() && !this.workspace.readOnly() && this.workspace.valid() && !this.workspace.loading(),
+  );
+  protected readonly unsavedRuns = computed(() => this.workspace.runs().length);
+  protected readonly saveHint = computed(() => {
+    if (this.workspace.readOnly()) return 'Your role cannot save this case';
+    if (!this.workspace.valid()) return 'Some Rig fields need attention';
+    if (this.workspace.isNew()) return 'Create the case with its first revision';
+    if (this.workspace.dirty()) return 'Save these inputs as a new revision';
+    return this.unsavedRuns() > 0 ? 'Store the new runs with this revision' : 'Nothing new to save';
+  });
+
+  constructor() {
+    combineLatest([this.route.paramMap, this.route.queryParamMap])
+      .pipe(
+        switchMap(([params, query]) => {
+          this.problem.set(null);
+          const caseId = params.get('caseId');
+          if (!caseId) {
+            this.workspace.startNew(query.get('preset'));
+            return EMPTY;
+          }
+          const rev = params.get('rev');
+          return this.workspace.open(caseId, rev === null ? undefined : Number(rev)).pipe(
+            tap((opened) => {
+              if (rev === null) void this.router.navigate(['/cases', opened.caseId, 'r', opened.revision], { replaceUrl: true });
+            }),
+            catchError(() => EMPTY),
+          );
+        }),
+        takeUntilDestroyed(),
+      )
+      .subscribe();
+  }
+
+  protected save(): void {
+    this.problem.set(null);
+    this.workspace.save().subscribe({
+      next: ({ saved, runsStored, newRevision }) => {
+        const runs = runsStored === 1 ? '1 run' : `${runsStored} runs`;
+        const what = newRevision ? `Saved as r${saved.revision}` : `Stored with r${saved.revision}`;
+        this.snackBar.open(`${what}${runsStored ? ` with ${runs}` : ''}.`, 'OK', { duration: 5000 });
+        const tab = this.currentTab();
+        void this.router.navigate(['/cases', saved.caseId, 'r', saved.revision, tab]);
+      },
+      error: (error: unknown) => this.problem.set(messageOf(error)),
+    });
+  }
+
+  protected downloadCase(): void {
+    const title = this.workspace.title();
+    downloadText(caseFileName(title, 'json'), caseFileJson(title, this.workspace.draft()), 'application/json');
+  }
+
+  protected async uploadCase(input: HTMLInputElement): Promise<void> {
+    const file = input.files?.[0];
+    input.value = '';
+    if (!file) return;
+    try {
+      const result = readCaseFile(await file.text());
+      if (!result.ok) {
+        this.problem.set(`${file.name}: ${result.message}`);
+        return;
+      }
+      this.problem.set(null);
+      this.workspace.applyParams(result.params);
+      if (this.workspace.isNew()) this.workspace.title.set(result.title);
+      this.snackBar.open(`Loaded "${result.title}" from ${file.name}. Save to keep it as a revision.`, 'OK', { duration: 5000 });
+    } catch (error: unknown) {
+      this.errorHandler.handleError(error);
+    }
+  }
+
+  protected dismissProblem(): void {
+    this.problem.set(null);
+  }
+
+  private currentTab(): string {
+    const child = this.route.firstChild?.snapshot.url[0]?.path;
+    return child && this.tabs.some((t) => t.path === child) ? child : this.tabs[0].path;
+  }
+}

@@ -1,0 +1,58 @@
+import { InjectionToken, inject } from '@angular/core';
+import type { Observable } from 'rxjs';
+
+import type { CaseParams } from '../../../../shared/case/case-schema';
+import type { RunKind, RunRecord, RunSettings, RunSummary } from '../../../../shared/engine/run-record';
+import { LocalCaseRepository } from './local-case-repository';
+
+export { CaseRepositoryError, type CaseRepositoryErrorCode } from './case-repository-error';
+
+/** A run as stored with a revision. */
+export interface StoredRun {
+  readonly id: string;
+  readonly kind: RunKind;
+  readonly settings: RunSettings;
+  readonly summary: RunSummary;
+  readonly resultDigest: string;
+  readonly engineVersion: string;
+  readonly author?: { readonly id: string; readonly name: string };
+  readonly createdAt: string;
+}
+
+/** One revision of a case as the case page sees it. */
+export interface OpenedCase {
+  readonly caseId: string;
+  readonly title: string;
+  readonly tags: readonly string[];
+  readonly labId?: string;
+  readonly revision: number;
+  readonly latestRevision: number;
+  readonly params: CaseParams;
+  readonly paramsDigest: string;
+  /** True when the signed-in user may not save revisions or runs of this case. */
+  readonly readOnly: boolean;
+  readonly runs: readonly StoredRun[];
+}
+
+export interface NewCase {
+  readonly labId: string | null;
+  readonly title: string;
+  readonly tags: readonly string[];
+  readonly params: CaseParams;
+  readonly note: string;
+}
+
+/** Where case revisions and their runs are kept (the browser's storage now, the API later). */
+export interface CaseRepository {
+  /** The given revision, or the latest when `revision` is absent. */
+  open(caseId: string, revision?: number): Observable<OpenedCase>;
+  create(input: NewCase): Observable<OpenedCase>;
+  /** A new revision on top of `baseRevision`; fails with code `stale-revision` when that is no longer the latest. */
+  saveRevision(caseId: string, baseRevision: number, params: CaseParams, note: string): Observable<OpenedCase>;
+  saveRun(caseId: string, revision: number, run: RunRecord): Observable<StoredRun>;
+}
+
+export const CASE_REPOSITORY = new InjectionToken<CaseRepository>('CASE_REPOSITORY', {
+  providedIn: 'root',
+  factory: () => inject(LocalCaseRepository),
+});

@@ -1,0 +1,293 @@
+import { DestroyRef, Injectable, computed, inject, signal } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { Observable, catchError, finalize, forkJoin, map, of, switchMap, tap, throwError } from 'rxjs';
+
+import { caseDigest } from '../../../../shared/case/canonical';
+import type { CaseParams } from '../../../../shared/case/case-schema';
+import { demoRigCase, templateCase } from '../../../../shared/case/templates';
+import type { CaseIssue } from '../../../../shared/case/validate';
+import type { Grid2, StabilityChart } from '../../../../shared/engine/chart';
+import type { FloquetAnalysis } from '../../../../shared/engine/floquet';
+import type { MotionResult } from '../../../../shared/engine/motion';
+import { makeRunRecord, type RunRecord, type RunResult, type RunSettings } from '../../../../shared/engine/run-record';
+import type { SweepResult, SweepSpec } from '../../../../shared/engine/sweep';
+import type { BasinMapResult } from '../../../../shared/compute/worker-pool';
+import { ENGINE_POOL } from '../../core/compute/engine-pool';
+import { describeError } from '../../core/error-message';
+import { Session } from '../../core/session';
+import { CASE_REPOSITORY, type OpenedCase, type StoredRun } from './case-repository';
+import { CaseRepositoryError } from './case-repository-error';
+import { PoolJob } from './pool-job';
+import { DEFAULT_UNITS, RigForm, type DisplayUnits } from './rig/rig-form';
+
+/** A result together with the case it was computed for. */
+export interface Computed<T> {
+  readonly value: T;
+  readonly params: CaseParams;
+  readonly paramsDigest: string;
+  readonly settings: RunSettings;
+}
+
+/** A save that went through: the revision now shown and how many runs were stored with it. */
+export interface SaveOutcome {
+  readonly saved: OpenedCase;
+  readonly runsStored: number;
+  readonly newRevision: boolean;
+}
+
+/**
+ * State of one case page, shared by its tabs: the opened revision, the Rig form and its validated draft, the
+ * results of each tab with the case they belong to, the runs computed this session (saved with the next Save), and
+ * the worker jobs (which keep running while the user switches tabs).
+ */
+@Injectable()
+export class CaseWorkspace {
+  private readonly repository = inject(CASE_REPOSITORY);
+  private readonly pool = inject(ENGINE_POOL);
+  private readonly session = inject(Session);
+  private readonly destroyRef = inject(DestroyRef);
+
+  private readonly openedState = signal<OpenedCase | null>(null);
+  private readonly loadingState = signal(false);
+  private readonly loadErrorState = signal<string | null>(null);
+  private readonly draftState = signal<CaseParams>(templateCase());
+  private readonly issuesState = signal<readonly CaseIssue[]>([]);
+  private readonly unitsState = signal<DisplayUnits>(DEFAULT_UNITS);
+  private readonly runsState = signal<readonly RunRecord[]>([]);
+  private readonly savingState = signal(false);
+  private readonly motionState = signal<Computed<MotionResult> | null>(null);
+  private readonly marginsState = signal<Computed<FloquetAnalysis> | null>(null);
+  private readonly sweepState = signal<Computed<SweepResult> | null>(null);
+  private readonly chartState = signal<Computed<StabilityChart> | null>(null);
+  private readonly basinState = signal<Computed<BasinMapResult> | null>(null);
+  private readonly formTickState = signal(0);
+
+  readonly form = new RigForm(templateCase(), DEFAULT_UNITS);
+  readonly title = signal('New case');
+
+  readonly opened = this.openedState.asReadonly();
+  readonly loading = this.loadingState.asReadonly();
+  readonly loadError = this.loadErrorState.asReadonly();
+  /** The last valid case the form held (SI). Computations always use it. */
+  readonly draft = this.draftState.asReadonly();
+  /** Issues of the form's current content; empty when the draft matches the form. */
+  readonly issues = this.issuesState.asReadonly();
+  readonly valid = computed(() => this.issuesState().length === 0);
+  readonly draftDigest = computed(() => caseDigest(this.draftState()));
+  readonly units = this.unitsState.asReadonly();
+  /** Counts changes of the form (edits, presets, unit switches) for views that read control values. */
+  readonly formTick = this.formTickState.asReadonly();
+  /** Runs computed this session and not yet saved. */
+  readonly runs = this.runsState.asReadonly();
+  readonly saving = this.savingState.asReadonly();
+  readonly isNew = computed(() => this.openedState() === null);
+  readonly readOnly = computed(() => this.openedState()?.readOnly ?? false);
+  /** The draft differs from the opened revision (always true for a new case). */
+  readonly dirty = computed(() => {
+    const opened = this.openedState();
+    return opened === null || opened.paramsDigest !== this.draftDigest();
+  });
+  readonly storedRuns = computed<readonly StoredRun[]>(() => this.openedState()?.runs ?? []);
+
+  readonly motion = this.motionState.asReadonly();
+  readonly margins = this.marginsState.asReadonly();
+  readonly sweep = this.sweepState.asReadonly();
+  readonly chart = this.chartState.asReadonly();
+  readonly basin = this.basinState.asReadonly();
+
+  readonly motionJob = new PoolJob<MotionResult>();
+  readonly marginsJob = new PoolJob<FloquetAnalysis>();
+  readonly sweepJob = new PoolJob<SweepResult>();
+  readonly chartJob = new PoolJob<StabilityChart>();
+  readonly basinJob = new PoolJob<BasinMapResult>();
+
+  constructor() {
+    this.form.group.valueChanges.pipe(takeUntilDestroyed(this.destroyRef)).subscribe(() => this.readForm());
+    this.destroyRef.onDestroy(() => {
+      for (const job of this.jobs()) job.cancel();
+    });
+  }
+
+  /** Starts a new, unsaved case from the template or a demo rig. */
+  startNew(presetId?: string | null): void {
+    this.reset();
+    this.openedState.set(null);
+    this.loadErrorState.set(null);
+    const preset = presetId ? demoRigCase(presetId) : undefined;
+    this.title.set('New case');
+    this.applyParams(preset ?? templateCase());
+  }
+
+  /** Opens a stored revision (the latest when `revision` is absent); keeps state when it is already open. */
+  open(caseId: string, revision?: number): Observable<OpenedCase> {
+    const current = this.openedState();
+    if (current && current.caseId === caseId && (revision === undefined || current.revision === revision)) {
+      return of(current);
+    }
+    this.reset();
+    this.loadingState.set(true);
+    this.loadErrorState.set(null);
+    return this.repository.open(caseId, revision).pipe(
+      tap((opened) => {
+        this.openedState.set(opened);
+        this.title.set(opened.title);
+        this.applyParams(opened.params);
+      }),
+      catchError((error: unknown) => {
+        this.loadErrorState.set(messageOf(error));
+        return throwError(() => error);
+      }),
+      finalize(() => this.loadingState.set(false)),
+    );
+  }
+
+  /** Replaces the whole case (preset, uploaded file, opened revision): fills the form and the draft. */
+  applyParams(params: CaseParams): void {
+    this.form.setParams(params);
+    this.draftState.set(params);
+    this.issuesState.set([]);
+    this.form.parse();
+    if (this.readOnly()) this.form.group.disable({ emitEvent: false });
+    else this.form.group.enable({ emitEvent: false });
+    this.formTickState.update((n) => n + 1);
+  }
+
+  setUnits(units: DisplayUnits): void {
+    this.form.setUnits(units);
+    this.unitsState.set(units);
+    this.formTickState.update((n) => n + 1);
+  }
+
+  runMotion(): void {
+    const params = this.draftState();
+    const settings: RunSettings = { kind: 'motion' };
+    this.motionJob.start(this.pool.motion(params), (value) => {
+      this.motionState.set(this.computed(value, params, settings));
+      this.record(params, settings, { kind: 'motion', value });
+    });
+  }
+
+  runMargins(relTolerance = 1e-6): void {
+    const params = this.draftState();
+    const settings: RunSettings = { kind: 'margins', relTolerance };
+    this.marginsJob.start(this.pool.margins(params, relTolerance), (value) => {
+      this.marginsState.set(this.computed(value, params, settings));
+      this.record(params, settings, { kind: 'margins', value });
+    });
+  }
+
+  runSweep(spec: SweepSpec): void {
+    const params = this.draftState();
+    const settings: RunSettings = { kind: 'sweep', spec };
+    this.sweepJob.start(this.pool.sweep(params, spec), (value) => {
+      this.sweepState.set(this.computed(value, params, settings));
+      this.record(params, settings, { kind: 'sweep', value });
+    });
+  }
+
+  runChart(grid: Grid2): void {
+    const params = this.draftState();
+    const settings: RunSettings = { kind: 'chart', grid };
+    this.chartJob.start(this.pool.chart(params, grid), (value) => {
+      this.chartState.set(this.computed(value, params, settings));
+      this.record(params, settings, { kind: 'chart', value });
+    });
+  }
+
+  runBasin(grid: Grid2): void {
+    const params = this.draftState();
+    const settings: RunSettings = { kind: 'basin', grid };
+    this.basinJob.start(this.pool.basin(params, grid), (value) => {
+      this.basinState.set(this.computed(value, params, settings));
+      this.record(params, settings, { kind: 'basin', value });
+    });
+  }
+
+  /** True when a result was computed for other inputs than the current draft. */
+  isStale(result: Computed<unknown> | null): boolean {
+    return result !== null && result.paramsDigest !== this.draftDigest();
+  }
+
+  /**
+   * Saves: a new case, or a new revision when the draft changed, then every session run computed for the saved
+   * parameters. Errors carry a message meant for the user (see `messageOf`).
+   */
+  save(note = ''): Observable<SaveOutcome> {
+    if (!this.valid()) {
+      return throwError(() => new CaseRepositoryError('invalid', 'Not saved: some Rig fields need attention first.'));
+    }
+    const opened = this.openedState();
+    const params = this.draftState();
+    const newRevision = opened === null || this.dirty();
+    const base$: Observable<OpenedCase> =
+      opened === null
+        ? this.repository.create({
+            labId: this.session.currentLab()?.id ?? null,
+            title: this.title().trim() || 'Untitled case',
+            tags: [],
+            params,
+            note,
+          })
+        : newRevision
+          ? this.repository.saveRevision(opened.caseId, opened.revision, params, note)
+          : of(opened);
+    this.savingState.set(true);
+    return base$.pipe(
+      switchMap((saved) => {
+        const pending = this.runsState().filter((r) => r.caseDigest === saved.paramsDigest);
+        const stored$ = pending.length
+          ? forkJoin(pending.map((run) => this.repository.saveRun(saved.caseId, saved.revision, run)))
+          : of([] as StoredRun[]);
+        return stored$.pipe(
+          map((stored) => {
+            this.runsState.update((runs) => runs.filter((r) => !pending.includes(r)));
+            const view: OpenedCase = { ...saved, runs: [...saved.runs, ...stored] };
+            this.openedState.set(view);
+            return { saved: view, runsStored: stored.length, newRevision };
+          }),
+        );
+      }),
+      finalize(() => this.savingState.set(false)),
+    );
+  }
+
+  private readForm(): void {
+    const result = this.form.parse();
+    if (result.ok) {
+      this.draftState.set(result.value);
+      this.issuesState.set([]);
+    } else {
+      this.issuesState.set(result.issues);
+    }
+    this.formTickState.update((n) => n + 1);
+  }
+
+  private computed<T>(value: T, params: CaseParams, settings: RunSettings): Computed<T> {
+    return { value, params, paramsDigest: caseDigest(params), settings };
+  }
+
+  private record(params: CaseParams, settings: RunSettings, result: RunResult): void {
+    const run = makeRunRecord(params, settings, result);
+    this.runsState.update((runs) => [...runs, run]);
+  }
+
+  private jobs(): PoolJob<unknown>[] {
+    return [this.motionJob, this.marginsJob, this.sweepJob, this.chartJob, this.basinJob];
+  }
+
+  private reset(): void {
+    for (const job of this.jobs()) job.cancel();
+    this.motionState.set(null);
+    this.marginsState.set(null);
+    this.sweepState.set(null);
+    this.chartState.set(null);
+    this.basinState.set(null);
+    this.runsState.set([]);
+  }
+}
+
+/** Words for a failed load or save: repository refusals as they are, 409s called out, the rest via describeError. */
+export function messageOf(error: unknown): string {
+  if (error instanceof CaseRepositoryError) return error.message;
+  return describeError(error);
+}

@@ -1,0 +1,169 @@
+import { Injectable } from '@angular/core';
+import { Observable, defer, of, throwError } from 'rxjs';
+
+import { caseDigest } from '../../../../shared/case/canonical';
+import type { CaseParams } from '../../../../shared/case/case-schema';
+import { parseCase } from '../../../../shared/case/validate';
+import type { RunRecord } from '../../../../shared/engine/run-record';
+import type {
+  CaseRepository,
+  NewCase,
+  OpenedCase,
+  StoredRun,
+} from './case-repository';
+import { CaseRepositoryError } from './case-repository-error';
+
+/** Storage key of the browser-local case library. */
+export const LOCAL_CASES_KEY = 'quiverpoint.local-cases';
+
+interface LocalRevision {
+  number: number;
+  params: CaseParams;
+  paramsDigest: string;
+  note: string;
+  createdAt: string;
+  runs: StoredRun[];
+}
+
+interface LocalCase {
+  id: string;
+  title: string;
+  tags: string[];
+  labId: string | null;
+  revisions: LocalRevision[];
+}
+
+type LocalLibrary = Record<string, LocalCase>;
+
+function newId(prefix: string): string {
+  const random = globalThis.crypto?.randomUUID?.() ?? `${Date.now().toString(36)}${Math.random().toString(36).slice(2)}`;
+  return `${prefix}-${random}`;
+}
+
+/**
+ * Cases kept in this browser's local storage: the same rules as the API (revisions and runs append-only, a save from
+ * a stale revision is refused, a run must belong to its revision's parameters).
+ */
+@Injectable({ providedIn: 'root' })
+export class LocalCaseRepository implements CaseRepository {
+  open(caseId: string, revision?: number): Observable<OpenedCase> {
+    return defer(() => {
+      const stored = this.read()[caseId];
+      if (!stored) return throwError(() => new CaseRepositoryError('not-found', 'That case does not exist in this browser.'));
+      const number = revision ?? stored.revisions.length;
+      const rev = stored.revisions.find((r) => r.number === number);
+      if (!rev) return throwError(() => new CaseRepositoryError('not-found', `Case "${stored.title}" has no revision r${number}.`));
+      return of(this.view(stored, rev));
+    });
+  }
+
+  create(input: NewCase): Observable<OpenedCase> {
+    return defer(() => {
+      const params = this.validParams(input.params);
+      const library = this.read();
+      const stored: LocalCase = {
+        id: newId('case'),
+        title: input.title.trim() || 'Untitled case',
+        tags: [...input.tags],
+        labId: input.labId,
+        revisions: [this.revision(1, params, input.note)],
+      };
+      library[stored.id] = stored;
+      this.write(library);
+      return of(this.view(stored, stored.revisions[0]));
+    });
+  }
+
+  saveRevision(caseId: string, baseRevision: number, params: CaseParams, note: string): Observable<OpenedCase> {
+    return defer(() => {
+      const library = this.read();
+      const stored = library[caseId];
+      if (!stored) return throwError(() => new CaseRepositoryError('not-found', 'That case does not exist in this browser.'));
+      const latest = stored.revisions.length;
+      if (baseRevision !== latest) {
+        return throwError(
+          () =>
+            new CaseRepositoryError(
+              'stale-revision',
+              `Not saved: you edited r${baseRevision}, but r${latest} was saved since. Open r${latest}, reapply your changes, and save again.`,
+            ),
+        );
+      }
+      const rev = this.revision(latest + 1, this.validParams(params), note);
+      stored.revisions.push(rev);
+      this.write(library);
+      return of(this.view(stored, rev));
+    });
+  }
+
+  saveRun(caseId: string, revision: number, run: RunRecord): Observable<StoredRun> {
+    return defer(() => {
+      const library = this.read();
+      const rev = library[caseId]?.revisions.find((r) => r.number === revision);
+      if (!rev) return throwError(() => new CaseRepositoryError('not-found', `Revision r${revision} does not exist.`));
+      if (caseDigest(run.params) !== rev.paramsDigest) {
+        return throwError(
+          () => new CaseRepositoryError('invalid', `This run was computed for other parameters than r${revision}.`),
+        );
+      }
+      const stored: StoredRun = {
+        id: newId('run'),
+        kind: run.kind,
+        settings: run.settings,
+        summary: run.summary,
+        resultDigest: run.resultDigest,
+        engineVersion: run.engineVersion,
+        createdAt: new Date().toISOString(),
+      };
+      rev.runs.push(stored);
+      this.write(library);
+      return of(stored);
+    });
+  }
+
+  private validParams(params: CaseParams): CaseParams {
+    const parsed = parseCase(params);
+    if (!parsed.ok) {
+      const first = parsed.issues[0];
+      throw new CaseRepositoryError('invalid', `${first.field || 'case'}: ${first.message}`, first.field);
+    }
+    return parsed.value;
+  }
+
+  private revision(number: number, params: CaseParams, note: string): LocalRevision {
+    return { number, params, paramsDigest: caseDigest(params), note, createdAt: new Date().toISOString(), runs: [] };
+  }
+
+  private view(stored: LocalCase, rev: LocalRevision): OpenedCase {
+    return {
+      caseId: stored.id,
+      title: stored.title,
+      tags: stored.tags,
+      labId: stored.labId ?? undefined,
+      revision: rev.number,
+      latestRevision: stored.revisions.length,
+      params: structuredClone(rev.params),
+      paramsDigest: rev.paramsDigest,
+      readOnly: false,
+      runs: [...rev.runs],
+    };
+  }
+
+  private read(): LocalLibrary {
+    try {
+      const raw = localStorage.getItem(LOCAL_CASES_KEY);
+      const parsed: unknown = raw ? JSON.parse(raw) : {};
+      return typeof parsed === 'object' && parsed !== null ? (parsed as LocalLibrary) : {};
+    } catch {
+      return {};
+    }
+  }
+
+  private write(library: LocalLibrary): void {
+    try {
+      localStorage.setItem(LOCAL_CASES_KEY, JSON.stringify(library));
+    } catch {
+      throw new CaseRepositoryError('storage', 'This browser refused to store the case (storage full or disabled).');
+    }
+  }
+}

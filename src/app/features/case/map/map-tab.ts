@@ -1,0 +1,159 @@
+import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
+import { FormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSelectModule } from '@angular/material/select';
+
+import { defaultChartGrid } from '../../../../../shared/engine/chart';
+import { defaultBasinGrid } from '../../../../../shared/engine/sweep';
+import { Plot, type PlotCsv, type PlotSpec } from '../../../ui/plot/plot';
+import { CaseWorkspace } from '../case-workspace';
+import { OUTCOME_COLORS, OUTCOME_LABELS, formatIn } from '../format';
+import { toDisplay, unitLabelOf } from '../rig/rig-form';
+
+/** Multipliers above this are drawn in the darkest red (the hover still shows the true value). */
+const MULTIPLIER_CLIP = 2;
+const OUTCOMES = Object.keys(OUTCOME_LABELS);
+
+/** A stepped colour scale, one band per outcome index (z from -0.5 to n - 0.5). */
+function outcomeColorscale(): Array<[number, string]> {
+  const n = OUTCOMES.length;
+  const scale: Array<[number, string]> = [];
+  OUTCOMES.forEach((o, i) => {
+    scale.push([i / n, OUTCOME_COLORS[o]], [(i + 1) / n, OUTCOME_COLORS[o]]);
+  });
+  return scale;
+}
+
+/** The Map tab: the stability chart over drive frequency and amplitude, and the basin map over start angle and rate. */
+@Component({
+  selector: 'qp-map-tab',
+  imports: [FormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatProgressBarModule, MatSelectModule, Plot],
+  templateUrl: './map-tab.html',
+  styleUrl: '../tab.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class MapTab {
+  protected readonly workspace = inject(CaseWorkspace);
+  protected readonly chartJob = this.workspace.chartJob;
+  protected readonly basinJob = this.workspace.basinJob;
+  protected readonly units = this.workspace.units;
+  protected readonly chart = this.workspace.chart;
+  protected readonly basin = this.workspace.basin;
+  protected readonly chartStale = computed(() => this.workspace.isStale(this.chart()));
+  protected readonly basinStale = computed(() => this.workspace.isStale(this.basin()));
+  protected readonly chartCount = signal(60);
+  protected readonly basinCount = signal(11);
+  protected readonly legend = OUTCOMES.map((o) => ({ key: o, label: OUTCOME_LABELS[o], color: OUTCOME_COLORS[o] }));
+  protected readonly vertical = computed(() => Math.abs(Math.sin(this.workspace.draft().drive.direction)) < 1e-12);
+
+  protected readonly chartPlot = computed(() => {
+    const c = this.chart()?.value;
+    if (!c) return null;
+    const units = this.units();
+    const fUnit = unitLabelOf('frequency', units);
+    const aUnit = unitLabelOf('length', units);
+    const x = Array.from(c.xValues, (v) => toDisplay(v, 'frequency', units));
+    const y = Array.from(c.yValues, (v) => toDisplay(v, 'length', units));
+    const nx = x.length;
+    const z: number[][] = [];
+    const real: number[][] = [];
+    for (let j = 0; j < y.length; j++) {
+      const row: number[] = [];
+      const raw: number[] = [];
+      for (let i = 0; i < nx; i++) {
+        const v = c.maxMultiplier[j * nx + i];
+        raw.push(Number.isFinite(v) ? v : Number.MAX_VALUE);
+        row.push(Number.isFinite(v) ? Math.min(v, MULTIPLIER_CLIP) : MULTIPLIER_CLIP);
+      }
+      z.push(row);
+      real.push(raw);
+    }
+    const data: PlotSpec[] = [
+      {
+        type: 'heatmap', x, y, z, customdata: real, zmin: 0, zmax: MULTIPLIER_CLIP, name: 'largest |μ|',
+        colorscale: [[0, '#0b6e69'], [0.499, '#cfeae2'], [0.5, '#f7d9d3'], [1, '#8f1d12']],
+        colorbar: { title: { text: 'largest |μ|' }, thickness: 12 },
+        hovertemplate: `f %{x:.4g} ${fUnit}<br>a %{y:.4g} ${aUnit}<br>largest |μ| %{customdata:.5g}<extra></extra>`,
+      },
+    ];
+    if (c.averagedLowerLimit) {
+      data.push({
+        type: 'scatter', mode: 'lines', name: 'averaged lower limit',
+        x: Array.from(c.averagedLowerLimit.frequency, (v) => toDisplay(v, 'frequency', units)),
+        y: Array.from(c.averagedLowerLimit.amplitude, (v) => toDisplay(v, 'length', units)),
+        line: { color: '#1f2937', dash: 'dash', width: 2 },
+      });
+    }
+    data.push({
+      type: 'scatter', mode: 'markers', name: 'this case',
+      x: [toDisplay(c.caseMark.x, 'frequency', units)], y: [toDisplay(c.caseMark.y, 'length', units)],
+      marker: { symbol: 'star', size: 16, color: '#f5b301', line: { color: '#1f2937', width: 1.5 } },
+      hovertemplate: `this case<br>largest |μ| ${c.caseMark.maxMultiplier.toPrecision(5)}<extra></extra>`,
+    });
+    const log = (axis: 'x' | 'y') => ((axis === 'x' ? c.grid.x.scale : c.grid.y.scale) === 'log' ? 'log' : 'linear');
+    const layout: PlotSpec = {
+      xaxis: { title: { text: `drive frequency (${fUnit})` }, type: log('x') },
+      yaxis: { title: { text: `drive amplitude (${aUnit})` }, type: log('y') },
+      margin: { l: 64, r: 16, t: 40, b: 52 },
+    };
+    const rows: Array<Array<number | string>> = [];
+    for (let j = 0; j < y.length; j++) for (let i = 0; i < nx; i++) rows.push([x[i], y[j], c.maxMultiplier[j * nx + i]]);
+    const csv: PlotCsv = {
+      columns: [{ header: 'drive frequency', unit: fUnit }, { header: 'drive amplitude', unit: aUnit }, { header: 'largest |multiplier|' }],
+      rows,
+    };
+    return { data, layout, csv, caseText: `${formatIn(c.caseMark.x, 'frequency', units)}, ${formatIn(c.caseMark.y, 'length', units)}` };
+  });
+
+  protected readonly basinPlot = computed(() => {
+    const b = this.basin()?.value;
+    if (!b) return null;
+    const units = this.units();
+    const angleUnit = unitLabelOf('angle', units);
+    const rateUnit = unitLabelOf('rate', units);
+    const x = Array.from(b.xValues, (v) => toDisplay(v, 'angle', units));
+    const y = Array.from(b.yValues, (v) => toDisplay(v, 'rate', units));
+    const nx = x.length;
+    const z: Array<Array<number | null>> = [];
+    const text: string[][] = [];
+    for (let j = 0; j < y.length; j++) {
+      const row: Array<number | null> = [];
+      const words: string[] = [];
+      for (let i = 0; i < nx; i++) {
+        const cell = b.cells[j * nx + i];
+        row.push(cell?.outcome ? OUTCOMES.indexOf(cell.outcome) : null);
+        words.push(cell?.outcome ? OUTCOME_LABELS[cell.outcome] : `invalid: ${cell?.error ?? ''}`);
+      }
+      z.push(row);
+      text.push(words);
+    }
+    const data: PlotSpec[] = [
+      {
+        type: 'heatmap', x, y, z, text, zmin: -0.5, zmax: OUTCOMES.length - 0.5, colorscale: outcomeColorscale(), showscale: false,
+        hovertemplate: `start %{x:.4g} ${angleUnit}, %{y:.4g} ${rateUnit}<br>%{text}<extra></extra>`,
+      },
+    ];
+    const layout: PlotSpec = {
+      xaxis: { title: { text: `start angle from upright (${angleUnit})` } },
+      yaxis: { title: { text: `start rate (${rateUnit})` } },
+    };
+    const rows: Array<Array<number | string>> = [];
+    for (let j = 0; j < y.length; j++) for (let i = 0; i < nx; i++) rows.push([x[i], y[j], text[j][i]]);
+    const csv: PlotCsv = {
+      columns: [{ header: 'start angle', unit: angleUnit }, { header: 'start rate', unit: rateUnit }, { header: 'outcome' }],
+      rows,
+    };
+    return { data, layout, csv };
+  });
+
+  protected runChart(): void {
+    this.workspace.runChart(defaultChartGrid(this.workspace.draft(), this.chartCount()));
+  }
+
+  protected runBasin(): void {
+    this.workspace.runBasin(defaultBasinGrid(this.workspace.draft(), this.basinCount()));
+  }
+}

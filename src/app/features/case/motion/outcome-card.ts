@@ -1,0 +1,74 @@
+import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
+
+import type { MotionOutcome, OutcomeNumbers } from '../../../../../shared/engine/classify';
+import type { MotionSummary } from '../../../../../shared/engine/motion';
+import { OUTCOME_COLORS, OUTCOME_LABELS, formatIn, formatNumber } from '../format';
+import type { DisplayUnits } from '../rig/rig-form';
+
+/** What the outcome card shows: the verdict and the numbers behind it. */
+export interface OutcomeView {
+  readonly outcome: MotionOutcome;
+  readonly numbers: OutcomeNumbers;
+  readonly summary: MotionSummary;
+  readonly status: string;
+  readonly rhsEvaluations: number;
+}
+
+interface Row {
+  readonly label: string;
+  readonly value: string;
+}
+
+/** The verdict of a motion run in large type, its reason in words, and the numbers it rests on. */
+@Component({
+  selector: 'qp-outcome-card',
+  template: `
+    <section class="card" [style.border-color]="color()" aria-labelledby="outcome-title">
+      <p class="kicker">Outcome</p>
+      <h2 id="outcome-title" class="verdict" [style.color]="color()" data-testid="outcome">{{ label() }}</h2>
+      <p class="reason">{{ view().numbers.reason }}</p>
+      <dl>
+        @for (row of rows(); track row.label) {
+          <div class="row">
+            <dt>{{ row.label }}</dt>
+            <dd>{{ row.value }}</dd>
+          </div>
+        }
+      </dl>
+    </section>
+  `,
+  styles: `
+    .card { border: 2px solid; border-radius: 12px; padding: 12px 16px; }
+    .kicker { margin: 0; font: var(--mat-sys-label-medium); text-transform: uppercase; letter-spacing: 0.08em; color: var(--mat-sys-on-surface-variant); }
+    .verdict { margin: 4px 0; font: var(--mat-sys-headline-medium); }
+    .reason { margin: 0 0 8px; color: var(--mat-sys-on-surface-variant); }
+    dl { margin: 0; }
+    .row { display: flex; justify-content: space-between; gap: 12px; padding: 3px 0; border-bottom: 1px solid var(--mat-sys-outline-variant); }
+    dt { color: var(--mat-sys-on-surface-variant); }
+    dd { margin: 0; text-align: right; font-variant-numeric: tabular-nums; }
+  `,
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class OutcomeCard {
+  readonly view = input.required<OutcomeView>();
+  readonly units = input.required<DisplayUnits>();
+
+  protected readonly label = computed(() => OUTCOME_LABELS[this.view().outcome] ?? this.view().outcome);
+  protected readonly color = computed(() => OUTCOME_COLORS[this.view().outcome] ?? 'currentColor');
+  protected readonly rows = computed<Row[]>(() => {
+    const { numbers: n, summary: s } = this.view();
+    const u = this.units();
+    return [
+      { label: 'Largest slow deviation from upright', value: formatIn(n.maxDeviation, 'angle', u) },
+      { label: 'Mean slow angle', value: formatIn(n.meanAngle, 'angle', u) },
+      { label: 'Slow range', value: formatIn(n.slowRange, 'angle', u) },
+      { label: 'Slow frequency', value: n.slowFrequencyHz === null ? 'not measured (too few swings)' : formatIn(n.slowFrequencyHz, 'frequency', u) },
+      { label: 'Full turns', value: String(n.netTurns) },
+      { label: 'Judged from', value: `${formatNumber(n.windowStart)} s on (${n.samples} drive periods)` },
+      { label: 'Peak pivot acceleration', value: `${formatNumber(s.peakPivotAccelerationG, 3)} g` },
+      { label: 'Peak pivot force', value: `${formatNumber(s.peakPivotForce)} N` },
+      { label: 'Drive periods simulated', value: formatNumber(s.drivePeriods, 6) },
+      { label: 'Integration', value: `${this.view().status}, ${this.view().rhsEvaluations.toLocaleString('en')} evaluations` },
+    ];
+  });
+}

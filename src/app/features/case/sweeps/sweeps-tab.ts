@@ -1,0 +1,227 @@
+import { ChangeDetectionStrategy, Component, computed, effect, inject, signal } from '@angular/core';
+import { FormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSelectModule } from '@angular/material/select';
+
+import { getField, setField, sweepableFieldsFor, type SweepableField } from '../../../../../shared/case/case-fields';
+import type { CaseParams } from '../../../../../shared/case/case-schema';
+import { averagedAnalysis, averagedLowerAmplitude, averagedLowerFrequency } from '../../../../../shared/engine/averaged';
+import type { SweepSpec } from '../../../../../shared/engine/sweep';
+import { Plot, type PlotSpec } from '../../../ui/plot/plot';
+import { CaseWorkspace } from '../case-workspace';
+import { OUTCOME_COLORS, OUTCOME_LABELS, formatNumber } from '../format';
+import { dimensionOfSiUnit, fromDisplay, toDisplay, unitLabelOf, type Dimension } from '../rig/rig-form';
+import { SweepTable } from './sweep-table';
+
+/** Most points a sweep may have. */
+export const MAX_SWEEP_POINTS = 400;
+
+/**
+ * Where averaged theory puts the upright's lower limit along a field: the closed forms for drive amplitude and
+ * frequency, otherwise the first change of the averaged verdict on a fine scan of the range. Vertical drive only.
+ */
+export function averagedThreshold(params: CaseParams, field: string, from: number, to: number): number | null {
+  if (Math.abs(Math.sin(params.drive.direction)) > 1e-9) return null;
+  if (field === 'drive.amplitude') return averagedLowerAmplitude(params, params.drive.frequency);
+  if (field === 'drive.frequency') return averagedLowerFrequency(params, params.drive.amplitude);
+  const n = 240;
+  let previous: boolean | null = null;
+  let previousValue = from;
+  for (let i = 0; i <= n; i++) {
+    const value = from + ((to - from) * i) / n;
+    let holds: boolean | null;
+    try {
+      holds = averagedAnalysis(setField(params, field, value)).uprightStable;
+    } catch {
+      holds = null;
+    }
+    if (holds !== null && previous !== null && holds !== previous) return (previousValue + value) / 2;
+    if (holds !== null) {
+      previous = holds;
+      previousValue = value;
+    }
+  }
+  return null;
+}
+
+/** The Sweeps tab: one case field varied over a range, every point a full motion run across the worker pool. */
+@Component({
+  selector: 'qp-sweeps-tab',
+  imports: [
+    FormsModule,
+    MatButtonModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatProgressBarModule,
+    MatSelectModule,
+    Plot,
+    SweepTable,
+  ],
+  templateUrl: './sweeps-tab.html',
+  styleUrl: '../tab.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class SweepsTab {
+  protected readonly workspace = inject(CaseWorkspace);
+  protected readonly job = this.workspace.sweepJob;
+  protected readonly units = this.workspace.units;
+  protected readonly result = this.workspace.sweep;
+  protected readonly stale = computed(() => this.workspace.isStale(this.result()));
+  protected readonly maxPoints = MAX_SWEEP_POINTS;
+
+  protected readonly fields = computed(() => sweepableFieldsFor(this.workspace.draft()));
+  protected readonly fieldPath = signal('drive.amplitude');
+  protected readonly from = signal<number | null>(null);
+  protected readonly to = signal<number | null>(null);
+  protected readonly count = signal<number | null>(20);
+  protected readonly scale = signal<'linear' | 'log'>('linear');
+
+  protected readonly field = computed<SweepableField>(
+    () => this.fields().find((f) => f.path === this.fieldPath()) ?? this.fields()[0],
+  );
+  protected readonly dimension = computed<Dimension>(() => dimensionOfSiUnit(this.field().unit));
+  protected readonly unit = computed(() =>
+    this.dimension() === 'plain' ? this.field().unit : unitLabelOf(this.dimension(), this.units()),
+  );
+
+  protected readonly problem = computed(() => {
+    const from = this.from();
+    const to = this.to();
+    const count = this.count();
+    if (from === null || to === null || !Number.isFinite(from) || !Number.isFinite(to)) return 'Enter both ends of the range.';
+    if (from === to) return 'The range needs two different ends.';
+    if (count === null || !Number.isInteger(count) || count < 2 || count > MAX_SWEEP_POINTS) {
+      return `Points: a whole number from 2 to ${MAX_SWEEP_POINTS}.`;
+    }
+    if (this.scale() === 'log' && (from <= 0 || to <= 0)) return 'A log scale needs both ends above zero.';
+    return null;
+  });
+
+  /** The sweep's field description, taken from the result so it stays right when the form changes later. */
+  protected readonly shown = computed(() => {
+    const r = this.result();
+    if (!r) return null;
+    const spec = r.value.spec;
+    const field = sweepableFieldsFor(r.params).find((f) => f.path === spec.field);
+    const dimension = dimensionOfSiUnit(field?.unit ?? '');
+    const units = this.units();
+    const unit = dimension === 'plain' ? (field?.unit ?? '') : unitLabelOf(dimension, units);
+    const averaged = averagedThreshold(r.params, spec.field, spec.from, spec.to);
+    return { label: field?.label ?? spec.field, dimension, unit, averaged, params: r.params };
+  });
+
+  protected readonly thresholds = computed(() => {
+    const r = this.result();
+    const s = this.shown();
+    if (!r || !s) return [];
+    const units = this.units();
+    return r.value.thresholds.map((t, i) => {
+      const deviation = s.averaged === null ? null : (100 * (t.value - s.averaged)) / s.averaged;
+      return {
+        key: `${t.kind}-${i}`,
+        kind: t.kind === 'outcome' ? 'outcome changes' : 'largest |μ| crosses 1',
+        value: formatNumber(toDisplay(t.value, s.dimension, units), 6),
+        change: `${t.below === null ? 'invalid' : OUTCOME_LABELS[t.below]} → ${t.above === null ? 'invalid' : OUTCOME_LABELS[t.above]}`,
+        deviation: deviation === null ? '—' : `${deviation >= 0 ? '+' : '−'}${formatNumber(Math.abs(deviation), 3)} %`,
+      };
+    });
+  });
+
+  protected readonly plot = computed(() => {
+    const r = this.result();
+    const s = this.shown();
+    if (!r || !s) return null;
+    const units = this.units();
+    const x = (v: number) => toDisplay(v, s.dimension, units);
+    const points = r.value.points;
+    const data: PlotSpec[] = [];
+    for (const outcome of Object.keys(OUTCOME_LABELS)) {
+      const mine = points.filter((p) => p.outcome === outcome);
+      if (mine.length === 0) continue;
+      data.push({
+        type: 'scatter',
+        mode: 'markers',
+        name: OUTCOME_LABELS[outcome],
+        x: mine.map((p) => x(p.value)),
+        y: mine.map((p) => p.slowFrequencyHz ?? 0),
+        marker: { size: 9, color: OUTCOME_COLORS[outcome] },
+        hovertemplate: `%{x:.5g} ${s.unit}<br>${OUTCOME_LABELS[outcome]}<br>slow %{y:.4g} Hz<extra></extra>`,
+      });
+    }
+    data.push({
+      type: 'scatter',
+      mode: 'lines',
+      name: 'largest |μ| of the upright',
+      x: points.map((p) => x(p.value)),
+      y: points.map((p) => (p.maxMultiplier !== null && Number.isFinite(p.maxMultiplier) ? p.maxMultiplier : null)),
+      yaxis: 'y2',
+      line: { color: '#7a8fa6', dash: 'dot' },
+    });
+    const shapes: PlotSpec[] = r.value.thresholds.map((t) => ({
+      type: 'line', xref: 'x', yref: 'paper', x0: x(t.value), x1: x(t.value), y0: 0, y1: 1,
+      line: { color: t.kind === 'outcome' ? '#c0392b' : '#8e44ad', width: 2 },
+    }));
+    if (s.averaged !== null) {
+      shapes.push({
+        type: 'line', xref: 'x', yref: 'paper', x0: x(s.averaged), x1: x(s.averaged), y0: 0, y1: 1,
+        line: { color: '#0b6e69', width: 2, dash: 'dash' },
+      });
+    }
+    const annotations: PlotSpec[] = s.averaged === null ? [] : [
+      { x: x(s.averaged), y: 1, xref: 'x', yref: 'paper', text: 'averaged limit', showarrow: false, yanchor: 'bottom', font: { color: '#0b6e69' } },
+    ];
+    const layout: PlotSpec = {
+      xaxis: { title: { text: `${s.label} (${s.unit || '1'})` }, type: r.value.spec.scale === 'log' ? 'log' : 'linear' },
+      yaxis: { title: { text: 'slow frequency (Hz)' }, rangemode: 'tozero' },
+      yaxis2: { title: { text: 'largest |μ| (1)' }, overlaying: 'y', side: 'right', showgrid: false },
+      margin: { l: 64, r: 64, t: 40, b: 52 },
+      shapes,
+      annotations,
+    };
+    return { data, layout };
+  });
+
+  constructor() {
+    // A new field (or a first visit) gets a sensible default range around the case's value.
+    effect(() => {
+      const path = this.field().path;
+      const dimension = dimensionOfSiUnit(this.field().unit);
+      const units = this.units();
+      const value = getField(this.workspace.draft(), path);
+      const [lo, hi] = value > 0 ? [value / 4, value * 2] : [value - 1, value + 1];
+      this.from.set(toDisplay(lo, dimension, units));
+      this.to.set(toDisplay(hi, dimension, units));
+    });
+  }
+
+  protected run(): void {
+    const from = this.from();
+    const to = this.to();
+    const count = this.count();
+    if (this.problem() !== null || from === null || to === null || count === null) return;
+    const dimension = this.dimension();
+    const units = this.units();
+    const spec: SweepSpec = {
+      field: this.field().path,
+      from: fromDisplay(from, dimension, units),
+      to: fromDisplay(to, dimension, units),
+      steps: count,
+      scale: this.scale(),
+    };
+    this.workspace.runSweep(spec);
+  }
+
+  protected cancel(): void {
+    this.job.cancel();
+  }
+
+  protected fmt(value: number | null): string {
+    const s = this.shown();
+    return value === null || !s ? '—' : formatNumber(toDisplay(value, s.dimension, this.units()), 6);
+  }
+}
