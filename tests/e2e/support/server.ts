@@ -22,13 +22,17 @@ export interface E2eServer {
   stop(): Promise<void>;
 }
 
-export async function startE2eServer(): Promise<E2eServer> {
+/**
+ * `database` defaults to `quiverpoint_e2e`; test files that run in parallel must each pass their own name
+ * (`quiverpoint_e2e_<something>`), because starting drops and recreates it.
+ */
+export async function startE2eServer(options: { database?: string } = {}): Promise<E2eServer> {
   const { repoRoot } = checkoutPaths();
   if (!existsSync(join(repoRoot, 'dist', 'quiverpoint', 'browser', 'index.html'))) {
     throw new Error('the web client is not built: run `npx ng build` first');
   }
   const cluster = await ensurePostgres({ fsync: false, databases: [], log: () => undefined });
-  const databaseUrl = await recreateDatabase(cluster.url, 'quiverpoint_e2e');
+  const databaseUrl = await recreateDatabase(cluster.url, options.database ?? 'quiverpoint_e2e');
   await prepareDatabase(databaseUrl, { seed: true });
   const [port, smtpPort] = [await freePort(), await freePort()];
   const server = await startServerProcess({
