@@ -50,25 +50,33 @@ function columnOf(name: string): { column: Column; unit?: AngleUnit } | undefine
 
 interface CsvRecord {
   record: string[];
-  info: { lines: number };
+  line: number;
 }
 
-export function parseTraceCsv(text: string, statedUnit: AngleUnit | undefined): ParsedTrace {
-  let records: CsvRecord[];
+const CSV_OPTIONS = { delimiter: [',', ';', '\t'], relax_column_count: true, trim: true, bom: true };
+
+/**
+ * Records with their line numbers, blank and `#` lines dropped. csv-parse's per-record info is several times
+ * slower, so it is only used when quotes could make a record span lines; otherwise record i is line i + 1.
+ */
+function readRecords(text: string): CsvRecord[] {
+  let all: CsvRecord[];
   try {
-    records = parse(text, {
-      delimiter: [',', ';', '\t'],
-      relax_column_count: true,
-      skip_empty_lines: true,
-      trim: true,
-      comment: '#',
-      info: true,
-      bom: true,
-    }) as unknown as CsvRecord[];
+    if (text.includes('"')) {
+      const withInfo = parse(text, { ...CSV_OPTIONS, info: true }) as unknown as Array<{ record: string[]; info: { lines: number } }>;
+      all = withInfo.map(({ record, info }) => ({ record, line: info.lines }));
+    } else {
+      all = (parse(text, CSV_OPTIONS) as string[][]).map((record, i) => ({ record, line: i + 1 }));
+    }
   } catch (err) {
     const e = err as { lines?: unknown; message?: unknown };
     throw badCsv(typeof e.lines === 'number' ? e.lines : undefined, `the file is not readable CSV (${String(e.message ?? err)})`);
   }
+  return all.filter(({ record }) => !(record.length === 1 && record[0] === '') && !(record[0] ?? '').startsWith('#'));
+}
+
+export function parseTraceCsv(text: string, statedUnit: AngleUnit | undefined): ParsedTrace {
+  const records = readRecords(text);
   if (records.length === 0) throw badCsv(undefined, 'the file has no rows');
 
   const first = records[0] as CsvRecord;
@@ -78,18 +86,18 @@ export function parseTraceCsv(text: string, statedUnit: AngleUnit | undefined): 
   if (hasHeader) {
     columns = first.record.map((name) => {
       const found = columnOf(name);
-      if (!found) throw badCsv(first.info.lines, `column "${name}" is not time, angle or pivot position`);
+      if (!found) throw badCsv(first.line, `column "${name}" is not time, angle or pivot position`);
       if (found.unit) headerUnit = found.unit;
       return found.column;
     });
     for (const needed of ['time', 'angle'] as const) {
-      if (!columns.includes(needed)) throw badCsv(first.info.lines, `the header has no ${needed} column`);
+      if (!columns.includes(needed)) throw badCsv(first.line, `the header has no ${needed} column`);
     }
     const repeated = columns.find((c, i) => columns.indexOf(c) !== i);
-    if (repeated) throw badCsv(first.info.lines, `the header names the ${repeated} column twice`);
+    if (repeated) throw badCsv(first.line, `the header names the ${repeated} column twice`);
   } else {
     const width = first.record.length;
-    if (width < 2 || width > 3) throw badCsv(first.info.lines, `expected 2 or 3 values (time, angle[, pivot position]), found ${width}`);
+    if (width < 2 || width > 3) throw badCsv(first.line, `expected 2 or 3 values (time, angle[, pivot position]), found ${width}`);
     columns = (['time', 'angle', 'pivot'] as const).slice(0, width);
   }
   if (statedUnit && headerUnit && statedUnit !== headerUnit) {
@@ -100,21 +108,21 @@ export function parseTraceCsv(text: string, statedUnit: AngleUnit | undefined): 
 
   const data = hasHeader ? records.slice(1) : records;
   if (data.length < 2) throw badCsv(undefined, `a trace needs at least 2 data rows, found ${data.length}`);
-  if (data.length > MAX_TRACE_ROWS) throw badCsv(data[MAX_TRACE_ROWS]?.info.lines, `a trace may have at most ${MAX_TRACE_ROWS} rows`);
+  if (data.length > MAX_TRACE_ROWS) throw badCsv(data[MAX_TRACE_ROWS]?.line, `a trace may have at most ${MAX_TRACE_ROWS} rows`);
 
   const series: TraceSeries = { time: [], angle: [], ...(columns.includes('pivot') ? { pivot: [] } : {}) };
-  for (const { record, info } of data) {
-    if (record.length !== columns.length) throw badCsv(info.lines, `expected ${columns.length} values, found ${record.length}`);
+  for (const { record, line } of data) {
+    if (record.length !== columns.length) throw badCsv(line, `expected ${columns.length} values, found ${record.length}`);
     const row: Partial<Record<Column, number>> = {};
     record.forEach((cell, i) => {
       const column = columns[i] as Column;
       const value = Number(cell);
-      if (!isNumberCell(cell)) throw badCsv(info.lines, `${column} "${cell}" is not a number`);
+      if (!isNumberCell(cell)) throw badCsv(line, `${column} "${cell}" is not a number`);
       row[column] = value;
     });
     const t = row.time as number;
     const previous = series.time[series.time.length - 1];
-    if (previous !== undefined && !(t > previous)) throw badCsv(info.lines, `time ${t} s is not after the previous row's ${previous} s`);
+    if (previous !== undefined && !(t > previous)) throw badCsv(line, `time ${t} s is not after the previous row's ${previous} s`);
     series.time.push(t);
     series.angle.push((row.angle as number) * toRad);
     if (series.pivot) series.pivot.push(row.pivot as number);
