@@ -12,6 +12,11 @@ export const routes: Routes = [
     loadComponent: () => import('./features/sign-in/sign-in-page').then((m) => m.SignInPage),
   },
   {
+    path: 'links/:token',
+    title: 'Shared case · Quiverpoint',
+    loadComponent: () => import('./features/case-links/visitor-page').then((m) => m.VisitorPage),
+  },
+  {
     path: '',
     component: Shell,
     canActivate: [authGuard],
@@ -29,6 +34,21 @@ export const routes: Routes = [
           const labId = inject(Session).currentLab()?.id;
           return labId ? `/labs/${labId}` : '/';
         },
+      },
+      {
+        path: 'library',
+        title: 'Case library · Quiverpoint',
+        loadComponent: () => import('./features/library/library-page').then((m) => m.LibraryPage),
+      },
+      {
+        path: 'cases/:caseId/r/:rev/recheck',
+        title: 'Recheck · Quiverpoint',
+        loadComponent: () => import('./features/recheck/recheck-page').then((m) => m.RecheckPage),
+      },
+      {
+        path: 'admin/mail',
+        title: 'Mail · Quiverpoint',
+        loadComponent: () => import('./features/admin/admin-mail-page').then((m) => m.AdminMailPage),
       },
       {
         path: 'cases',

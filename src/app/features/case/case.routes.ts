@@ -1,5 +1,7 @@
 import type { Route, Routes, UrlMatchResult, UrlSegment } from '@angular/router';
 
+import { ApiCaseRepository } from '../library/api-case-repository';
+import { CASE_REPOSITORY } from './case-repository';
 import { CASE_TABS } from './case-tabs';
 
 /**
@@ -25,6 +27,8 @@ const tabRoutes: Route[] = [
 export const CASE_ROUTES: Routes = [
   {
     matcher: caseUrlMatcher,
+    // Cases live in the lab's library on the server.
+    providers: [{ provide: CASE_REPOSITORY, useExisting: ApiCaseRepository }],
     loadComponent: () => import('./case-page').then((m) => m.CasePage),
     children: tabRoutes,
   },

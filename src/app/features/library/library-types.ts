@@ -97,6 +97,13 @@ export interface CommentView {
   readonly createdAt: string;
 }
 
+export interface RecheckRequestView {
+  readonly requestedBy: PersonRef | null;
+  readonly reviewer: PersonRef | null;
+  readonly message: string;
+  readonly requestedAt: string;
+}
+
 export interface RevisionDetail {
   readonly caseId: string;
   readonly caseTitle: string;
@@ -111,6 +118,7 @@ export interface RevisionDetail {
   readonly author: PersonRef;
   readonly createdAt: string;
   readonly recheckState: RecheckState;
+  readonly recheckRequest: RecheckRequestView | null;
   readonly runs: RunView[];
   readonly rechecks: RecheckView[];
   readonly comments: CommentView[];
@@ -129,6 +137,7 @@ export interface CaseLinkView {
   readonly revision: number;
   readonly expiresAt: string;
   readonly revokedAt: string | null;
+  readonly state: 'active' | 'expired' | 'revoked';
   readonly createdAt: string;
   readonly createdBy: PersonRef | null;
 }
@@ -163,6 +172,7 @@ export interface BenchTrace extends BenchTraceSummary {
 
 export interface SinkMail {
   readonly id: string;
+  readonly from: string;
   readonly to: string;
   readonly subject: string;
   readonly receivedAt: string;
@@ -173,9 +183,10 @@ export interface OutboxEntry {
   readonly id: string;
   readonly to: string;
   readonly subject: string;
-  readonly status: string;
+  readonly state: string;
   readonly attempts: number;
   readonly lastError: string | null;
+  readonly nextAttemptAt: string | null;
   readonly createdAt: string;
   readonly sentAt: string | null;
 }
@@ -352,6 +363,16 @@ export function parseCommentView(value: unknown): CommentView {
   return { id: id(value['id']), author: parsePerson(value['author']), body: text(value['body']), createdAt: date(value['createdAt']) };
 }
 
+function parseRecheckRequest(value: unknown): RecheckRequestView | null {
+  if (!isRecord(value)) return null;
+  return {
+    requestedBy: optionalPerson(value['requestedBy']),
+    reviewer: optionalPerson(value['reviewer']),
+    message: text(value['message']),
+    requestedAt: date(value['requestedAt']),
+  };
+}
+
 export function parseRevisionDetail(value: unknown): RevisionDetail {
   if (!isRecord(value)) throw new Error('The server sent an unexpected revision.');
   const parsed = parseCase(value['params']);
@@ -367,6 +388,7 @@ export function parseRevisionDetail(value: unknown): RevisionDetail {
     author: parsePerson(value['author']),
     createdAt: date(value['createdAt']),
     recheckState: parseRecheckState(value['recheckState']),
+    recheckRequest: parseRecheckRequest(value['recheckRequest']),
     runs: list(value['runs'], parseRunView),
     rechecks: list(value['rechecks'], parseRecheckView),
     comments: list(value['comments'], parseCommentView),
@@ -391,6 +413,7 @@ export function parseLinkView(value: unknown): CaseLinkView {
     revision: count(value['revision'], 1),
     expiresAt: date(value['expiresAt']),
     revokedAt: optionalText(value['revokedAt']),
+    state: value['state'] === 'revoked' || value['state'] === 'expired' ? value['state'] : 'active',
     createdAt: date(value['createdAt']),
     createdBy: optionalPerson(value['createdBy'] ?? value['author']),
   };
@@ -439,6 +462,7 @@ export function parseSinkMail(value: unknown): SinkMail {
   const to = Array.isArray(v['to']) ? strings(v['to']).join(', ') : text(v['to']);
   return {
     id: typeof v['id'] === 'string' || typeof v['id'] === 'number' ? id(v['id']) : '',
+    from: text(v['from']),
     to,
     subject: text(v['subject']),
     receivedAt: date(v['receivedAt'] ?? v['createdAt']),
@@ -452,9 +476,10 @@ export function parseOutboxEntry(value: unknown): OutboxEntry {
     id: typeof v['id'] === 'string' || typeof v['id'] === 'number' ? id(v['id']) : '',
     to: Array.isArray(v['to']) ? strings(v['to']).join(', ') : text(v['to']),
     subject: text(v['subject']),
-    status: text(v['status'], v['sentAt'] ? 'sent' : 'pending'),
+    state: text(v['state'], v['sentAt'] ? 'sent' : 'pending'),
     attempts: count(v['attempts']),
     lastError: optionalText(v['lastError']),
+    nextAttemptAt: optionalText(v['nextAttemptAt']),
     createdAt: date(v['createdAt']),
     sentAt: optionalText(v['sentAt']),
   };

@@ -1,0 +1,53 @@
+import { demoRigCase, templateCase } from '../../../../shared/case';
+import { diffParams, flattenParams, formatNumber } from './params-diff';
+
+describe('flattenParams', () => {
+  it('lists every leaf as a dotted path, in display units', () => {
+    const rows = flattenParams(templateCase());
+    const byPath = new Map(rows.map((r) => [r.path, r]));
+    expect(byPath.get('drive.amplitude')).toEqual({ path: 'drive.amplitude', value: '10', unit: 'mm' });
+    expect(byPath.get('drive.frequency')).toEqual({ path: 'drive.frequency', value: '40', unit: 'Hz' });
+    expect(byPath.get('drive.waveform.kind')).toEqual({ path: 'drive.waveform.kind', value: 'sine', unit: '' });
+    expect(byPath.get('body.length')?.value).toBe('200');
+    expect(Number(byPath.get('start.angle')?.value)).toBeCloseTo((0.1 * 180) / Math.PI, 6);
+    expect(byPath.get('start.angle')?.unit).toBe('°');
+  });
+
+  it('indexes array entries such as harmonic terms', () => {
+    const params = {
+      drive: { waveform: { kind: 'harmonics', terms: [{ order: 1, relAmplitude: 1, phase: 0 }, { order: 3, relAmplitude: 0.2, phase: Math.PI }] } },
+    };
+    const paths = flattenParams(params).map((r) => `${r.path}=${r.value}${r.unit ? ` ${r.unit}` : ''}`);
+    expect(paths).toContain('drive.waveform.terms.1.order=3');
+    expect(paths).toContain('drive.waveform.terms.1.phase=180 °');
+  });
+});
+
+describe('diffParams', () => {
+  it('marks only the changed rows between two revisions', () => {
+    const r1 = templateCase();
+    const r2 = { ...r1, drive: { ...r1.drive, amplitude: 0.012 } };
+    const changed = diffParams(r1, r2).filter((row) => row.changed);
+    expect(changed).toEqual([{ path: 'drive.amplitude', unit: 'mm', left: '10', right: '12', changed: true }]);
+  });
+
+  it('shows fields that exist on one side only, such as a changed body kind', () => {
+    const left = templateCase();
+    const right = demoRigCase('shaker-tall-rod');
+    const rows = diffParams(left, right);
+    const length = rows.find((r) => r.path === 'body.length');
+    const rodLength = rows.find((r) => r.path === 'body.rodLength');
+    expect(length).toMatchObject({ left: '200', right: null, changed: true });
+    expect(rodLength).toMatchObject({ left: null, right: '500', changed: true });
+    expect(rows.find((r) => r.path === 'body.kind')).toMatchObject({ left: 'point-mass', right: 'rod-bob', changed: true });
+    expect(rows.find((r) => r.path === 'schemaVersion')?.changed).toBe(false);
+  });
+});
+
+describe('formatNumber', () => {
+  it('drops floating-point noise but keeps nine significant digits', () => {
+    expect(formatNumber(0.1 + 0.2)).toBe('0.3');
+    expect(formatNumber(1 / 3)).toBe('0.333333333');
+    expect(formatNumber(-0)).toBe('0');
+  });
+});

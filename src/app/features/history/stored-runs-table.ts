@@ -1,0 +1,78 @@
+import { DatePipe } from '@angular/common';
+import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
+import { MatTableModule } from '@angular/material/table';
+
+import type { RunView } from '../library/library-types';
+import { formatNumber } from './params-diff';
+
+/** How many summary numbers a row shows; the recheck shows all of them. */
+const HEADLINE_COUNT = 4;
+
+const HEADLINE_KEYS = ['outcome', 'maxDeviation', 'slowFrequencyHz', 'marginPercent', 'uprightHolds', 'thresholds', 'holdingCells', 'cells'];
+
+export function headlineNumbers(summary: RunView['summary']): string {
+  const keys = Object.keys(summary);
+  const ordered = [...HEADLINE_KEYS.filter((k) => k in summary), ...keys.filter((k) => !HEADLINE_KEYS.includes(k))];
+  return ordered
+    .slice(0, HEADLINE_COUNT)
+    .map((key) => {
+      const value = summary[key];
+      return `${key} ${typeof value === 'number' ? formatNumber(value) : String(value)}`;
+    })
+    .join(' · ');
+}
+
+/** The runs stored with a revision: kind, headline numbers, digest and engine version. */
+@Component({
+  selector: 'qp-stored-runs-table',
+  imports: [DatePipe, MatTableModule],
+  template: `
+    @if (runs().length === 0) {
+      <p class="none">No runs are stored with this revision.</p>
+    } @else {
+      <div class="scroll">
+        <table mat-table [dataSource]="rows()" class="runs-table">
+          <ng-container matColumnDef="kind">
+            <th mat-header-cell *matHeaderCellDef>Kind</th>
+            <td mat-cell *matCellDef="let row" class="kind">{{ row.run.kind }}</td>
+          </ng-container>
+          <ng-container matColumnDef="summary">
+            <th mat-header-cell *matHeaderCellDef>Summary</th>
+            <td mat-cell *matCellDef="let row" class="summary">{{ row.headline }}</td>
+          </ng-container>
+          <ng-container matColumnDef="digest">
+            <th mat-header-cell *matHeaderCellDef>Result digest</th>
+            <td mat-cell *matCellDef="let row"><code [attr.title]="row.run.resultDigest">{{ row.run.resultDigest.slice(0, 12) }}…</code></td>
+          </ng-container>
+          <ng-container matColumnDef="engine">
+            <th mat-header-cell *matHeaderCellDef>Engine</th>
+            <td mat-cell *matCellDef="let row">{{ row.run.engineVersion }}</td>
+          </ng-container>
+          <ng-container matColumnDef="stored">
+            <th mat-header-cell *matHeaderCellDef>Stored</th>
+            <td mat-cell *matCellDef="let row" class="when">
+              {{ row.run.author?.name ?? '' }} {{ row.run.createdAt | date: 'short' }}
+            </td>
+          </ng-container>
+          <tr mat-header-row *matHeaderRowDef="columns"></tr>
+          <tr mat-row *matRowDef="let row; columns: columns"></tr>
+        </table>
+      </div>
+    }
+  `,
+  styles: `
+    .scroll { overflow-x: auto; }
+    .runs-table { width: 100%; min-width: 640px; background: transparent; }
+    .kind { font-weight: 500; text-transform: capitalize; }
+    .summary { font-variant-numeric: tabular-nums; }
+    .when { white-space: nowrap; }
+    code { font-size: 0.85em; }
+    .none { color: var(--mat-sys-on-surface-variant); margin: 0; }
+  `,
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class StoredRunsTable {
+  readonly runs = input.required<readonly RunView[]>();
+  protected readonly columns = ['kind', 'summary', 'digest', 'engine', 'stored'];
+  protected readonly rows = computed(() => this.runs().map((run) => ({ run, headline: headlineNumbers(run.summary) })));
+}

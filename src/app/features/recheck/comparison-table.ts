@@ -1,0 +1,91 @@
+import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
+import { MatIconModule } from '@angular/material/icon';
+
+import { formatNumber } from '../history/params-diff';
+import type { SummaryValue } from '../library/library-types';
+
+/** One compared number, from a rerun in this browser or from a recheck stored on the server. */
+export interface ComparisonRow {
+  readonly name: string;
+  readonly stored: SummaryValue;
+  readonly rerun: SummaryValue;
+  readonly difference?: number | null;
+  readonly tolerance: number | null;
+  readonly match: boolean;
+}
+
+function show(value: SummaryValue | undefined): string {
+  if (value === null || value === undefined) return '—';
+  return typeof value === 'number' ? formatNumber(value) : String(value);
+}
+
+function differenceOf(row: ComparisonRow): number | null {
+  if (row.difference !== undefined) return row.difference;
+  return typeof row.stored === 'number' && typeof row.rerun === 'number' ? Math.abs(row.rerun - row.stored) : null;
+}
+
+/** Name, stored, rerun, difference, tolerance and match for every summary number of a run. */
+@Component({
+  selector: 'qp-comparison-table',
+  imports: [MatIconModule],
+  template: `
+    <div class="scroll">
+      <table class="comparison">
+        <thead>
+          <tr>
+            <th scope="col">Number</th>
+            <th scope="col" class="num">Stored</th>
+            <th scope="col" class="num">Rerun</th>
+            <th scope="col" class="num">Difference</th>
+            <th scope="col" class="num">Tolerance</th>
+            <th scope="col">Match</th>
+          </tr>
+        </thead>
+        <tbody>
+          @for (row of shown(); track row.name) {
+            <tr [class.mismatch]="!row.match">
+              <th scope="row" class="name">{{ row.name }}</th>
+              <td class="num">{{ row.stored }}</td>
+              <td class="num">{{ row.rerun }}</td>
+              <td class="num">{{ row.difference }}</td>
+              <td class="num">{{ row.tolerance }}</td>
+              <td class="match">
+                <mat-icon aria-hidden="true">{{ row.match ? 'check_circle' : 'cancel' }}</mat-icon>
+                {{ row.match ? 'yes' : 'no' }}
+              </td>
+            </tr>
+          }
+        </tbody>
+      </table>
+    </div>
+  `,
+  styles: `
+    .scroll { overflow-x: auto; }
+    .comparison { width: 100%; min-width: 560px; border-collapse: collapse; font-variant-numeric: tabular-nums; }
+    th, td { padding: 6px 10px; border-bottom: 1px solid var(--mat-sys-outline-variant); text-align: start; }
+    thead th { font: var(--mat-sys-label-large); color: var(--mat-sys-on-surface-variant); }
+    .num { text-align: end; }
+    .name { font-weight: 500; font-family: monospace; font-size: 0.9em; }
+    .match { white-space: nowrap; }
+    .match mat-icon { font-size: 18px; width: 18px; height: 18px; vertical-align: -4px; color: var(--mat-sys-primary); }
+    .mismatch { background: var(--mat-sys-error-container); color: var(--mat-sys-on-error-container); }
+    .mismatch .match mat-icon { color: var(--mat-sys-error); }
+  `,
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class ComparisonTable {
+  readonly rows = input.required<readonly ComparisonRow[]>();
+  protected readonly shown = computed(() =>
+    this.rows().map((row) => {
+      const difference = differenceOf(row);
+      return {
+        name: row.name,
+        stored: show(row.stored),
+        rerun: show(row.rerun),
+        difference: difference === null ? '—' : formatNumber(Number(difference.toPrecision(3))),
+        tolerance: row.tolerance === null ? 'equal' : `± ${formatNumber(Number(row.tolerance.toPrecision(3)))}`,
+        match: row.match,
+      };
+    }),
+  );
+}

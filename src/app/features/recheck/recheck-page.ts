@@ -1,0 +1,107 @@
+import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
+import { rxResource } from '@angular/core/rxjs-interop';
+import { FormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSnackBar } from '@angular/material/snack-bar';
+import { Router, RouterLink } from '@angular/router';
+import { forkJoin } from 'rxjs';
+
+import { describeError } from '../../core/error-message';
+import { LibraryApi } from '../library/library-api';
+import type { RecheckVerdict } from '../library/library-types';
+import { RecheckChip } from './recheck-chip';
+import { RunComparison, comparisonPayload } from './recheck-compare';
+import { RerunPanel } from './rerun-panel';
+
+/** The reviewer's view of one revision: rerun every stored run here, then confirm or dispute with a comment. */
+@Component({
+  selector: 'qp-recheck-page',
+  imports: [
+    FormsModule,
+    RouterLink,
+    MatButtonModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatProgressBarModule,
+    RecheckChip,
+    RerunPanel,
+  ],
+  templateUrl: './recheck-page.html',
+  styleUrl: './recheck-page.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class RecheckPage {
+  private readonly api = inject(LibraryApi);
+  private readonly snackBar = inject(MatSnackBar);
+  private readonly router = inject(Router);
+
+  /** Bound from the route. */
+  readonly caseId = input.required<string>();
+  readonly rev = input.required<string>();
+
+  protected readonly revision = computed(() => Number(this.rev()));
+  protected readonly loaded = rxResource({
+    params: () => ({ caseId: this.caseId(), revision: this.revision() }),
+    stream: ({ params }) =>
+      forkJoin({ detail: this.api.getCase(params.caseId), revision: this.api.getRevision(params.caseId, params.revision) }),
+  });
+  protected readonly detail = computed(() => (this.loaded.hasValue() ? this.loaded.value().detail : null));
+  protected readonly revisionDetail = computed(() => (this.loaded.hasValue() ? this.loaded.value().revision : null));
+  protected readonly loadError = computed(() => {
+    const error = this.loaded.error();
+    return error ? describeError(error.cause ?? error) : null;
+  });
+  protected readonly canJudge = computed(() => {
+    const role = this.detail()?.myRole;
+    return role === 'reviewer' || role === 'owner';
+  });
+
+  protected readonly comparisons = signal<RunComparison[] | null>(null);
+  protected readonly allMatch = computed(() => this.comparisons()?.every((c) => c.match) ?? false);
+  protected readonly comment = signal('');
+  protected readonly submitting = signal(false);
+  protected readonly submitError = signal<string | null>(null);
+
+  protected historyLink(): string[] {
+    return ['/cases', this.caseId(), 'r', String(this.revision()), 'history'];
+  }
+
+  protected takeComparisons(comparisons: RunComparison[]): void {
+    this.comparisons.set(comparisons);
+    this.submitError.set(null);
+  }
+
+  protected submit(verdict: RecheckVerdict): void {
+    const comparisons = this.comparisons();
+    if (!comparisons) return;
+    const comment = this.comment().trim();
+    if (verdict === 'disputed' && comment === '') {
+      this.submitError.set('Say why you dispute the numbers: the analyst reads your comment.');
+      return;
+    }
+    this.submitting.set(true);
+    this.submitError.set(null);
+    this.api
+      .submitRecheck(this.caseId(), this.revision(), { verdict, comment, comparisons: comparisons.map(comparisonPayload) })
+      .subscribe({
+        next: () => {
+          this.submitting.set(false);
+          this.snackBar.open(
+            verdict === 'confirmed' ? `r${this.revision()} confirmed. The analyst is told by e-mail.` : `r${this.revision()} disputed. The analyst is told by e-mail.`,
+            'OK',
+            { duration: 6000 },
+          );
+          void this.router.navigate(this.historyLink());
+        },
+        error: (error: unknown) => {
+          this.submitting.set(false);
+          this.submitError.set(describeError(error));
+        },
+      });
+  }
+}
