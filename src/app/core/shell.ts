@@ -62,6 +62,7 @@ export class Shell {
     const lab = this.currentLab();
     const items: NavItem[] = [
       { label: 'Home', icon: 'home', link: '/', exact: true },
+      { label: 'Case library', icon: 'library_books', link: '/library', exact: false },
       { label: 'New case', icon: 'add_circle', link: '/cases/new', exact: false },
     ];
     if (lab) items.push({ label: 'Lab members', icon: 'group', link: `/labs/${lab.id}`, exact: false });
