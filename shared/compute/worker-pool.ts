@@ -10,15 +10,14 @@
  */
 import { Observable } from 'rxjs';
 import type { CaseParams } from '../case/case-schema';
-import { assembleChart, axisValues, type Grid2, type StabilityChart } from '../engine/chart';
+import { assembleChart, type Grid2, type StabilityChart } from '../engine/chart';
 import type { FloquetAnalysis } from '../engine/floquet';
 import type { MotionResult } from '../engine/motion';
 import {
-  assembleSweep, thresholdBrackets, sweepValues, type BasinCell, type MapCell, type SweepPoint, type SweepResult,
-  type SweepSpec, type SweepThreshold,
+  assembleCellMap, assembleSweep, thresholdBrackets, sweepValues, type BasinCell, type CellMap, type MapCell,
+  type SweepPoint, type SweepResult, type SweepSpec, type SweepThreshold,
 } from '../engine/sweep';
 import { isEngineResponse, type EngineRequest, type EngineResponse, type EngineResult } from './protocol';
-import { ENGINE_VERSION } from '../engine/version';
 
 /** The part of a Worker the pool uses; Web Workers fit as they are, worker_threads through an adapter. */
 export interface WorkerLike {
@@ -74,23 +73,6 @@ export type RequestBody = DistributiveOmit<EngineRequest, 'id'>;
 export const CHART_ROWS_PER_CHUNK = 8;
 export const MAP_ROWS_PER_CHUNK = 1;
 export const SWEEP_POINTS_PER_CHUNK = 2;
-
-export interface OutcomeMapResult {
-  engineVersion: string;
-  grid: Grid2;
-  xValues: Float64Array;
-  yValues: Float64Array;
-  /** Row-major cells: index = row * x.count + column. */
-  cells: MapCell[];
-}
-
-export interface BasinMapResult {
-  engineVersion: string;
-  grid: Grid2;
-  xValues: Float64Array;
-  yValues: Float64Array;
-  cells: BasinCell[];
-}
 
 interface Task {
   jobId: number;
@@ -197,7 +179,7 @@ export class WorkerPool {
   }
 
   /** Outcome map over two case fields. */
-  outcomeMap(params: CaseParams, grid: Grid2): Observable<PoolEvent<OutcomeMapResult>> {
+  outcomeMap(params: CaseParams, grid: Grid2): Observable<PoolEvent<CellMap>> {
     return this.job(async (ctx) => {
       const requests: RequestBody[] = rowRanges(grid.y.count, MAP_ROWS_PER_CHUNK).map(([rowFrom, rowTo]) => ({
         type: 'map-chunk', params, grid, rowFrom, rowTo,
@@ -207,12 +189,12 @@ export class WorkerPool {
         if (p.kind !== 'map-rows') throw new Error(`unexpected ${p.kind} result`);
         cells.push(...p.cells);
       }
-      return { engineVersion: ENGINE_VERSION, grid, xValues: axisValues(grid.x), yValues: axisValues(grid.y), cells };
+      return assembleCellMap(grid, cells);
     });
   }
 
   /** Basin map over start angle (x) and start rate (y). */
-  basin(params: CaseParams, grid: Grid2): Observable<PoolEvent<BasinMapResult>> {
+  basin(params: CaseParams, grid: Grid2): Observable<PoolEvent<CellMap>> {
     return this.job(async (ctx) => {
       const requests: RequestBody[] = rowRanges(grid.y.count, MAP_ROWS_PER_CHUNK).map(([rowFrom, rowTo]) => ({
         type: 'basin-chunk', params, grid, rowFrom, rowTo,
@@ -222,7 +204,7 @@ export class WorkerPool {
         if (p.kind !== 'basin-rows') throw new Error(`unexpected ${p.kind} result`);
         cells.push(...p.cells);
       }
-      return { engineVersion: ENGINE_VERSION, grid, xValues: axisValues(grid.x), yValues: axisValues(grid.y), cells };
+      return assembleCellMap(grid, cells);
     });
   }
 

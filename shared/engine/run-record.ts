@@ -10,12 +10,12 @@
 import type { CaseParams } from '../case/case-schema';
 import { caseDigest, valueDigest } from '../case/canonical';
 import { parseCase } from '../case/validate';
-import { axisValues, defaultChartGrid, stabilityChart, type Grid2, type StabilityChart } from './chart';
+import { defaultChartGrid, stabilityChart, type Grid2, type StabilityChart } from './chart';
 import { floquetAnalysis, MULTIPLIER_UNIT_TOLERANCE, type FloquetAnalysis } from './floquet';
 import { simulateMotion, type MotionHooks, type MotionResult } from './motion';
 import {
-  assembleSweep, basinMapRows, defaultBasinGrid, outcomeMapRows, sweepPoints, sweepThresholds, thresholdBrackets,
-  type MapCell, type SweepResult, type SweepSpec,
+  assembleSweep, basinMap, defaultBasinGrid, outcomeMap, sweepPoints, sweepThresholds, thresholdBrackets,
+  type CellMap, type MapCell, type SweepResult, type SweepSpec,
 } from './sweep';
 import { ENGINE_VERSION } from './version';
 
@@ -32,22 +32,13 @@ export type RunSettings =
   | { kind: 'map'; grid: Grid2 }
   | { kind: 'basin'; grid: Grid2 };
 
-/** Results of a map or basin run. */
-export interface CellMapResult {
-  engineVersion: string;
-  grid: Grid2;
-  xValues: Float64Array;
-  yValues: Float64Array;
-  cells: MapCell[];
-}
-
 export type RunResult =
   | { kind: 'motion'; value: MotionResult }
   | { kind: 'margins'; value: FloquetAnalysis }
   | { kind: 'sweep'; value: SweepResult }
   | { kind: 'chart'; value: StabilityChart }
-  | { kind: 'map'; value: CellMapResult }
-  | { kind: 'basin'; value: CellMapResult };
+  | { kind: 'map'; value: CellMap }
+  | { kind: 'basin'; value: CellMap };
 
 /** Flat headline numbers of a run (and a few words). */
 export type RunSummary = Record<string, number | string | boolean | null>;
@@ -121,15 +112,9 @@ export function computeRun(params: CaseParams, settings: RunSettings, hooks: Mot
     case 'chart':
       return { kind: 'chart', value: stabilityChart(params, settings.grid, hooks.onProgress) };
     case 'map':
-    case 'basin': {
-      const grid = settings.grid;
-      const rows = settings.kind === 'map' ? outcomeMapRows : basinMapRows;
-      const cells = rows(params, grid, 0, grid.y.count, hooks);
-      const value: CellMapResult = {
-        engineVersion: ENGINE_VERSION, grid, xValues: axisValues(grid.x), yValues: axisValues(grid.y), cells,
-      };
-      return settings.kind === 'map' ? { kind: 'map', value } : { kind: 'basin', value };
-    }
+      return { kind: 'map', value: outcomeMap(params, settings.grid, hooks) };
+    case 'basin':
+      return { kind: 'basin', value: basinMap(params, settings.grid, hooks) };
   }
 }
 

@@ -261,6 +261,30 @@ export function outcomeMapRows(params: CaseParams, grid: Grid2, rowFrom: number,
   return cells;
 }
 
+/** An outcome map or basin map: cells row-major, index = row * x.count + column. */
+export interface CellMap {
+  engineVersion: string;
+  grid: Grid2;
+  xValues: Float64Array;
+  yValues: Float64Array;
+  cells: MapCell[];
+}
+
+/** A map from its cells (computed in one piece or assembled from row chunks in order). */
+export function assembleCellMap(grid: Grid2, cells: MapCell[]): CellMap {
+  return { engineVersion: ENGINE_VERSION, grid, xValues: axisValues(grid.x), yValues: axisValues(grid.y), cells };
+}
+
+/** The whole outcome map in one thread. */
+export function outcomeMap(params: CaseParams, grid: Grid2, hooks: ChunkHooks = {}): CellMap {
+  return assembleCellMap(grid, outcomeMapRows(params, grid, 0, grid.y.count, hooks));
+}
+
+/** The whole basin map in one thread. */
+export function basinMap(params: CaseParams, grid: Grid2 = defaultBasinGrid(params), hooks: ChunkHooks = {}): CellMap {
+  return assembleCellMap(grid, basinMapRows(params, grid, 0, grid.y.count, hooks));
+}
+
 /** The default basin grid: start angle over the whole circle (x) by start rate within +-2 sqrt(g/L) (y). */
 export function defaultBasinGrid(params: CaseParams, count = 21): Grid2 {
   const w0 = bodyProperties(params.body, params.gravity).naturalFrequency;
