@@ -5,6 +5,7 @@
 import type { Sequelize } from 'sequelize';
 import { hashPassword } from '../services/passwords';
 import { Lab, Membership, User, type LabRole } from './models';
+import { seedLibrary } from './seed-library';
 
 export const DEMO_LAB_NAME = 'Brightwater Shaker Lab';
 
@@ -34,5 +35,6 @@ export async function seedDemo(sequelize: Sequelize): Promise<{ labId: string; c
       if (membershipCreated) created++;
     });
   }
+  created += await seedLibrary(sequelize, lab.id);
   return { labId: lab.id, created };
 }
