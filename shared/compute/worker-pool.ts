@@ -174,7 +174,7 @@ export class WorkerPool {
         if (p.kind !== 'sweep-thresholds') throw new Error(`unexpected ${p.kind} result`);
         thresholds.push(...p.thresholds);
       }
-      return assembleSweep(params, spec, points, thresholds);
+      return assembleSweep(spec, points, thresholds);
     });
   }
 

@@ -107,7 +107,7 @@ export function computeRun(params: CaseParams, settings: RunSettings, hooks: Mot
         shouldCancel: hooks.shouldCancel,
         onProgress: (f) => hooks.onProgress?.(0.7 + 0.3 * f),
       });
-      return { kind: 'sweep', value: assembleSweep(params, spec, points, thresholds) };
+      return { kind: 'sweep', value: assembleSweep(spec, points, thresholds) };
     }
     case 'chart':
       return { kind: 'chart', value: stabilityChart(params, settings.grid, hooks.onProgress) };

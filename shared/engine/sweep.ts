@@ -220,7 +220,7 @@ export function sweepThresholds(
 
 /** Sweep result from its parts (points in any order). */
 export function assembleSweep(
-  _params: CaseParams, spec: SweepSpec, points: readonly SweepPoint[], thresholds: readonly SweepThreshold[],
+  spec: SweepSpec, points: readonly SweepPoint[], thresholds: readonly SweepThreshold[],
 ): SweepResult {
   return {
     engineVersion: ENGINE_VERSION,
@@ -242,7 +242,7 @@ export function sweep(params: CaseParams, spec: SweepSpec, hooks: ChunkHooks = {
     shouldCancel: hooks.shouldCancel,
     onProgress: (f) => hooks.onProgress?.(0.7 + 0.3 * f),
   });
-  return assembleSweep(params, spec, points, thresholds);
+  return assembleSweep(spec, points, thresholds);
 }
 
 /** Outcome-map cells for rows [rowFrom, rowTo) of a grid over two case fields, row-major. */
