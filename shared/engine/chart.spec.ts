@@ -3,6 +3,9 @@ import { DEMO_RIGS, setField, templateCase } from '../case';
 import { assembleChart, axisValues, defaultChartGrid, stabilityChart, stabilityChartRows, type Grid2 } from './chart';
 import { uprightMaxMultiplier } from './floquet';
 import { mathieuA, mathieuB } from './mathieu';
+import { spectralRadius2 } from './monodromy';
+import { periodMap } from './period-map';
+import { periodicSystem } from './periodic-system';
 
 describe('stabilityChart', () => {
   it('agrees cell by cell with the per-case Floquet analysis (sine and crank-slider drives)', () => {
@@ -19,6 +22,20 @@ describe('stabilityChart', () => {
         const tol = 1e-6 * Math.max(1, ref);
         expect(Math.abs(v - ref), `cell (${r}, ${i}): chart ${v}, Floquet ${ref}, tol ${tol}`).toBeLessThan(tol);
       }
+    }
+  });
+
+  it('agrees with the odex integration of the variational equations (independent integrator)', () => {
+    const c = DEMO_RIGS[0].params;
+    const grid = defaultChartGrid(c, 12);
+    const chart = stabilityChart(c, grid);
+    const xs = axisValues(grid.x);
+    const ys = axisValues(grid.y);
+    for (const [r, i] of [[0, 0], [3, 7], [6, 5], [9, 2], [11, 11]]) {
+      const cell = setField(setField(c, 'drive.amplitude', ys[r]), 'drive.frequency', xs[i]);
+      const ref = spectralRadius2(periodMap(periodicSystem(cell), 0, 0).monodromy);
+      const v = chart.maxMultiplier[r * 12 + i];
+      expect(Math.abs(v - ref), `cell (${r}, ${i}): chart ${v}, odex ${ref}`).toBeLessThan(1e-6 * Math.max(1, ref));
     }
   });
 
