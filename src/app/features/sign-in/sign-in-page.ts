@@ -21,12 +21,18 @@ import { describeError } from '../../core/error-message';
 import { safeReturnUrl } from '../../core/return-url';
 import { Session } from '../../core/session';
 
-/** Accounts the local seed creates; listed only in development builds. */
-const DEMO_ACCOUNTS: readonly { readonly email: string; readonly role: string }[] = [
-  { email: 'owner@quiverpoint.test', role: 'owner' },
-  { email: 'analyst@quiverpoint.test', role: 'analyst' },
-  { email: 'reviewer@quiverpoint.test', role: 'reviewer' },
-  { email: 'viewer@quiverpoint.test', role: 'viewer' },
+interface DemoAccount {
+  readonly email: string;
+  readonly password: string;
+  readonly role: string;
+}
+
+/** The well-known accounts the local demo seed creates; listed only in development builds. */
+const DEMO_ACCOUNTS: readonly DemoAccount[] = [
+  { email: 'owner@quiverpoint.test', password: 'quiver-owner', role: 'owner' },
+  { email: 'analyst@quiverpoint.test', password: 'quiver-analyst', role: 'analyst' },
+  { email: 'reviewer@quiverpoint.test', password: 'quiver-reviewer', role: 'reviewer' },
+  { email: 'viewer@quiverpoint.test', password: 'quiver-viewer', role: 'viewer' },
 ];
 
 @Component({
@@ -90,8 +96,8 @@ export class SignInPage {
     this.passwordVisible.update((visible) => !visible);
   }
 
-  protected useDemoAccount(email: string): void {
-    this.form.controls.email.setValue(email);
-    this.passwordInput().nativeElement.focus();
+  protected useDemoAccount(account: DemoAccount): void {
+    this.form.setValue({ email: account.email, password: account.password });
+    this.serverError.set(null);
   }
 }

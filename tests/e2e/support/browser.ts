@@ -1,0 +1,56 @@
+/**
+ * Debian's Chromium driven by playwright-core (no downloaded browsers). Each launch gets a fresh temporary
+ * profile from playwright, so no state leaks between runs. Screenshots go to test-results/screenshots/.
+ */
+import { mkdirSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+
+export const CHROMIUM_PATH = process.env['QP_CHROMIUM'] ?? '/usr/bin/chromium';
+export const SCREENSHOT_DIR = resolve(__dirname, '..', '..', '..', 'test-results', 'screenshots');
+
+const CHROMIUM_ARGS = [
+  '--headless',
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-quic',
+  '--no-first-run',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+];
+
+export const DESKTOP = { width: 1366, height: 900 } as const;
+export const NARROW = { width: 390, height: 844 } as const;
+
+export interface TestBrowser {
+  /** A page in its own context (own storage), at the given viewport size. */
+  newPage(viewport: { width: number; height: number }): Promise<Page>;
+  close(): Promise<void>;
+}
+
+export async function launchBrowser(): Promise<TestBrowser> {
+  const browser: Browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
+  const contexts: BrowserContext[] = [];
+  return {
+    async newPage(viewport) {
+      const context = await browser.newContext({ viewport, deviceScaleFactor: 1 });
+      contexts.push(context);
+      const page = await context.newPage();
+      page.setDefaultTimeout(20_000);
+      return page;
+    },
+    async close() {
+      await Promise.all(contexts.map((c) => c.close().catch(() => undefined)));
+      await browser.close();
+    },
+  };
+}
+
+/** Saves a full-page PNG named `<name>.png` and returns its path. */
+export async function screenshot(page: Page, name: string): Promise<string> {
+  mkdirSync(SCREENSHOT_DIR, { recursive: true });
+  const path = join(SCREENSHOT_DIR, `${name}.png`);
+  await page.screenshot({ path, fullPage: true });
+  return path;
+}
