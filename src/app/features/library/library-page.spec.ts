@@ -161,7 +161,7 @@ describe('LibraryPage', () => {
   it('waits for the typing to pause before searching', async () => {
     (await open('analyst')).flush(casePage(1, ['A']));
     await settle();
-    vi.useFakeTimers({ toFake: ['setTimeout', 'clearTimeout'] });
+    vi.useFakeTimers({ toFake: ['setTimeout', 'clearTimeout', 'setInterval', 'clearInterval'] });
     const input = host.querySelector<HTMLInputElement>('input[type="search"]');
     if (!input) throw new Error('no search box');
     for (const text of ['t', 'ta', 'tal']) {
