@@ -9,6 +9,7 @@ import { parseInput } from '../middleware/validate';
 import type { SendMail } from '../services/mailer';
 import { acceptInvitation, addMember, changeRole, labsOf, membersOf, removeMember } from '../services/lab-service';
 import { issueToken } from '../services/auth-service';
+import { enqueueMail } from '../services/outbox-service';
 
 const page = z.object({
   limit: z.coerce.number().int().min(1).max(500).default(100),
@@ -45,17 +46,20 @@ export function addMemberRoute(sequelize: Sequelize, config: Config, sendMail: S
     }
     const link = new URL(`/invitations/${encodeURIComponent(result.token)}`, config.publicUrl).toString();
     let mailed = true;
+    const mail = {
+      to: result.invitation.email,
+      subject: 'You are invited to a Quiverpoint lab',
+      text: `${currentUser(req).name} invited you to join their lab as ${newRole}.\n\nAccept within ${config.invitationTtlHours} hours: ${link}\n`,
+    };
     try {
-      await sendMail({
-        to: result.invitation.email,
-        subject: 'You are invited to a Quiverpoint lab',
-        text: `${currentUser(req).name} invited you to join their lab as ${newRole}.\n\nAccept within ${config.invitationTtlHours} hours: ${link}\n`,
-      });
+      await sendMail(mail);
     } catch (err) {
       mailed = false;
-      req.log?.warn({ err }, 'invitation mail not sent');
+      req.log?.warn({ err }, 'invitation mail not sent now; queued in the outbox for retries');
+      // The outbox sender loop retries with backoff; the row shows the failure to site admins.
+      await enqueueMail(mail);
     }
-    res.status(201).json({ kind: 'invitation', invitation: result.invitation, mailed });
+    res.status(201).json({ kind: 'invitation', invitation: result.invitation, mailed, ...(mailed ? {} : { queued: true }) });
   };
 }
 

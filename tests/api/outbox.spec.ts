@@ -4,7 +4,7 @@ import { OutboxMail, SinkMail } from '../../server/db/models';
 import { startMailSink, type MailSink } from '../../server/scripts/mail-sink';
 import { createMailer } from '../../server/services/mailer';
 import { MAX_ATTEMPTS, deliverDueMail, enqueueMail, retryDelayMs } from '../../server/services/outbox-service';
-import { createUser, startApi, tokenFor, uniqueEmail, type TestApi } from './support';
+import { createLab, createUser, startApi, tokenFor, uniqueEmail, type TestApi } from './support';
 import { client } from './library-support';
 
 let api: TestApi;
@@ -89,6 +89,18 @@ describe('mail outbox', () => {
     const mails = await client(api.app, token).get('/api/admin/mails?pageSize=5');
     expect(mails.status).toBe(200);
     expect(mails.body.items.map((m: { subject: string }) => m.subject)).toContain('Outbox retry check');
+  });
+
+  it('queues an invitation mail that could not be sent right away', async () => {
+    const owner = await createUser('inviting-owner');
+    const lab = await createLab([[owner, 'owner']]);
+    const email = uniqueEmail('queued-invitee');
+    const res = await client(api.app, await tokenFor(api.app, owner)).post(`/api/labs/${lab.id}/members`, { email, role: 'viewer' });
+    expect(res.status).toBe(201);
+    expect(res.body).toMatchObject({ kind: 'invitation', mailed: false, queued: true });
+    const queued = await OutboxMail.findOne({ where: { toAddress: email } });
+    expect(queued).toMatchObject({ subject: 'You are invited to a Quiverpoint lab', attempts: 0, sentAt: null });
+    expect(queued?.textBody).toMatch(/\/invitations\/[A-Za-z0-9_-]+/);
   });
 
   it('sends a due mail once even when two senders run at the same time', async () => {
