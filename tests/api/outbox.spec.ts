@@ -3,7 +3,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { OutboxMail, SinkMail } from '../../server/db/models';
 import { startMailSink, type MailSink } from '../../server/scripts/mail-sink';
 import { createMailer } from '../../server/services/mailer';
-import { MAX_ATTEMPTS, deliverDueMail, enqueueMail, retryDelayMs } from '../../server/services/outbox-service';
+import { createLogger } from '../../server/logger';
+import { MAX_ATTEMPTS, deliverDueMail, enqueueMail, retryDelayMs, startOutboxSender } from '../../server/services/outbox-service';
 import { createLab, createUser, startApi, tokenFor, uniqueEmail, type TestApi } from './support';
 import { client } from './library-support';
 
@@ -89,6 +90,27 @@ describe('mail outbox', () => {
     const mails = await client(api.app, token).get('/api/admin/mails?pageSize=5');
     expect(mails.status).toBe(200);
     expect(mails.body.items.map((m: { subject: string }) => m.subject)).toContain('Outbox retry check');
+  });
+
+  it('the sender loop delivers queued mail on its own and stops cleanly', async () => {
+    const row = await enqueueMail({ to: uniqueEmail('loop'), subject: 'Sent by the loop', text: 'x' });
+    const delivered: string[] = [];
+    const sender = startOutboxSender({
+      sequelize: api.sequelize,
+      sendMail: async (mail) => {
+        delivered.push(mail.subject);
+      },
+      logger: createLogger('silent'),
+      intervalMs: 50,
+    });
+    const deadline = Date.now() + 10_000;
+    while (!delivered.includes('Sent by the loop') && Date.now() < deadline) await new Promise((r) => setTimeout(r, 50));
+    await sender.stop();
+    await row.reload();
+    expect(row.sentAt).not.toBeNull();
+    const count = delivered.length;
+    await new Promise((r) => setTimeout(r, 200));
+    expect(delivered.length).toBe(count);
   });
 
   it('queues an invitation mail that could not be sent right away', async () => {
