@@ -78,7 +78,9 @@ function workerCount(args: ParsedArgs): number {
 }
 
 /** Runs a pool job with a progress bar and returns its result; the pool is always disposed. */
-async function onPool<T>(args: ParsedArgs, label: string, job: (pool: ReturnType<typeof createNodeEnginePool>) => Observable<PoolEvent<T>>): Promise<T> {
+async function onPool<T, P>(
+  args: ParsedArgs, label: string, job: (pool: ReturnType<typeof createNodeEnginePool>) => Observable<PoolEvent<T, P>>,
+): Promise<T> {
   const pool = createNodeEnginePool(workerCount(args));
   const bar = progressBar(label);
   try {

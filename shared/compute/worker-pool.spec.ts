@@ -34,11 +34,17 @@ function shortCase(): CaseParams {
   return { ...c, run: { ...c.run, duration: 2, outputPoints: 400 } };
 }
 
-async function collect<T>(job: Observable<PoolEvent<T>>): Promise<{ value: T; progress: number[] }> {
+async function collect<T, P>(job: Observable<PoolEvent<T, P>>): Promise<{ value: T; progress: number[]; partials: P[] }> {
   const all = await lastValueFrom(job.pipe(toArray()));
   const last = all[all.length - 1];
   if (last.type !== 'result') throw new Error('no result');
-  return { value: last.value, progress: all.flatMap((e) => (e.type === 'progress' ? [e.fraction] : [])) };
+  const progress: number[] = [];
+  const partials: P[] = [];
+  for (const e of all) {
+    if (e.type === 'progress') progress.push(e.fraction);
+    else if (e.type === 'partial') partials.push(e.value);
+  }
+  return { value: last.value, progress, partials };
 }
 
 describe('WorkerPool over worker_threads', () => {
@@ -59,9 +65,18 @@ describe('WorkerPool over worker_threads', () => {
   it('gives the same chart as a single-thread run, with monotone progress ending at 1', async () => {
     const c = templateCase();
     const grid = defaultChartGrid(c, 40);
-    const { value, progress } = await collect(pool.chart(c, grid));
+    const { value, progress, partials } = await collect(pool.chart(c, grid));
     const single = stabilityChart(c, grid);
     expect(Array.from(value.maxMultiplier)).toEqual(Array.from(single.maxMultiplier));
+    // Partial row blocks cover every row once and carry the final numbers.
+    const rebuilt = new Float64Array(value.maxMultiplier.length);
+    let rows = 0;
+    for (const p of partials) {
+      rebuilt.set(p.values, p.rowFrom * grid.x.count);
+      rows += p.rowTo - p.rowFrom;
+    }
+    expect(rows).toBe(grid.y.count);
+    expect(Array.from(rebuilt)).toEqual(Array.from(value.maxMultiplier));
     expect(progress.length).toBeGreaterThan(2);
     for (let i = 1; i < progress.length; i++) expect(progress[i]).toBeGreaterThan(progress[i - 1]);
     expect(progress[progress.length - 1]).toBe(1);
@@ -110,7 +125,9 @@ describe('WorkerPool determinism', () => {
     const results = [];
     for (const size of [1, 3]) {
       const pool = new WorkerPool(inThreadWorker, size);
-      results.push((await collect(pool.sweep(c, spec))).value);
+      const { value, partials } = await collect(pool.sweep(c, spec));
+      expect(partials.flat().map((p) => p.index).sort()).toEqual([0, 1, 2, 3, 4]);
+      results.push(value);
       pool.dispose();
     }
     const single = sweep(c, spec);

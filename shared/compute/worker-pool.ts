@@ -62,8 +62,22 @@ export function fromWebWorker(worker: WebWorkerHandle): WorkerLike {
   return like;
 }
 
-/** What a job's Observable emits: progress fractions, then one result. */
-export type PoolEvent<T> = { type: 'progress'; fraction: number } | { type: 'result'; value: T };
+/**
+ * What a job's Observable emits: progress fractions, for chunked jobs a `partial` event per finished chunk (so a
+ * plot can fill in while the job runs; chunks arrive in completion order, each says where it belongs), then one
+ * result.
+ */
+export type PoolEvent<T, P = never> =
+  | { type: 'progress'; fraction: number }
+  | { type: 'result'; value: T }
+  | ([P] extends [never] ? never : { type: 'partial'; value: P });
+
+/** Partial results of chunked jobs. */
+export interface RowsPartial<V> {
+  rowFrom: number;
+  rowTo: number;
+  values: V;
+}
 
 type DistributiveOmit<T, K extends PropertyKey> = T extends unknown ? Omit<T, K> : never;
 /** A request before the pool gives it an id. */
@@ -93,7 +107,9 @@ class JobCancelled extends Error {}
 
 interface JobContext {
   /** Runs the requests on the pool; progress of the whole call spans [spanFrom, spanTo] of the job. */
-  runAll(requests: RequestBody[], spanFrom: number, spanTo: number): Promise<EngineResult[]>;
+  runAll(
+    requests: RequestBody[], spanFrom: number, spanTo: number, onChunk?: (result: EngineResult) => void,
+  ): Promise<EngineResult[]>;
 }
 
 export class WorkerPool {
@@ -136,12 +152,14 @@ export class WorkerPool {
   }
 
   /** Stability chart, split into row ranges. */
-  chart(params: CaseParams, grid: Grid2): Observable<PoolEvent<StabilityChart>> {
-    return this.job(async (ctx) => {
+  chart(params: CaseParams, grid: Grid2): Observable<PoolEvent<StabilityChart, RowsPartial<Float64Array>>> {
+    return this.job<StabilityChart, RowsPartial<Float64Array>>(async (ctx, partial) => {
       const requests: RequestBody[] = rowRanges(grid.y.count, CHART_ROWS_PER_CHUNK).map(([rowFrom, rowTo]) => ({
         type: 'chart-chunk', params, grid, rowFrom, rowTo,
       }));
-      const parts = await ctx.runAll(requests, 0, 1);
+      const parts = await ctx.runAll(requests, 0, 1, (p) => {
+        if (p.kind === 'chart-rows') partial({ rowFrom: p.rowFrom, rowTo: p.rowTo, values: p.values.slice() });
+      });
       const values = new Float64Array(grid.x.count * grid.y.count);
       for (const p of parts) {
         if (p.kind !== 'chart-rows') throw new Error(`unexpected ${p.kind} result`);
@@ -152,13 +170,15 @@ export class WorkerPool {
   }
 
   /** 1-D sweep: points in chunks, then each threshold between differing outcomes by bisection. */
-  sweep(params: CaseParams, spec: SweepSpec): Observable<PoolEvent<SweepResult>> {
-    return this.job(async (ctx) => {
+  sweep(params: CaseParams, spec: SweepSpec): Observable<PoolEvent<SweepResult, SweepPoint[]>> {
+    return this.job<SweepResult, SweepPoint[]>(async (ctx, partial) => {
       const values = sweepValues(spec);
       const requests: RequestBody[] = rowRanges(values.length, SWEEP_POINTS_PER_CHUNK).map(([from, to]) => ({
         type: 'sweep-chunk', params, spec, part: { kind: 'points', from, to },
       }));
-      const pointParts = await ctx.runAll(requests, 0, 0.7);
+      const pointParts = await ctx.runAll(requests, 0, 0.7, (p) => {
+        if (p.kind === 'sweep-points') partial(p.points);
+      });
       const points: SweepPoint[] = [];
       for (const p of pointParts) {
         if (p.kind !== 'sweep-points') throw new Error(`unexpected ${p.kind} result`);
@@ -179,13 +199,16 @@ export class WorkerPool {
   }
 
   /** Outcome map over two case fields. */
-  outcomeMap(params: CaseParams, grid: Grid2): Observable<PoolEvent<CellMap>> {
-    return this.job(async (ctx) => {
+  outcomeMap(params: CaseParams, grid: Grid2): Observable<PoolEvent<CellMap, RowsPartial<MapCell[]>>> {
+    return this.job<CellMap, RowsPartial<MapCell[]>>(async (ctx, partial) => {
       const requests: RequestBody[] = rowRanges(grid.y.count, MAP_ROWS_PER_CHUNK).map(([rowFrom, rowTo]) => ({
         type: 'map-chunk', params, grid, rowFrom, rowTo,
       }));
       const cells: MapCell[] = [];
-      for (const p of await ctx.runAll(requests, 0, 1)) {
+      const rows = await ctx.runAll(requests, 0, 1, (p) => {
+        if (p.kind === 'map-rows') partial({ rowFrom: p.rowFrom, rowTo: p.rowTo, values: p.cells });
+      });
+      for (const p of rows) {
         if (p.kind !== 'map-rows') throw new Error(`unexpected ${p.kind} result`);
         cells.push(...p.cells);
       }
@@ -194,13 +217,16 @@ export class WorkerPool {
   }
 
   /** Basin map over start angle (x) and start rate (y). */
-  basin(params: CaseParams, grid: Grid2): Observable<PoolEvent<CellMap>> {
-    return this.job(async (ctx) => {
+  basin(params: CaseParams, grid: Grid2): Observable<PoolEvent<CellMap, RowsPartial<BasinCell[]>>> {
+    return this.job<CellMap, RowsPartial<BasinCell[]>>(async (ctx, partial) => {
       const requests: RequestBody[] = rowRanges(grid.y.count, MAP_ROWS_PER_CHUNK).map(([rowFrom, rowTo]) => ({
         type: 'basin-chunk', params, grid, rowFrom, rowTo,
       }));
       const cells: BasinCell[] = [];
-      for (const p of await ctx.runAll(requests, 0, 1)) {
+      const rows = await ctx.runAll(requests, 0, 1, (p) => {
+        if (p.kind === 'basin-rows') partial({ rowFrom: p.rowFrom, rowTo: p.rowTo, values: p.cells });
+      });
+      for (const p of rows) {
         if (p.kind !== 'basin-rows') throw new Error(`unexpected ${p.kind} result`);
         cells.push(...p.cells);
       }
@@ -221,8 +247,10 @@ export class WorkerPool {
     }
   }
 
-  private job<T>(body: (ctx: JobContext) => Promise<T>): Observable<PoolEvent<T>> {
-    return new Observable<PoolEvent<T>>((subscriber) => {
+  private job<T, P = never>(
+    body: (ctx: JobContext, partial: (value: P) => void) => Promise<T>,
+  ): Observable<PoolEvent<T, P>> {
+    return new Observable<PoolEvent<T, P>>((subscriber) => {
       const jobId = this.nextJob++;
       let cancelled = false;
       let reported = 0;
@@ -234,7 +262,7 @@ export class WorkerPool {
         }
       };
       const ctx: JobContext = {
-        runAll: (requests, spanFrom, spanTo) => {
+        runAll: (requests, spanFrom, spanTo, onChunk) => {
           if (cancelled) return Promise.reject(new JobCancelled());
           if (requests.length === 0) return Promise.resolve([]);
           const fractions = new Array<number>(requests.length).fill(0);
@@ -257,6 +285,7 @@ export class WorkerPool {
                     },
                     resolve: (r) => {
                       fractions[i] = 1;
+                      if (!cancelled) onChunk?.(r);
                       update();
                       resolve(r);
                     },
@@ -267,7 +296,10 @@ export class WorkerPool {
           );
         },
       };
-      body(ctx).then(
+      const partial = (value: P): void => {
+        if (!cancelled) subscriber.next({ type: 'partial', value } as PoolEvent<T, P>);
+      };
+      body(ctx, partial).then(
         (value) => {
           if (cancelled) return;
           report(1);
