@@ -69,7 +69,7 @@ export async function requestRecheck(
     await setState(transaction, revision, 'awaiting-recheck', {
       recheckRequestedById: actor.id,
       recheckReviewerId: reviewer.id,
-      recheckMessage: input.message ?? null,
+      recheckMessage: input.message || null,
       recheckRequestedAt: new Date(),
     });
     const url = revisionUrl(config, record.id, number);
