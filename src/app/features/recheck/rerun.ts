@@ -1,7 +1,7 @@
-import { Observable, map } from 'rxjs';
+import { Observable, filter, map } from 'rxjs';
 
 import type { CaseParams } from '../../../../shared/case/case-schema';
-import type { PoolEvent, WorkerPool } from '../../../../shared/compute/worker-pool';
+import type { WorkerPool } from '../../../../shared/compute/worker-pool';
 import { makeRunRecord, type RunRecord, type RunResult, type RunSettings } from '../../../../shared/engine/run-record';
 import { isRunKind } from '../library/api-case-repository';
 import { isRecord } from '../library/library-types';
@@ -12,16 +12,25 @@ export function runSettingsOf(kind: string, settings: unknown): RunSettings | nu
   return settings as unknown as RunSettings;
 }
 
-function tagged<T>(events: Observable<PoolEvent<T>>, wrap: (value: T) => RunResult): Observable<PoolEvent<RunResult>> {
-  return events.pipe(map((e) => (e.type === 'progress' ? e : { type: 'result', value: wrap(e.value) })));
+/** Progress, then the result; the pool's partial results (for live plots) are not needed here. */
+export type RerunEvent<T> = { type: 'progress'; fraction: number } | { type: 'result'; value: T };
+
+function tagged<T>(
+  events: Observable<RerunEvent<T> | { type: 'partial'; value: unknown }>,
+  wrap: (value: T) => RunResult,
+): Observable<RerunEvent<RunResult>> {
+  return events.pipe(
+    filter((e): e is RerunEvent<T> => e.type === 'progress' || e.type === 'result'),
+    map((e) => (e.type === 'progress' ? e : { type: 'result', value: wrap(e.value) })),
+  );
 }
 
 /**
  * Recomputes a stored run in the browser's engine workers with its own settings, and emits progress then the new
  * run record (summary, digest, engine version), ready to compare with the stored one.
  */
-export function rerunInPool(pool: WorkerPool, params: CaseParams, settings: RunSettings): Observable<PoolEvent<RunRecord>> {
-  let results: Observable<PoolEvent<RunResult>>;
+export function rerunInPool(pool: WorkerPool, params: CaseParams, settings: RunSettings): Observable<RerunEvent<RunRecord>> {
+  let results: Observable<RerunEvent<RunResult>>;
   switch (settings.kind) {
     case 'motion':
       results = tagged(pool.motion(params), (value) => ({ kind: 'motion', value }));
