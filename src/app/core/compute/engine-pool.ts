@@ -1,6 +1,6 @@
 import { DestroyRef, InjectionToken, inject } from '@angular/core';
 
-import { WorkerPool, type WorkerLike } from '../../../../shared/compute/worker-pool';
+import { WorkerPool, fromWebWorker, type WorkerLike } from '../../../../shared/compute/worker-pool';
 
 /**
  * The engine worker pool of the browser. Injected only by lazy feature code, so neither the pool nor the engine
@@ -17,9 +17,7 @@ export const ENGINE_POOL = new InjectionToken<WorkerPool>('ENGINE_POOL', {
 
 /** One engine Web Worker (a module worker, bundled by the Angular builder from workers/engine.worker.ts). */
 export function browserEngineWorker(): WorkerLike {
-  const worker = new Worker(new URL('../../../../workers/engine.worker', import.meta.url), { type: 'module' });
-  // A Web Worker already has the WorkerLike shape; only the message data is typed more loosely.
-  return worker as unknown as WorkerLike;
+  return fromWebWorker(new Worker(new URL('../../../../workers/engine.worker', import.meta.url), { type: 'module' }));
 }
 
 /** One worker per core, at least one and at most four (leaves the page's own thread some room). */

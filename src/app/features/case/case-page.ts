@@ -9,7 +9,7 @@ import { MatSnackBar } from '@angular/material/snack-bar';
 import { MatTabsModule } from '@angular/material/tabs';
 import { MatTooltipModule } from '@angular/material/tooltip';
 import { ActivatedRoute, Router, RouterLink, RouterLinkActive, RouterOutlet } from '@angular/router';
-import { EMPTY, catchError, combineLatest, switchMap, tap } from 'rxjs';
+import { EMPTY, catchError, switchMap, tap } from 'rxjs';
 
 import { downloadText } from '../../ui/csv';
 import { caseFileJson, caseFileName, readCaseFile } from './case-file';
@@ -65,13 +65,14 @@ export class CasePage {
   });
 
   constructor() {
-    combineLatest([this.route.paramMap, this.route.queryParamMap])
+    // Only the case and revision matter here: tab links drop the query (the preset applies once, on arrival).
+    this.route.paramMap
       .pipe(
-        switchMap(([params, query]) => {
+        switchMap((params) => {
           this.problem.set(null);
           const caseId = params.get('caseId');
           if (!caseId) {
-            this.workspace.startNew(query.get('preset'));
+            this.workspace.startNew(this.route.snapshot.queryParamMap.get('preset'));
             return EMPTY;
           }
           const rev = params.get('rev');

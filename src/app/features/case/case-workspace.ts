@@ -10,14 +10,13 @@ import type { Grid2, StabilityChart } from '../../../../shared/engine/chart';
 import type { FloquetAnalysis } from '../../../../shared/engine/floquet';
 import type { MotionResult } from '../../../../shared/engine/motion';
 import { makeRunRecord, type RunRecord, type RunResult, type RunSettings } from '../../../../shared/engine/run-record';
-import type { SweepResult, SweepSpec } from '../../../../shared/engine/sweep';
-import type { BasinMapResult } from '../../../../shared/compute/worker-pool';
+import type { CellMap, MapCell, SweepPoint, SweepResult, SweepSpec } from '../../../../shared/engine/sweep';
 import { ENGINE_POOL } from '../../core/compute/engine-pool';
 import { describeError } from '../../core/error-message';
 import { Session } from '../../core/session';
 import { CASE_REPOSITORY, type OpenedCase, type StoredRun } from './case-repository';
 import { CaseRepositoryError } from './case-repository-error';
-import { PoolJob } from './pool-job';
+import { PoolJob, type RowsDone } from './pool-job';
 import { DEFAULT_UNITS, RigForm, type DisplayUnits } from './rig/rig-form';
 
 /** A result together with the case it was computed for. */
@@ -59,8 +58,9 @@ export class CaseWorkspace {
   private readonly marginsState = signal<Computed<FloquetAnalysis> | null>(null);
   private readonly sweepState = signal<Computed<SweepResult> | null>(null);
   private readonly chartState = signal<Computed<StabilityChart> | null>(null);
-  private readonly basinState = signal<Computed<BasinMapResult> | null>(null);
+  private readonly basinState = signal<Computed<CellMap> | null>(null);
   private readonly formTickState = signal(0);
+  private readonly sweepPartialState = signal<readonly SweepPoint[]>([]);
 
   readonly form = new RigForm(templateCase(), DEFAULT_UNITS);
   readonly title = signal('New case');
@@ -92,14 +92,16 @@ export class CaseWorkspace {
   readonly motion = this.motionState.asReadonly();
   readonly margins = this.marginsState.asReadonly();
   readonly sweep = this.sweepState.asReadonly();
+  /** Points of the running sweep finished so far, in sweep order. */
+  readonly sweepPartial = this.sweepPartialState.asReadonly();
   readonly chart = this.chartState.asReadonly();
   readonly basin = this.basinState.asReadonly();
 
   readonly motionJob = new PoolJob<MotionResult>();
   readonly marginsJob = new PoolJob<FloquetAnalysis>();
-  readonly sweepJob = new PoolJob<SweepResult>();
-  readonly chartJob = new PoolJob<StabilityChart>();
-  readonly basinJob = new PoolJob<BasinMapResult>();
+  readonly sweepJob = new PoolJob<SweepResult, SweepPoint[]>();
+  readonly chartJob = new PoolJob<StabilityChart, RowsDone<Float64Array>>();
+  readonly basinJob = new PoolJob<CellMap, RowsDone<MapCell[]>>();
 
   constructor() {
     this.form.group.valueChanges.pipe(takeUntilDestroyed(this.destroyRef)).subscribe(() => this.readForm());
@@ -179,10 +181,15 @@ export class CaseWorkspace {
   runSweep(spec: SweepSpec): void {
     const params = this.draftState();
     const settings: RunSettings = { kind: 'sweep', spec };
-    this.sweepJob.start(this.pool.sweep(params, spec), (value) => {
-      this.sweepState.set(this.computed(value, params, settings));
-      this.record(params, settings, { kind: 'sweep', value });
-    });
+    this.sweepPartialState.set([]);
+    this.sweepJob.start(
+      this.pool.sweep(params, spec),
+      (value) => {
+        this.sweepState.set(this.computed(value, params, settings));
+        this.record(params, settings, { kind: 'sweep', value });
+      },
+      (points) => this.sweepPartialState.update((done) => [...done, ...points].sort((a, b) => a.index - b.index)),
+    );
   }
 
   runChart(grid: Grid2): void {
@@ -271,7 +278,7 @@ export class CaseWorkspace {
     this.runsState.update((runs) => [...runs, run]);
   }
 
-  private jobs(): PoolJob<unknown>[] {
+  private jobs(): Array<{ cancel(): void }> {
     return [this.motionJob, this.marginsJob, this.sweepJob, this.chartJob, this.basinJob];
   }
 

@@ -15,7 +15,8 @@ export function formatIn(si: number | null | undefined, dimension: Dimension, un
   if (si === null || si === undefined) return '—';
   const unit = unitLabelOf(dimension, units);
   const text = formatNumber(toDisplay(si, dimension, units), digits);
-  return unit ? `${text} ${unit}` : text;
+  if (!unit) return text;
+  return unit.startsWith('°') ? `${text}${unit}` : `${text} ${unit}`;
 }
 
 /** A signed percentage: "+12.3 %". */

@@ -1,14 +1,26 @@
 import { computed, signal } from '@angular/core';
 import type { Observable, Subscription } from 'rxjs';
 
-import type { PoolEvent } from '../../../../shared/compute/worker-pool';
+
+/** The events of a pool job: progress, partial results of chunked jobs, then the result. */
+export type JobEvent<T, P> =
+  | { type: 'progress'; fraction: number }
+  | { type: 'partial'; value: P }
+  | { type: 'result'; value: T };
+
+/** A finished row range of a chunked chart or map. */
+export interface RowsDone<V> {
+  rowFrom: number;
+  rowTo: number;
+  values: V;
+}
 
 /**
  * One cancellable computation on the worker pool, as signals: running, progress (0..1) and the last error. Starting
  * again cancels the previous run. Cancelling unsubscribes, which makes the pool drop queued chunks and stop its
  * busy workers.
  */
-export class PoolJob<T> {
+export class PoolJob<T, P = never> {
   private readonly runningState = signal(false);
   private readonly progressState = signal(0);
   private readonly errorState = signal<string | null>(null);
@@ -22,7 +34,8 @@ export class PoolJob<T> {
   readonly cancelled = this.cancelledState.asReadonly();
   readonly percent = computed(() => Math.round(this.progressState() * 100));
 
-  start(events: Observable<PoolEvent<T>>, done: (value: T) => void): void {
+  /** Runs `events`; `done` gets the result, `partial` (when given) each finished chunk of a chunked job. */
+  start(events: Observable<JobEvent<T, P>>, done: (value: T) => void, partial?: (value: P) => void): void {
     this.stop();
     this.runningState.set(true);
     this.progressState.set(0);
@@ -31,10 +44,10 @@ export class PoolJob<T> {
     this.subscription = events.subscribe({
       next: (event) => {
         if (event.type === 'progress') this.progressState.set(event.fraction);
-        else {
+        else if (event.type === 'result') {
           this.runningState.set(false);
           done(event.value);
-        }
+        } else partial?.(event.value);
       },
       error: (error: unknown) => {
         this.runningState.set(false);

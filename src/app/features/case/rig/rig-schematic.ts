@@ -43,7 +43,7 @@ const BODY_PX = 100;
       <text x="-125" y="-125" class="label">{{ angleLabel() }}</text>
       <text [attr.x]="strokeLabelX()" y="100" class="label" text-anchor="end">{{ strokeLabel() }}</text>
       <defs>
-        <marker id="qp-arrow" viewBox="0 0 10 10" refX="5" refY="5" markerWidth="5" markerHeight="5" orient="auto-start-reverse">
+        <marker id="qp-arrow" viewBox="0 0 10 10" refX="5" refY="5" markerWidth="3" markerHeight="3" orient="auto-start-reverse">
           <path d="M 0 0 L 10 5 L 0 10 z" class="arrow-head" />
         </marker>
       </defs>
@@ -109,9 +109,9 @@ export class RigSchematic {
 
   protected readonly driveLine = computed(() => ({ x: this.driveAxis().x * 120, y: this.driveAxis().y * 120 }));
 
-  /** Half the stroke, drawn at least 10 units long so it stays visible. */
+  /** Half the stroke, drawn at least 18 units long so it stays visible. */
   protected readonly stroke = computed(() => {
-    const half = Math.min(60, Math.max(10, this.params().drive.amplitude * this.scale()));
+    const half = Math.min(60, Math.max(18, this.params().drive.amplitude * this.scale()));
     return { x: this.driveAxis().x * half, y: this.driveAxis().y * half };
   });
 

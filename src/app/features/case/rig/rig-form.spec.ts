@@ -1,0 +1,131 @@
+import { getField } from '../../../../../shared/case/case-fields';
+import type { CaseParams } from '../../../../../shared/case/case-schema';
+import { DEMO_RIGS, templateCase } from '../../../../../shared/case/templates';
+import { RigForm, fromDisplay, readableIssue, toDisplay, type DisplayUnits } from './rig-form';
+
+const NUMERIC_PATHS = [
+  'drive.direction', 'drive.amplitude', 'drive.frequency', 'damping.viscousRatio', 'damping.quadratic',
+  'damping.friction', 'damping.frictionSmoothing', 'start.angle', 'start.rate', 'gravity', 'run.duration',
+  'run.rtol', 'run.atol', 'run.outputPoints', 'run.strobePhase', 'run.transientFraction',
+];
+
+function expectSameCase(actual: CaseParams, expected: CaseParams, paths: readonly string[]): void {
+  for (const path of paths) {
+    const a = getField(actual, path);
+    const e = getField(expected, path);
+    const tolerance = 1e-11 * Math.max(1, Math.abs(e));
+    expect(Math.abs(a - e), `${path}: ${a} vs ${e}`).toBeLessThanOrEqual(tolerance);
+  }
+}
+
+function parsed(form: RigForm): CaseParams {
+  const result = form.parse();
+  if (!result.ok) throw new Error(JSON.stringify(result.issues));
+  return result.value;
+}
+
+describe('RigForm', () => {
+  it('shows SI lengths in mm, frequencies in Hz and angles in degrees by default', () => {
+    const form = new RigForm(templateCase());
+    const c = form.group.controls;
+    expect(c.body.controls.length.value).toBe(200);
+    expect(c.drive.controls.amplitude.value).toBe(10);
+    expect(c.drive.controls.frequency.value).toBe(40);
+    expect(c.start.controls.angle.value).toBeCloseTo(5.729577951, 8);
+  });
+
+  for (const units of [
+    { length: 'mm', frequency: 'Hz', angle: 'deg' },
+    { length: 'cm', frequency: 'rpm', angle: 'rad' },
+    { length: 'm', frequency: 'rpm', angle: 'deg' },
+  ] satisfies DisplayUnits[]) {
+    it(`round-trips every demo rig through ${units.length}, ${units.frequency}, ${units.angle}`, () => {
+      for (const rig of DEMO_RIGS) {
+        const form = new RigForm(rig.params, units);
+        const back = parsed(form);
+        expectSameCase(back, rig.params, NUMERIC_PATHS);
+        expect(back.body).toEqual(expect.objectContaining({ kind: rig.params.body.kind }));
+      }
+    });
+  }
+
+  it('converts the shown values when the units change, and the case stays the same', () => {
+    const rig = DEMO_RIGS[0].params;
+    const form = new RigForm(rig);
+    form.setUnits({ length: 'cm', frequency: 'rpm', angle: 'rad' });
+    const c = form.group.controls;
+    expect(c.drive.controls.amplitude.value).toBe(2);
+    expect(c.drive.controls.frequency.value).toBe(1500);
+    expect(c.start.controls.angle.value).toBeCloseTo(0.15, 12);
+    expect(c.drive.controls.connectingRod.value).toBe(10);
+    expectSameCase(parsed(form), rig, [...NUMERIC_PATHS, 'body.rodLength', 'body.bobDistance', 'drive.waveform.connectingRod']);
+  });
+
+  it('keeps display rounding away from the stored value: 0.02 m shows as exactly 20 mm', () => {
+    const units: DisplayUnits = { length: 'mm', frequency: 'Hz', angle: 'deg' };
+    expect(toDisplay(0.02, 'length', units)).toBe(20);
+    expect(fromDisplay(20, 'length', units)).toBeCloseTo(0.02, 15);
+    expect(toDisplay(Math.PI / 2, 'angle', units)).toBe(90);
+  });
+
+  it('fills the form from each preset, including body and waveform kinds', () => {
+    const form = new RigForm(templateCase());
+    for (const rig of DEMO_RIGS) {
+      form.setParams(rig.params);
+      const c = form.group.controls;
+      expect(c.body.controls.kind.value).toBe(rig.params.body.kind);
+      expect(c.drive.controls.waveform.value).toBe(rig.params.drive.waveform.kind);
+      expect(c.drive.controls.amplitude.value).toBeCloseTo(rig.params.drive.amplitude * 1000, 9);
+      expect(c.drive.controls.frequency.value).toBeCloseTo(rig.params.drive.frequency, 9);
+    }
+  });
+
+  it('puts a refused length on its control with the bound in the shown unit', () => {
+    const form = new RigForm(templateCase());
+    form.group.controls.body.controls.length.setValue(-5);
+    const result = form.parse();
+    expect(result.ok).toBe(false);
+    expect(form.group.controls.body.controls.length.errors?.['case']).toBe('Must be more than 0 mm');
+    form.group.controls.body.controls.length.setValue(150);
+    expect(form.parse().ok).toBe(true);
+    expect(form.group.controls.body.controls.length.errors).toBeNull();
+  });
+
+  it('puts the connecting-rod check on the connecting rod, in words', () => {
+    const rig = DEMO_RIGS.find((r) => r.params.drive.waveform.kind === 'crank-slider');
+    if (!rig) throw new Error('a demo rig with a crank is expected');
+    const form = new RigForm(rig.params);
+    form.group.controls.drive.controls.connectingRod.setValue(15);
+    form.parse();
+    const message: unknown = form.group.controls.drive.controls.connectingRod.errors?.['case'];
+    expect(String(message)).toMatch(/longer than the crank radius/);
+  });
+
+  it('asks for a number in an emptied field, and for a whole number of output points', () => {
+    const form = new RigForm(templateCase());
+    form.group.controls.drive.controls.frequency.setValue(null);
+    form.group.controls.run.controls.outputPoints.setValue(12.5);
+    form.parse();
+    expect(form.group.controls.drive.controls.frequency.errors?.['case']).toBe('Enter a number');
+    expect(form.group.controls.run.controls.outputPoints.errors?.['case']).toBe('Must be a whole number');
+  });
+
+  it('writes upper bounds in the display unit', () => {
+    expect(readableIssue('Too big: expected number to be <=100000', 'frequency', { length: 'mm', frequency: 'rpm', angle: 'deg' })).toBe(
+      'Must be at most 6000000 rev/min',
+    );
+  });
+
+  it('builds a harmonics waveform from the harmonic rows', () => {
+    const form = new RigForm(templateCase());
+    form.group.controls.drive.controls.waveform.setValue('harmonics');
+    form.addHarmonic();
+    const harmonics = form.harmonics.controls;
+    harmonics[1].controls.phase.setValue(90);
+    const value = parsed(form);
+    if (value.drive.waveform.kind !== 'harmonics') throw new Error('harmonics expected');
+    expect(value.drive.waveform.terms).toHaveLength(2);
+    expect(value.drive.waveform.terms[1].order).toBe(2);
+    expect(value.drive.waveform.terms[1].phase).toBeCloseTo(Math.PI / 2, 12);
+  });
+});
