@@ -1,13 +1,12 @@
 /**
  * `npm test`: every check, in order, stopping at the first failure, with a summary at the end.
  * PostgreSQL (started here with fsync off if it was not running, and stopped again at the end), Debian chromium
- * for the browser tests, then: Node tests (Vitest projects shared, reference, server, api), Angular unit tests,
+ * for the browser tests, then (test databases are made fresh by the tests' own set-up): Node tests (Vitest projects shared, reference, server, api), Angular unit tests,
  * worker type check, client build, server build, browser tests.
  */
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import { checkoutPaths } from '../paths';
-import { prepareDatabase, recreateDatabase } from './db-tasks';
 import { ensurePostgres, stopPostgres, type PgCluster } from './pg';
 import { runCommand, summary, timed, type StepResult } from './steps';
 
@@ -36,10 +35,11 @@ async function main(): Promise<number> {
   const npx = (...args: string[]) => () => runCommand('npx', args, repoRoot);
   const steps: Array<[string, () => boolean | Promise<boolean>]> = [
     [
-      'PostgreSQL ready, quiverpoint_test recreated + migrated',
+      // quiverpoint_test is recreated and migrated by the API tests' global setup (under a lock, so two runs on one
+      // checkout cannot drop each other's database); quiverpoint_e2e by tests/e2e/support/server.ts.
+      'PostgreSQL ready',
       async () => {
         cluster = await ensurePostgres({ fsync: false, databases: ['quiverpoint_test', 'quiverpoint_e2e'] });
-        await prepareDatabase(await recreateDatabase(cluster.url, 'quiverpoint_test'), { seed: false });
         return true;
       },
     ],

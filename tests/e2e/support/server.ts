@@ -11,6 +11,7 @@ import { DEMO_ACCOUNTS, DEMO_LAB_NAME } from '../../../server/db/seed';
 import { checkoutPaths } from '../../../server/paths';
 import { prepareDatabase, recreateDatabase } from '../../../server/scripts/db-tasks';
 import { ensurePostgres, stopPostgres } from '../../../server/scripts/pg';
+import { holdRunLock } from '../../../server/scripts/run-lock';
 import { freePort, startServerProcess } from '../../../server/scripts/server-process';
 
 export { DEMO_ACCOUNTS, DEMO_LAB_NAME };
@@ -23,8 +24,8 @@ export interface E2eServer {
 }
 
 /**
- * `database` defaults to `quiverpoint_e2e`; test files that run in parallel must each pass their own name
- * (`quiverpoint_e2e_<something>`), because starting drops and recreates it.
+ * `database` defaults to `quiverpoint_e2e`; starting drops and recreates it, so another run (or a parallel test
+ * file) using the same name waits until this one calls stop(). Parallel files should pass their own names.
  */
 export async function startE2eServer(options: { database?: string } = {}): Promise<E2eServer> {
   const { repoRoot } = checkoutPaths();
@@ -32,31 +33,42 @@ export async function startE2eServer(options: { database?: string } = {}): Promi
     throw new Error('the web client is not built: run `npx ng build` first');
   }
   const cluster = await ensurePostgres({ fsync: false, databases: [], log: () => undefined });
-  const databaseUrl = await recreateDatabase(cluster.url, options.database ?? 'quiverpoint_e2e');
-  await prepareDatabase(databaseUrl, { seed: true });
-  const [port, smtpPort] = [await freePort(), await freePort()];
-  const server = await startServerProcess({
-    repoRoot,
-    mode: process.env['QP_E2E_SERVER'] === 'compiled' ? 'compiled' : 'tsx',
-    port,
-    env: {
-      ...process.env,
-      NODE_ENV: 'production',
-      DATABASE_URL: databaseUrl,
-      QP_MAIL_SINK: 'true',
-      QP_SMTP_PORT: String(smtpPort),
-      QP_PUBLIC_URL: `http://127.0.0.1:${port}`,
-      QP_SIGNIN_LIMIT: '1000',
-      LOG_LEVEL: process.env['LOG_LEVEL'] ?? 'warn',
-    },
-  });
-  return {
-    baseUrl: server.baseUrl,
-    databaseUrl,
-    smtpPort,
-    stop: async () => {
-      await server.stop();
-      if (cluster.startedNow) stopPostgres(() => undefined);
-    },
+  const database = options.database ?? 'quiverpoint_e2e';
+  const lock = await holdRunLock(cluster.url, database, (line) => console.log(`[e2e] ${line}`));
+  const release = async () => {
+    await lock.release();
+    if (cluster.startedNow) stopPostgres(() => undefined);
   };
+  try {
+    const databaseUrl = await recreateDatabase(cluster.url, database);
+    await prepareDatabase(databaseUrl, { seed: true });
+    const [port, smtpPort] = [await freePort(), await freePort()];
+    const server = await startServerProcess({
+      repoRoot,
+      mode: process.env['QP_E2E_SERVER'] === 'compiled' ? 'compiled' : 'tsx',
+      port,
+      env: {
+        ...process.env,
+        NODE_ENV: 'production',
+        DATABASE_URL: databaseUrl,
+        QP_MAIL_SINK: 'true',
+        QP_SMTP_PORT: String(smtpPort),
+        QP_PUBLIC_URL: `http://127.0.0.1:${port}`,
+        QP_SIGNIN_LIMIT: '1000',
+        LOG_LEVEL: process.env['LOG_LEVEL'] ?? 'warn',
+      },
+    });
+    return {
+      baseUrl: server.baseUrl,
+      databaseUrl,
+      smtpPort,
+      stop: async () => {
+        await server.stop();
+        await release();
+      },
+    };
+  } catch (err) {
+    await release();
+    throw err;
+  }
 }
