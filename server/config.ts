@@ -55,7 +55,13 @@ function checkoutJwtSecret(stateDir: string): string {
   if (existsSync(file)) return readFileSync(file, 'utf8').trim();
   mkdirSync(stateDir, { recursive: true, mode: 0o700 });
   const secret = randomBytes(48).toString('base64url');
-  writeFileSync(file, `${secret}\n`, { mode: 0o600, flag: 'wx' });
+  try {
+    writeFileSync(file, `${secret}\n`, { mode: 0o600, flag: 'wx' });
+  } catch (err) {
+    // Another process created it first: use theirs, so both sign and check with the same key.
+    if ((err as NodeJS.ErrnoException).code === 'EEXIST') return readFileSync(file, 'utf8').trim();
+    throw err;
+  }
   chmodSync(file, 0o600);
   return secret;
 }
