@@ -2,22 +2,23 @@
 // vitest.e2e.config.mts.
 import { defineConfig } from 'vitest/config';
 
-const notHere = { exclude: ['src/**', 'node_modules/**', 'dist/**'] };
+// src/** belongs to `ng test`; build output and dependencies hold no tests of ours.
+const elsewhere = { exclude: ['src/**', 'node_modules/**', 'dist/**'] };
 
 export default defineConfig({
   test: {
     projects: [
-      { test: { name: 'shared', environment: 'node', include: ['shared/**/*.spec.ts'], ...notHere } },
-      { test: { name: 'reference', environment: 'node', include: ['tests/reference/**/*.spec.ts'], ...notHere, testTimeout: 60_000 } },
-      { test: { name: 'server', environment: 'node', include: ['server/**/*.spec.ts'], ...notHere } },
+      { test: { name: 'shared', environment: 'node', include: ['shared/**/*.spec.ts'], ...elsewhere } },
+      { test: { name: 'reference', environment: 'node', include: ['tests/reference/**/*.spec.ts'], ...elsewhere, testTimeout: 60_000 } },
+      { test: { name: 'server', environment: 'node', include: ['server/**/*.spec.ts'], ...elsewhere } },
       {
         test: {
           name: 'api',
           environment: 'node',
           include: ['tests/api/**/*.spec.ts'],
-          ...notHere,
+          ...elsewhere,
           globalSetup: ['tests/api/global-setup.ts'],
-          // One shared database; files run one after another so row counts and rate limits stay predictable.
+          // One shared database and argon2 hashing on 2 cores: API files run one after another.
           fileParallelism: false,
           testTimeout: 20_000,
           hookTimeout: 60_000,
