@@ -187,8 +187,12 @@ export async function ensurePostgres(options: EnsureOptions = {}): Promise<PgClu
       asPostgres: true,
       allowFail: true,
     });
-    if (!res.ok) throw new Error(`PostgreSQL did not start (port ${port} in use? set QP_PG_PORT):\n${res.out}\n${tailLog(logFile)}`);
-    startedNow = true;
+    if (res.ok) startedNow = true;
+    else if (clusterRunning(bin, dataDir)) {
+      // Another process of this checkout started it at the same moment; use that one.
+      port = runningPort(dataDir) ?? port;
+      log(`cluster was started concurrently; using port ${port}`);
+    } else throw new Error(`PostgreSQL did not start (port ${port} in use? set QP_PG_PORT):\n${res.out}\n${tailLog(logFile)}`);
   }
 
   process.env['QP_PG_PORT'] = String(port);
