@@ -70,7 +70,7 @@ describe('signing in', () => {
     expect(await page.locator('.members-table mat-select').count()).toBe(0);
     await screenshot(page, 'lab-analyst-desktop');
 
-    await page.getByRole('link', { name: 'Home' }).click();
+    await page.getByRole('link', { name: 'Home', exact: true }).click();
     await page.getByRole('heading', { name: `Welcome, ${analyst.name}` }).waitFor();
     expect(await page.locator('.lab-name').textContent()).toContain(DEMO_LAB_NAME);
     await screenshot(page, 'home-desktop');
