@@ -1,3 +1,4 @@
+import { BreakpointObserver } from '@angular/cdk/layout';
 import { DatePipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, ErrorHandler, computed, inject, signal } from '@angular/core';
 import { rxResource, toObservable, toSignal } from '@angular/core/rxjs-interop';
@@ -16,7 +17,7 @@ import { MatSnackBar } from '@angular/material/snack-bar';
 import { MatSortModule, Sort } from '@angular/material/sort';
 import { MatTableModule } from '@angular/material/table';
 import { Router, RouterLink } from '@angular/router';
-import { debounceTime, distinctUntilChanged, of } from 'rxjs';
+import { debounceTime, distinctUntilChanged, map, of } from 'rxjs';
 
 import { describeError } from '../../core/error-message';
 import { Session } from '../../core/session';
@@ -82,13 +83,19 @@ export class LibraryPage {
   });
   protected readonly recheckStates = RECHECK_STATES.map((value) => ({ value, label: RECHECK_LABELS[value] }));
   protected readonly pageSizes = PAGE_SIZES;
+  /** Phones keep the columns that decide what to open; tags, author and date need the width of a larger screen. */
+  private readonly narrow = toSignal(
+    inject(BreakpointObserver)
+      .observe('(max-width: 599.98px)')
+      .pipe(map((state) => state.matches)),
+    { initialValue: false },
+  );
   protected readonly columns = computed(() => [
     'title',
-    'tags',
+    ...(this.narrow() ? [] : ['tags']),
     'revision',
     'recheck',
-    'author',
-    'updated',
+    ...(this.narrow() ? [] : ['author', 'updated']),
     ...(this.canEdit() ? ['actions'] : []),
   ]);
 

@@ -1,0 +1,247 @@
+/**
+ * The case library in a real browser: an analyst edits a stored case, saves r2 with a run and asks for a recheck; the
+ * reviewer reruns it in their browser and confirms; both notices reach the local mail sink; a visitor opens a case
+ * link read-only, reruns it and cannot save; a revoked link says so. Screenshots at desktop and phone sizes.
+ */
+import { Client } from 'pg';
+import type { Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+
+import { demoRigCase } from '../../shared/case/templates';
+import { mkdirSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+
+import { DESKTOP, NARROW, launchBrowser, type TestBrowser } from './support/browser';
+import { DEMO_ACCOUNTS, DEMO_LAB_NAME, startE2eServer, type E2eServer } from './support/server';
+
+const CASE_TITLE = 'Tall rod on the long-stroke shaker';
+
+function account(role: string): { email: string; name: string; password: string } {
+  const found = DEMO_ACCOUNTS.find((a) => a.role === role);
+  if (!found) throw new Error(`no demo ${role}`);
+  return found;
+}
+
+/** This file's screenshots, in their own folder so other browser tests running alongside leave them alone. */
+const SHOTS = process.env['QP_E2E_SHOTS'] ?? resolve(__dirname, '..', '..', 'test-results', 'library');
+
+async function screenshot(page: Page, name: string): Promise<void> {
+  mkdirSync(SHOTS, { recursive: true });
+  await page.screenshot({ path: join(SHOTS, `${name}.png`), fullPage: true });
+}
+
+let server: E2eServer;
+let browser: TestBrowser;
+let caseId = '';
+let visitorUrl = '';
+
+async function api<T>(path: string, init: { token?: string; method?: string; body?: unknown } = {}): Promise<{ status: number; body: T }> {
+  const response = await fetch(`${server.baseUrl}${path}`, {
+    method: init.method ?? (init.body === undefined ? 'GET' : 'POST'),
+    headers: {
+      ...(init.body === undefined ? {} : { 'Content-Type': 'application/json' }),
+      ...(init.token ? { Authorization: `Bearer ${init.token}` } : {}),
+    },
+    body: init.body === undefined ? undefined : JSON.stringify(init.body),
+  });
+  const text = await response.text();
+  return { status: response.status, body: (text ? JSON.parse(text) : null) as T };
+}
+
+async function tokenOf(role: string): Promise<string> {
+  const { email, password } = account(role);
+  const { body } = await api<{ token: string }>('/api/auth/sign-in', { body: { email, password } });
+  return body.token;
+}
+
+async function signIn(page: Page, role: string, returnUrl: string): Promise<void> {
+  const { email, password } = account(role);
+  await page.goto(`${server.baseUrl}/sign-in?returnUrl=${encodeURIComponent(returnUrl)}`);
+  await page.getByLabel('Email').fill(email);
+  await page.getByLabel('Password', { exact: true }).fill(password);
+  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+  await page.waitForURL((url) => url.pathname === returnUrl.split('?')[0]);
+}
+
+async function openTab(page: Page, label: string): Promise<void> {
+  await page.getByRole('tab', { name: label, exact: true }).click();
+  await page.waitForURL((url) => url.pathname.endsWith(`/${label.toLowerCase()}`));
+}
+
+async function noSideScroll(page: Page): Promise<void> {
+  const overflow = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
+  expect(overflow).toBeLessThanOrEqual(1);
+}
+
+beforeAll(async () => {
+  server = await startE2eServer({ database: 'quiverpoint_e2e_library' });
+  browser = await launchBrowser();
+  // The seed has no site admin; the lab owner doubles as one here so the mail sink can be read.
+  const db = new Client({ connectionString: server.databaseUrl });
+  await db.connect();
+  await db.query('UPDATE users SET is_site_admin = true WHERE email = $1', [account('owner').email]);
+  await db.end();
+
+  // The stored case the analyst starts from: a demo rig, kept short so reruns take a few seconds.
+  const analyst = await tokenOf('analyst');
+  const { body: me } = await api<{ memberships: { labId: string; labName: string }[] }>('/api/me', { token: analyst });
+  const labId = me.memberships.find((m) => m.labName === DEMO_LAB_NAME)?.labId;
+  const params = demoRigCase('shaker-tall-rod');
+  if (!labId || !params) throw new Error('demo lab or rig missing');
+  params.run.duration = 3;
+  const created = await api<{ id: string }>(`/api/labs/${labId}/cases`, {
+    token: analyst,
+    body: { title: CASE_TITLE, tags: ['shaker', 'upright'], params, note: 'from the demo rig, 3 s run' },
+  });
+  expect(created.status).toBe(201);
+  caseId = created.body.id;
+}, 300_000);
+
+afterAll(async () => {
+  await browser?.close();
+  await server?.stop();
+});
+
+describe('case library', () => {
+  it('lets an analyst change a stored case, save r2 with a run and ask for a recheck', async () => {
+    const page = await browser.newPage(DESKTOP);
+    await signIn(page, 'analyst', '/library');
+    const row = page.getByRole('link', { name: CASE_TITLE });
+    await row.waitFor();
+    await expect.poll(() => page.locator('qp-recheck-chip').first().textContent()).toContain('Draft');
+    await screenshot(page, 'library-desktop');
+
+    await row.click();
+    await page.waitForURL(new RegExp(`/cases/${caseId}/r/1/rig$`));
+    const amplitude = page.locator('input[data-field="drive.amplitude"]');
+    await expect.poll(() => amplitude.inputValue()).toBe('8');
+    await amplitude.fill('9');
+    await openTab(page, 'Motion');
+    await page.getByTestId('run-motion').click();
+    await expect.poll(() => page.getByTestId('outcome').textContent(), { timeout: 60_000 }).toBe('holds upright');
+    await page.getByRole('button', { name: 'Save' }).click();
+    await page.waitForURL(new RegExp(`/cases/${caseId}/r/2/motion$`));
+
+    await openTab(page, 'History');
+    const changed = page.locator('.diff-table tr.changed');
+    await expect.poll(() => changed.count()).toBe(1);
+    expect(await changed.locator('.path').textContent()).toContain('drive.amplitude');
+    expect((await changed.locator('.left').textContent())?.trim()).toBe('8');
+    expect((await changed.locator('.right').textContent())?.trim()).toBe('9');
+    await expect.poll(() => page.locator('qp-stored-runs-table .kind').allTextContents()).toEqual(['motion']);
+
+    await page.getByRole('button', { name: 'Ask for a recheck' }).click();
+    await page.getByRole('combobox', { name: 'Reviewer' }).click();
+    await page.getByRole('option', { name: /Rui Reviewer/ }).click();
+    await page.getByLabel('Message (optional)').fill('Amplitude raised to 9 mm; please confirm it still holds.');
+    await page.getByRole('button', { name: 'Send request' }).click();
+    await expect.poll(() => page.locator('.card-head qp-recheck-chip').first().textContent()).toContain('Awaiting recheck');
+    await screenshot(page, 'history-desktop');
+  }, 180_000);
+
+  it('lets the reviewer rerun r2 in the browser, see the same numbers and confirm', async () => {
+    const page = await browser.newPage(DESKTOP);
+    await signIn(page, 'reviewer', `/cases/${caseId}/r/2/recheck`);
+    await page.getByText('Amplitude raised to 9 mm').waitFor();
+    await page.locator('.rerun-button').click();
+    await expect.poll(() => page.locator('.run-state').allTextContents().then((t) => t.map((s) => s.trim())), { timeout: 90_000 }).toEqual(['same numbers, same digest']);
+    await page.locator('.run-panel').first().click();
+    await expect.poll(() => page.locator('qp-comparison-table tr.mismatch').count()).toBe(0);
+    expect(await page.locator('qp-comparison-table tbody tr').count()).toBeGreaterThan(5);
+    await page.getByLabel('Comment').fill('Reran motion here: identical digest.');
+    await screenshot(page, 'recheck-desktop');
+    await page.getByRole('button', { name: 'Confirm' }).click();
+    await page.waitForURL(new RegExp(`/cases/${caseId}/r/2/history$`));
+    await expect.poll(() => page.locator('.card-head qp-recheck-chip').first().textContent()).toContain('Confirmed');
+  }, 180_000);
+
+  it('delivered both notices to the local mail sink', async () => {
+    const owner = await tokenOf('owner');
+    const reviewer = account('reviewer').email;
+    const analyst = account('analyst').email;
+    type Mail = { to: string[] | string; subject: string };
+    const received = async () => {
+      const { body } = await api<{ items: Mail[] } | Mail[]>('/api/admin/mails', { token: owner });
+      const mails = Array.isArray(body) ? body : body.items;
+      return mails.map((m) => `${Array.isArray(m.to) ? m.to.join(',') : m.to} | ${m.subject}`);
+    };
+    await expect
+      .poll(received, { timeout: 30_000, interval: 1000 })
+      .toEqual(
+        expect.arrayContaining([
+          `${reviewer} | Recheck requested: ${CASE_TITLE} r2`,
+          `${analyst} | Recheck confirmed: ${CASE_TITLE} r2`,
+        ]),
+      );
+
+    const page = await browser.newPage(DESKTOP);
+    await signIn(page, 'owner', '/admin/mail');
+    await expect.poll(() => page.locator('.mail').count(), { timeout: 20_000 }).toBeGreaterThanOrEqual(2);
+    await screenshot(page, 'admin-mail-desktop');
+  }, 60_000);
+
+  it('shows a visitor the case read-only through a case link, with reruns but no way to save', async () => {
+    const analystPage = await browser.newPage(DESKTOP);
+    await signIn(analystPage, 'analyst', `/cases/${caseId}/r/2/history`);
+    await analystPage.getByRole('button', { name: 'Case links' }).click();
+    await analystPage.getByLabel('Expires after').fill('7');
+    await analystPage.getByRole('button', { name: /Create link to r2/ }).click();
+    visitorUrl = ((await analystPage.locator('.created .url').textContent()) ?? '').trim();
+    expect(visitorUrl).toMatch(/\/links\/[A-Za-z0-9_-]{20,}$/);
+
+    const visitor = await browser.newPage(DESKTOP);
+    await visitor.goto(visitorUrl);
+    await visitor.getByRole('heading', { name: `${CASE_TITLE} · r2` }).waitFor();
+    expect(await visitor.getByText(`Shared by ${DEMO_LAB_NAME}`).count()).toBe(1);
+    expect(await visitor.getByRole('button', { name: 'Save' }).count()).toBe(0);
+    expect(await visitor.locator('qp-stored-runs-table .kind').allTextContents()).toEqual(['motion']);
+    await visitor.locator('.rerun-button').click();
+    await expect.poll(() => visitor.locator('.run-state').allTextContents().then((t) => t.map((s) => s.trim())), { timeout: 90_000 }).toEqual(['same numbers, same digest']);
+    await screenshot(visitor, 'visitor-desktop');
+
+    // Nothing the visitor holds lets them write: the token is no credential for the API.
+    const token = visitorUrl.split('/links/')[1];
+    const write = await api(`/api/cases/${caseId}/revisions`, { token, body: { baseRevision: 2, params: demoRigCase('shaker-tall-rod') } });
+    expect(write.status).toBe(401);
+  }, 180_000);
+
+  it('fits phone screens: library, history, recheck and visitor pages', async () => {
+    const analyst = await browser.newPage(NARROW);
+    await signIn(analyst, 'analyst', '/library');
+    await analyst.getByRole('link', { name: CASE_TITLE }).waitFor();
+    await screenshot(analyst, 'library-phone');
+    await noSideScroll(analyst);
+    await analyst.goto(`${server.baseUrl}/cases/${caseId}/r/2/history`);
+    await analyst.locator('.diff-table tr.changed').first().waitFor();
+    await screenshot(analyst, 'history-phone');
+    await noSideScroll(analyst);
+
+    const reviewer = await browser.newPage(NARROW);
+    await signIn(reviewer, 'reviewer', `/cases/${caseId}/r/2/recheck`);
+    await reviewer.locator('.rerun-button').click();
+    await expect.poll(() => reviewer.locator('.run-state').allTextContents().then((t) => t.map((s) => s.trim())), { timeout: 90_000 }).toEqual(['same numbers, same digest']);
+    await screenshot(reviewer, 'recheck-phone');
+    await noSideScroll(reviewer);
+
+    const visitor = await browser.newPage(NARROW);
+    await visitor.goto(visitorUrl);
+    await visitor.getByRole('heading', { name: `${CASE_TITLE} · r2` }).waitFor();
+    await screenshot(visitor, 'visitor-phone');
+    await noSideScroll(visitor);
+  }, 240_000);
+
+  it('tells a visitor when a link was revoked, and when it never existed', async () => {
+    const analyst = await tokenOf('analyst');
+    const { body } = await api<{ items: { id: string; state: string }[] }>(`/api/cases/${caseId}/links`, { token: analyst });
+    const active = body.items.find((l) => l.state === 'active');
+    if (!active) throw new Error('no active link');
+    expect((await api(`/api/cases/${caseId}/links/${active.id}`, { token: analyst, method: 'DELETE' })).status).toBeLessThan(300);
+
+    const visitor = await browser.newPage(DESKTOP);
+    await visitor.goto(visitorUrl);
+    await visitor.getByText('This case link has expired or was revoked.').waitFor();
+    await screenshot(visitor, 'visitor-revoked-desktop');
+    await visitor.goto(`${server.baseUrl}/links/not-a-real-token-at-all-0123456789`);
+    await visitor.getByText('This case link does not exist.').waitFor();
+  }, 60_000);
+});
