@@ -11,7 +11,7 @@ const as = (who: keyof LabFixture['tokens']) => client(api.app, fx.tokens[who]);
 
 beforeAll(async () => {
   api = startApi();
-  fx = await labWithEveryRole(api.app, 'bench');
+  fx = await labWithEveryRole(api, 'bench');
   caseId = await createCaseVia(api.app, fx.tokens.analyst, fx.lab.id, { title: 'Bench case' });
 });
 afterAll(() => api.close());

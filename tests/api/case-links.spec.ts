@@ -15,7 +15,7 @@ const as = (who: keyof LabFixture['tokens']) => client(api.app, fx.tokens[who]);
 
 beforeAll(async () => {
   api = startApi();
-  fx = await labWithEveryRole(api.app, 'links');
+  fx = await labWithEveryRole(api, 'links');
   caseId = await createCaseVia(api.app, fx.tokens.analyst, fx.lab.id, { title: 'Shared rig', params: p1 });
   await as('analyst').post(`/api/cases/${caseId}/revisions/1/runs`, motionRun(p1));
   await as('reviewer').post(`/api/cases/${caseId}/revisions/1/comments`, { body: 'internal remark' });

@@ -134,7 +134,7 @@ function send(token: string | undefined, call: Call) {
 
 beforeAll(async () => {
   api = startApi();
-  fx = await labWithEveryRole(api.app, 'matrix');
+  fx = await labWithEveryRole(api, 'matrix');
   caseId = await createCaseVia(api.app, fx.tokens.owner, fx.lab.id, { title: 'Matrix case', params });
   const run = await client(api.app, fx.tokens.owner).post(`/api/cases/${caseId}/revisions/1/runs`, motionRun(params));
   runId = run.body.id;

@@ -10,7 +10,7 @@ const as = (who: keyof LabFixture['tokens']) => client(api.app, fx.tokens[who]);
 
 beforeAll(async () => {
   api = startApi();
-  fx = await labWithEveryRole(api.app, 'cases');
+  fx = await labWithEveryRole(api, 'cases');
 });
 afterAll(() => api.close());
 
@@ -76,7 +76,7 @@ describe('creating and reading cases', () => {
 describe('listing cases', () => {
   let lab: LabFixture;
   beforeAll(async () => {
-    lab = await labWithEveryRole(api.app, 'list');
+    lab = await labWithEveryRole(api, 'list');
     const titles = ['Alpha shaker', 'Bravo crank', 'Charlie arm', 'Delta shaker', 'Echo crank'];
     for (const [i, title] of titles.entries()) {
       const who = i % 2 === 0 ? 'analyst' : 'owner';

@@ -7,7 +7,8 @@ import request from 'supertest';
 import { templateCase, type CaseParams } from '../../shared/case';
 import { computeRun, makeRunRecord, type RunRecord } from '../../shared/engine/run-record';
 import type { Lab, LabRole, User } from '../../server/db/models';
-import { createLab, createUser, tokenFor } from './support';
+import { issueToken } from '../../server/services/auth-service';
+import { createLab, createUser, type TestApi } from './support';
 
 export const ROLES: LabRole[] = ['owner', 'analyst', 'reviewer', 'viewer'];
 export type Who = LabRole | 'outsider';
@@ -18,12 +19,13 @@ export interface LabFixture {
   tokens: Record<Who, string>;
 }
 
-export async function labWithEveryRole(app: Express, label: string): Promise<LabFixture> {
+/** Tokens come from the server's own issueToken (the sign-in route is tested in auth.spec.ts; argon2 is slow). */
+export async function labWithEveryRole(api: TestApi, label: string): Promise<LabFixture> {
   const people = {} as Record<Who, User>;
   const tokens = {} as Record<Who, string>;
   for (const who of [...ROLES, 'outsider'] as const) people[who] = await createUser(`${label}-${who}`);
   const lab = await createLab(ROLES.map((role) => [people[role], role]));
-  for (const who of [...ROLES, 'outsider'] as const) tokens[who] = await tokenFor(app, people[who]);
+  for (const who of [...ROLES, 'outsider'] as const) tokens[who] = issueToken(people[who], api.config).token;
   return { lab, people, tokens };
 }
 

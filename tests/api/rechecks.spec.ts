@@ -14,7 +14,7 @@ const as = (who: keyof LabFixture['tokens']) => client(api.app, fx.tokens[who]);
 
 beforeAll(async () => {
   api = startApi();
-  fx = await labWithEveryRole(api.app, 'recheck');
+  fx = await labWithEveryRole(api, 'recheck');
 });
 afterAll(() => api.close());
 
