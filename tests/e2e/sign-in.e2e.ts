@@ -114,6 +114,10 @@ describe('signing in', () => {
     await page.locator('form[aria-label="Add a member"]').waitFor();
     expect(await page.locator('.members-table mat-select').count()).toBe(DEMO_ACCOUNTS.length);
     await screenshot(page, 'lab-owner-desktop');
+    // The theme follows the system colour scheme; keep the dark variant in view too.
+    await page.emulateMedia({ colorScheme: 'dark' });
+    await screenshot(page, 'lab-owner-desktop-dark');
+    await page.emulateMedia({ colorScheme: 'light' });
 
     await page.getByRole('button', { name: `Account: ${owner.name}` }).click();
     await page.getByRole('menuitem', { name: 'Sign out' }).click();
