@@ -20,7 +20,8 @@ export interface CaseLinksData {
   readonly caseTitle: string;
 }
 
-export const MAX_LINK_DAYS = 90;
+/** The server's limit. */
+export const MAX_LINK_DAYS = 365;
 
 /** The visitor URL of a token, on this site. */
 export function visitorUrl(token: string, origin = globalThis.location?.origin ?? ''): string {
