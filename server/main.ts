@@ -22,14 +22,14 @@ async function main(): Promise<void> {
   }
   const app = createApp({ config: cfg, sequelize, logger });
   const outbox = startOutboxSender({ sequelize, sendMail: createMailer(cfg), logger });
-  const server = app.listen(cfg.port, cfg.host, () => {
+  const server = app.listen(cfg.port, cfg.host, (err?: Error) => {
+    if (err) {
+      logger.fatal({ err }, `cannot listen on ${cfg.host}:${cfg.port}`);
+      process.exit(1);
+    }
     const address = server.address();
     const port = typeof address === 'object' && address ? address.port : cfg.port;
     logger.info({ url: `http://${cfg.host}:${port}/`, env: cfg.env }, 'listening');
-  });
-  server.on('error', (err) => {
-    logger.fatal({ err }, 'server failed');
-    process.exit(1);
   });
   let closing = false;
   const shutdown = (signal: string) => {

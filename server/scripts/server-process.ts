@@ -80,8 +80,9 @@ export async function startServerProcess(options: StartOptions): Promise<ServerP
   for (;;) {
     if (child.exitCode !== null) throw new Error(`the server exited with code ${child.exitCode} while starting:\n${output}`);
     try {
-      const res = await fetch(`${baseUrl}/api/health`);
-      if (res.ok) break;
+      const res = await fetch(`${baseUrl}/api/health`, { signal: AbortSignal.timeout(2_000) });
+      // A healthy answer counts only while our child lives: another program may hold the port.
+      if (res.ok && child.exitCode === null) break;
     } catch {
       // not listening yet
     }

@@ -30,33 +30,42 @@ async function main(): Promise<void> {
   process.on('SIGINT', () => void stopAll(0));
   process.on('SIGTERM', () => void stopAll(0));
 
-  const { migrations, seeded } = await prepareDatabase(cluster.url, { seed: true });
-  console.log(`[db] ${migrations.length ? `applied ${migrations.join(', ')}` : 'schema up to date'}; ${seeded ? `seeded ${seeded} rows` : 'demo data present'}`);
-
-  if (!process.env['QP_SKIP_BUILD']) {
-    console.log('[build] client (npx ng build)');
-    if (!runCommand('npx', ['ng', 'build'], repoRoot)) throw new Error('ng build failed');
-    console.log('[build] server (tsc -p server/tsconfig.json)');
-    if (!runCommand('npx', ['tsc', '-p', 'server/tsconfig.json'], repoRoot)) throw new Error('server build failed');
+  try {
+    await prepareAndServe();
+  } catch (err) {
+    console.error(err instanceof Error ? err.message : err);
+    await stopAll(1);
   }
 
-  server = await startServerProcess({
-    repoRoot,
-    mode: 'compiled',
-    port: cfg.port,
-    inheritOutput: true,
-    env: { ...process.env, NODE_ENV: 'production', DATABASE_URL: cluster.url, QP_MAIL_SINK: 'true' },
-  });
-  server.child.once('exit', (code) => {
-    if (!stopping) {
-      console.error(`the server stopped unexpectedly (exit ${code})`);
-      void stopAll(1);
+  async function prepareAndServe(): Promise<void> {
+    const { migrations, seeded } = await prepareDatabase(cluster.url, { seed: true });
+    console.log(`[db] ${migrations.length ? `applied ${migrations.join(', ')}` : 'schema up to date'}; ${seeded ? `seeded ${seeded} rows` : 'demo data present'}`);
+
+    if (!process.env['QP_SKIP_BUILD']) {
+      console.log('[build] client (npx ng build)');
+      if (!runCommand('npx', ['ng', 'build'], repoRoot)) throw new Error('ng build failed');
+      console.log('[build] server (tsc -p server/tsconfig.json)');
+      if (!runCommand('npx', ['tsc', '-p', 'server/tsconfig.json'], repoRoot)) throw new Error('server build failed');
     }
-  });
-  console.log(`\nQuiverpoint is running at http://localhost:${cfg.port}/  (Ctrl-C to stop)`);
-  console.log(`local mail sink: smtp://127.0.0.1:${cfg.smtpPort} (mails stored in the sink_mails table)`);
-  console.log('demo accounts (local only):');
-  for (const a of DEMO_ACCOUNTS) console.log(`  ${a.role.padEnd(8)} ${a.email.padEnd(28)} ${a.password}`);
+
+    server = await startServerProcess({
+      repoRoot,
+      mode: 'compiled',
+      port: cfg.port,
+      inheritOutput: true,
+      env: { ...process.env, NODE_ENV: 'production', DATABASE_URL: cluster.url, QP_MAIL_SINK: 'true' },
+    });
+    server.child.once('exit', (code) => {
+      if (!stopping) {
+        console.error(`the server stopped unexpectedly (exit ${code})`);
+        void stopAll(1);
+      }
+    });
+    console.log(`\nQuiverpoint is running at http://localhost:${cfg.port}/  (Ctrl-C to stop)`);
+    console.log(`local mail sink: smtp://127.0.0.1:${cfg.smtpPort} (mails stored in the sink_mails table)`);
+    console.log('demo accounts (local only):');
+    for (const a of DEMO_ACCOUNTS) console.log(`  ${a.role.padEnd(8)} ${a.email.padEnd(28)} ${a.password}`);
+  }
 }
 
 main().catch((err: unknown) => {
