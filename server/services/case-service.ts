@@ -5,7 +5,7 @@
  * number in one transaction; a concurrent save waits for the lock, then finds the number moved and gets 409 with
  * nothing written. The unique (case_id, number) index backs this up.
  */
-import { Op, UniqueConstraintError, type Sequelize, type Transaction, type WhereOptions } from 'sequelize';
+import { Op, UniqueConstraintError, col, fn, where, type Sequelize, type Transaction, type WhereOptions } from 'sequelize';
 import { caseDigest, canonicalJson, parseCase, type CaseParams } from '../../shared/case';
 import { AppError } from '../app-error';
 import {
@@ -198,14 +198,7 @@ export async function listCases(labId: string, q: CaseQuery): Promise<Paged<Case
   const and: WhereOptions[] = [{ labId }, { archived: q.archived }];
   if (q.search) {
     const pattern = likePattern(q.search);
-    const sequelize = CaseRecord.sequelize;
-    if (!sequelize) throw new Error('models are not bound');
-    and.push({
-      [Op.or]: [
-        { title: { [Op.iLike]: pattern } },
-        sequelize.where(sequelize.fn('array_to_string', sequelize.col('tags'), ' '), { [Op.iLike]: pattern }),
-      ],
-    });
+    and.push({ [Op.or]: [{ title: { [Op.iLike]: pattern } }, where(fn('array_to_string', col('tags'), ' '), { [Op.iLike]: pattern })] });
   }
   if (q.tag) and.push({ tags: { [Op.contains]: [q.tag] } });
   if (q.author) and.push({ authorId: q.author });
