@@ -1,0 +1,30 @@
+import { HttpErrorResponse } from '@angular/common/http';
+
+import { apiErrorOf, describeError } from './error-message';
+
+describe('describeError', () => {
+  it("passes on the server's own message and field", () => {
+    const error = new HttpErrorResponse({
+      status: 409,
+      error: { error: { code: 'already_member', message: 'x@example.org is already a member.', field: 'email' } },
+    });
+    expect(describeError(error)).toBe('x@example.org is already a member.');
+    expect(apiErrorOf(error)).toEqual({ code: 'already_member', message: 'x@example.org is already a member.', field: 'email' });
+  });
+
+  it('explains an unreachable server in plain words', () => {
+    expect(describeError(new HttpErrorResponse({ status: 0 }))).toContain('cannot reach its server');
+  });
+
+  it('says what a refused role means when the server gives no message', () => {
+    expect(describeError(new HttpErrorResponse({ status: 403, error: 'Forbidden' }))).toBe(
+      'Your role in this lab does not allow that.',
+    );
+  });
+
+  it('never shows a programming error to the user', () => {
+    expect(describeError(new TypeError("Cannot read properties of undefined (reading 'x')"))).toBe(
+      'Something went wrong on this page. Reload it and try again.',
+    );
+  });
+});
