@@ -13,6 +13,13 @@ describe('flattenParams', () => {
     expect(byPath.get('start.angle')?.unit).toBe('°');
   });
 
+  it('puts rows in the form order whatever order the stored keys come back in', () => {
+    const stored = JSON.parse('{"run":{"atol":1e-10,"duration":3},"body":{"mass":0.1,"kind":"point-mass","length":0.2},"schemaVersion":1}');
+    expect(flattenParams(stored).map((r) => r.path)).toEqual([
+      'schemaVersion', 'body.kind', 'body.length', 'body.mass', 'run.duration', 'run.atol',
+    ]);
+  });
+
   it('indexes array entries such as harmonic terms', () => {
     const params = {
       drive: { waveform: { kind: 'harmonics', terms: [{ order: 1, relAmplitude: 1, phase: 0 }, { order: 3, relAmplitude: 0.2, phase: Math.PI }] } },

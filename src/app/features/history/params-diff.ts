@@ -43,6 +43,28 @@ const UNITS: Readonly<Record<string, DisplayUnit>> = {
   'run.outputPoints': { unit: 'points', scale: 1 },
 };
 
+/** Display order of keys per object path, as the Rig form reads; keys not listed follow in their stored order. */
+const KEY_ORDER: Readonly<Record<string, readonly string[]>> = {
+  '': ['schemaVersion', 'body', 'drive', 'damping', 'start', 'gravity', 'run'],
+  body: ['kind', 'length', 'mass', 'rodLength', 'rodMass', 'bobMass', 'bobRadius', 'bobDistance', 'swingFrequency'],
+  drive: ['direction', 'amplitude', 'frequency', 'waveform', 'ramp'],
+  'drive.waveform': ['kind', 'connectingRod', 'terms'],
+  'drive.ramp': ['fromFrequency', 'duration'],
+  damping: ['viscousRatio', 'quadratic', 'friction', 'frictionSmoothing'],
+  start: ['angle', 'rate'],
+  run: ['duration', 'rtol', 'atol', 'outputPoints', 'strobePhase', 'transientFraction'],
+};
+
+/** Stored JSON (PostgreSQL's JSONB) does not keep key order, so rows are put in the form's order. */
+function ordered(prefix: string, entries: [string, unknown][]): [string, unknown][] {
+  const order = KEY_ORDER[prefix.replace(/\.\d+(?=\.|$)/g, '')] ?? [];
+  const rank = (key: string) => {
+    const i = order.indexOf(key);
+    return i === -1 ? order.length : i;
+  };
+  return [...entries].sort((a, b) => rank(a[0]) - rank(b[0]));
+}
+
 export interface FlatParam {
   readonly path: string;
   /** Shown value in the display unit, or the text of a non-numeric value. */
@@ -83,7 +105,7 @@ export function flattenParams(params: unknown, prefix = ''): FlatParam[] {
   }
   const entries: [string, unknown][] = Array.isArray(params)
     ? params.map((v, i) => [String(i), v])
-    : Object.entries(params);
+    : ordered(prefix, Object.entries(params));
   return entries.flatMap(([key, value]) => flattenParams(value, prefix ? `${prefix}.${key}` : key));
 }
 

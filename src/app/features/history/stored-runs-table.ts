@@ -17,7 +17,7 @@ export function headlineNumbers(summary: RunView['summary']): string {
     .slice(0, HEADLINE_COUNT)
     .map((key) => {
       const value = summary[key];
-      return `${key} ${typeof value === 'number' ? formatNumber(value) : String(value)}`;
+      return `${key} ${typeof value === 'number' ? formatNumber(value) : value === null ? '—' : String(value)}`;
     })
     .join(' · ');
 }

@@ -79,7 +79,6 @@ describe('LibraryPage', () => {
   afterEach(() => {
     backend.verify();
     localStorage.clear();
-    vi.useRealTimers();
   });
 
   it('asks the server for the first page, newest first, and shows the rows', async () => {
@@ -161,20 +160,19 @@ describe('LibraryPage', () => {
   it('waits for the typing to pause before searching', async () => {
     (await open('analyst')).flush(casePage(1, ['A']));
     await settle();
-    vi.useFakeTimers({ toFake: ['setTimeout', 'clearTimeout', 'setInterval', 'clearInterval'] });
     const input = host.querySelector<HTMLInputElement>('input[type="search"]');
     if (!input) throw new Error('no search box');
     for (const text of ['t', 'ta', 'tal']) {
       input.value = text;
       input.dispatchEvent(new Event('input'));
-      fixture.detectChanges();
-      vi.advanceTimersByTime(SEARCH_DEBOUNCE_MS / 3);
+      TestBed.tick();
     }
     backend.expectNone((r) => r.url === '/api/labs/lab-1/cases');
-    vi.advanceTimersByTime(SEARCH_DEBOUNCE_MS);
-    fixture.detectChanges();
+    await new Promise((resolve) => setTimeout(resolve, SEARCH_DEBOUNCE_MS + 100));
+    TestBed.tick();
     const searched = casesRequest();
     expect(searched.request.params.get('search')).toBe('tal');
+    expect(searched.request.params.get('page')).toBe('1');
     searched.flush(casePage(1, ['Tall rod']));
   });
 });

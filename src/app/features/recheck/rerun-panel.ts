@@ -51,7 +51,7 @@ interface RerunRow {
       @for (row of rows(); track row.run.id) {
         <mat-expansion-panel [expanded]="row.comparison !== null && !row.comparison.match" class="run-panel">
           <mat-expansion-panel-header>
-            <mat-panel-title class="run-title">{{ row.run.kind }} run</mat-panel-title>
+            <mat-panel-title class="run-title">{{ runLabel(row.run.kind) }}</mat-panel-title>
             <mat-panel-description class="run-state" [class]="'state-' + verdictClass(row)">
               {{ verdictText(row) }}
             </mat-panel-description>
@@ -79,7 +79,7 @@ interface RerunRow {
     :host { display: flex; flex-direction: column; gap: 12px; }
     .bar { display: flex; flex-wrap: wrap; align-items: center; gap: 12px; }
     .engine { color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-body-small); }
-    .run-title { text-transform: capitalize; font-weight: 500; }
+    .run-title { font-weight: 500; }
     .run-state { justify-content: flex-end; }
     .state-match { color: var(--mat-sys-primary); }
     .state-mismatch, .state-failed { color: var(--mat-sys-error); }
@@ -111,6 +111,10 @@ export class RerunPanel {
 
   constructor() {
     inject(DestroyRef).onDestroy(() => this.subscription?.unsubscribe());
+  }
+
+  protected runLabel(kind: string): string {
+    return `${kind.charAt(0).toUpperCase()}${kind.slice(1)} run`;
   }
 
   protected verdictClass(row: RerunRow): string {

@@ -1,0 +1,93 @@
+import { provideHttpClient } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { signal } from '@angular/core';
+import { ComponentFixture, TestBed } from '@angular/core/testing';
+import { provideRouter } from '@angular/router';
+
+import { templateCase } from '../../../../shared/case';
+import { CaseWorkspace } from '../case/case-workspace';
+import { HistoryTab } from './history-tab';
+
+const R1 = templateCase();
+const R2 = { ...R1, drive: { ...R1.drive, amplitude: 0.012 }, damping: { ...R1.damping, viscousRatio: 0.02 } };
+
+function revision(number: number, params: object): object {
+  return {
+    caseId: 'c1', caseTitle: 'Teaching rod', number, params, schemaVersion: 1, paramsDigest: `${number}`.repeat(64), note: `note ${number}`,
+    author: { id: 'u2', name: 'Ada Analyst' }, createdAt: '2026-11-30T10:00:00.000Z', recheckState: 'draft', recheckRequest: null,
+    runs: [], rechecks: [],
+  };
+}
+
+describe('HistoryTab', () => {
+  let fixture: ComponentFixture<HistoryTab>;
+  let backend: HttpTestingController;
+  let host: HTMLElement;
+
+  async function open(role: string): Promise<void> {
+    TestBed.configureTestingModule({
+      imports: [HistoryTab],
+      providers: [
+        provideRouter([]),
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        // Only the opened revision matters to this tab; the workspace's engine and forms stay out of the test.
+        { provide: CaseWorkspace, useValue: { opened: signal({ caseId: 'c1', revision: 2 }), title: signal('Teaching rod') } },
+      ],
+    });
+    backend = TestBed.inject(HttpTestingController);
+    fixture = TestBed.createComponent(HistoryTab);
+    host = fixture.nativeElement as HTMLElement;
+    fixture.detectChanges();
+    backend.expectOne('/api/cases/c1').flush({
+      id: 'c1', title: 'Teaching rod', tags: [], lab: { id: 'lab-1', name: 'Shaker Lab' }, archived: false, latestRevision: 2, myRole: role,
+      revisions: [
+        { number: 1, paramsDigest: '1'.repeat(64), note: 'first', author: { id: 'u2', name: 'Ada Analyst' }, createdAt: '2026-11-29T10:00:00.000Z', recheckState: 'confirmed' },
+        { number: 2, paramsDigest: '2'.repeat(64), note: 'stronger drive', author: { id: 'u2', name: 'Ada Analyst' }, createdAt: '2026-11-30T10:00:00.000Z', recheckState: 'draft' },
+      ],
+    });
+    backend.expectOne('/api/cases/c1/revisions/1').flush(revision(1, R1));
+    for (const request of backend.match('/api/cases/c1/revisions/2')) request.flush(revision(2, R2));
+    backend.expectOne('/api/cases/c1/revisions/2/comments').flush({ items: [] });
+    fixture.detectChanges();
+    await fixture.whenStable();
+  }
+
+  afterEach(() => backend.verify());
+
+  function diffRows(): string[][] {
+    return Array.from(host.querySelectorAll('.diff-table tbody tr'), (tr) =>
+      Array.from(tr.children, (cell) => (cell.textContent ?? '').replace('(changed)', '').trim()),
+    );
+  }
+
+  it('compares the open revision with the one before it, changed rows only, in display units', async () => {
+    await open('analyst');
+    expect(host.querySelector('.diff-summary')?.textContent).toContain('2 parameters differ between r1 and r2');
+    expect(diffRows()).toEqual([
+      ['drive.amplitude', '10', '12', 'mm'],
+      ['damping.viscousRatio', '0.01', '0.02', 'ζ'],
+    ]);
+    expect(host.querySelectorAll('.diff-table tr.changed').length).toBe(2);
+  });
+
+  it('shows every parameter, changed ones highlighted, when "Only changed" is off', async () => {
+    await open('analyst');
+    host.querySelector<HTMLButtonElement>('mat-slide-toggle button')?.click();
+    fixture.detectChanges();
+    const rows = diffRows();
+    expect(rows.length).toBeGreaterThan(15);
+    expect(rows).toContainEqual(['drive.frequency', '40', '40', 'Hz']);
+    expect(host.querySelectorAll('.diff-table tr.changed').length).toBe(2);
+  });
+
+  it('offers the analyst a recheck request and links, and the reviewer the recheck itself', async () => {
+    await open('analyst');
+    expect(host.querySelector('.ask-recheck')).not.toBeNull();
+    expect(host.querySelector('.open-recheck')).toBeNull();
+    TestBed.resetTestingModule();
+    await open('reviewer');
+    expect(host.querySelector('.ask-recheck')).toBeNull();
+    expect(host.querySelector('.open-recheck')?.getAttribute('href')).toBe('/cases/c1/r/2/recheck');
+  });
+});
