@@ -74,7 +74,7 @@ export class MapTab {
     const data: PlotSpec[] = [
       {
         type: 'heatmap', x, y, z, customdata: real, zmin: 0, zmax: MULTIPLIER_CLIP, name: 'largest |μ|',
-        colorscale: [[0, '#0b6e69'], [0.499, '#cfeae2'], [0.5, '#f7d9d3'], [1, '#8f1d12']],
+        colorscale: [[0, '#0b6e69'], [0.45, '#6fbfa8'], [0.499, '#cfeae2'], [0.5, '#f7d9d3'], [1, '#8f1d12']],
         colorbar: { title: { text: 'largest |μ|' }, thickness: 12 },
         hovertemplate: `f %{x:.4g} ${fUnit}<br>a %{y:.4g} ${aUnit}<br>largest |μ| %{customdata:.5g}<extra></extra>`,
       },
@@ -95,8 +95,8 @@ export class MapTab {
     });
     const log = (axis: 'x' | 'y') => ((axis === 'x' ? c.grid.x.scale : c.grid.y.scale) === 'log' ? 'log' : 'linear');
     const layout: PlotSpec = {
-      xaxis: { title: { text: `drive frequency (${fUnit})` }, type: log('x') },
-      yaxis: { title: { text: `drive amplitude (${aUnit})` }, type: log('y') },
+      xaxis: { title: { text: `drive frequency (${fUnit})` }, type: log('x'), dtick: log('x') === 'log' ? 'D2' : undefined },
+      yaxis: { title: { text: `drive amplitude (${aUnit})` }, type: log('y'), dtick: log('y') === 'log' ? 'D2' : undefined },
       margin: { l: 64, r: 16, t: 40, b: 52 },
     };
     const rows: Array<Array<number | string>> = [];

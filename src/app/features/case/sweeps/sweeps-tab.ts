@@ -11,7 +11,7 @@ import { getField, setField, sweepableFieldsFor, type SweepableField } from '../
 import type { CaseParams } from '../../../../../shared/case/case-schema';
 import { averagedAnalysis, averagedLowerAmplitude, averagedLowerFrequency } from '../../../../../shared/engine/averaged';
 import type { SweepSpec } from '../../../../../shared/engine/sweep';
-import { Plot, type PlotSpec } from '../../../ui/plot/plot';
+import { Plot, type PlotCsv, type PlotSpec } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
 import { OUTCOME_COLORS, OUTCOME_LABELS, formatNumber } from '../format';
 import { dimensionOfSiUnit, fromDisplay, toDisplay, unitLabelOf, type Dimension } from '../rig/rig-form';
@@ -173,7 +173,10 @@ export class SweepsTab {
       });
     }
     const annotations: PlotSpec[] = s.averaged === null ? [] : [
-      { x: x(s.averaged), y: 1, xref: 'x', yref: 'paper', text: 'averaged limit', showarrow: false, yanchor: 'bottom', font: { color: '#0b6e69' } },
+      {
+        x: x(s.averaged), y: 0.98, xref: 'x', yref: 'paper', text: 'averaged limit', showarrow: false,
+        xanchor: 'left', yanchor: 'top', xshift: 4, font: { color: '#0b6e69' },
+      },
     ];
     const layout: PlotSpec = {
       xaxis: { title: { text: `${s.label} (${s.unit || '1'})` }, type: r.value.spec.scale === 'log' ? 'log' : 'linear' },
@@ -183,13 +186,38 @@ export class SweepsTab {
       shapes,
       annotations,
     };
-    return { data, layout };
+    const csv: PlotCsv = {
+      columns: [
+        { header: s.label, unit: s.unit || undefined },
+        { header: 'outcome' },
+        { header: 'slow frequency', unit: 'Hz' },
+        { header: 'largest |multiplier|' },
+      ],
+      rows: points.map((p) => [x(p.value), p.outcome ?? 'invalid', p.slowFrequencyHz, p.maxMultiplier]),
+    };
+    return { data, layout, csv };
   });
 
+  /** The field whose default range was set last; a new field gets a new default range. */
+  private rangeFor: string | null = null;
+
   constructor() {
+    // Coming back to the tab shows the settings of the sweep on screen.
+    const shown = this.result()?.value.spec;
+    if (shown) {
+      const dimension = dimensionOfSiUnit(sweepableFieldsFor(this.workspace.draft()).find((f) => f.path === shown.field)?.unit ?? '');
+      this.fieldPath.set(shown.field);
+      this.count.set(shown.steps);
+      this.scale.set(shown.scale ?? 'linear');
+      this.from.set(toDisplay(shown.from, dimension, this.units()));
+      this.to.set(toDisplay(shown.to, dimension, this.units()));
+      this.rangeFor = shown.field;
+    }
     // A new field (or a first visit) gets a sensible default range around the case's value.
     effect(() => {
       const path = this.field().path;
+      if (path === this.rangeFor) return;
+      this.rangeFor = path;
       const dimension = dimensionOfSiUnit(this.field().unit);
       const units = this.units();
       const value = getField(this.workspace.draft(), path);
