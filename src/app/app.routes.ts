@@ -1,5 +1,5 @@
 import { inject } from '@angular/core';
-import { Routes } from '@angular/router';
+import { Router, Routes } from '@angular/router';
 
 import { authGuard } from './core/auth-guard';
 import { Session } from './core/session';
@@ -30,8 +30,13 @@ export const routes: Routes = [
       {
         path: 'labs',
         pathMatch: 'full',
+        // Redirects run before guards, so a signed-out visitor is sent to sign in here, keeping the intent.
         redirectTo: () => {
-          const labId = inject(Session).currentLab()?.id;
+          const session = inject(Session);
+          if (!session.isSignedIn()) {
+            return inject(Router).createUrlTree(['/sign-in'], { queryParams: { returnUrl: '/labs' } });
+          }
+          const labId = session.currentLab()?.id;
           return labId ? `/labs/${labId}` : '/';
         },
       },
