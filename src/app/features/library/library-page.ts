@@ -235,5 +235,12 @@ export class LibraryPage {
 }
 
 function isCreated(value: unknown): value is { id: string; latestRevision: number } {
-  return typeof value === 'object' && value !== null && 'id' in value && typeof value.id === 'string';
+  return (
+    typeof value === 'object' &&
+    value !== null &&
+    'id' in value &&
+    typeof value.id === 'string' &&
+    'latestRevision' in value &&
+    typeof value.latestRevision === 'number'
+  );
 }

@@ -1,0 +1,90 @@
+import { provideHttpClient } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { TestBed } from '@angular/core/testing';
+import { firstValueFrom } from 'rxjs';
+
+import { templateCase } from '../../../../shared/case';
+import { CaseRepositoryError } from '../case/case-repository-error';
+import { ApiCaseRepository } from './api-case-repository';
+
+const DETAIL = {
+  id: 'c1', title: 'Teaching rod', tags: ['teaching'], lab: { id: 'lab-1', name: 'Shaker Lab' }, archived: false, latestRevision: 3,
+  myRole: 'analyst', revisions: [],
+};
+
+function revision(number: number): object {
+  return {
+    caseId: 'c1', caseTitle: 'Teaching rod', number, params: templateCase(), schemaVersion: 1, paramsDigest: 'a'.repeat(64), note: '',
+    author: { id: 'u2', name: 'Ada Analyst' }, createdAt: '2026-11-30T10:00:00.000Z', recheckState: 'draft', recheckRequest: null,
+    runs: [
+      { id: 'r1', kind: 'motion', settings: { kind: 'motion' }, summary: { outcome: 'holds-upright' }, resultDigest: 'b'.repeat(64), engineVersion: '1.0.0', author: null, createdAt: '' },
+      { id: 'r2', kind: 'unknown-kind', settings: {}, summary: {}, resultDigest: '', engineVersion: '', author: null, createdAt: '' },
+    ],
+    rechecks: [],
+  };
+}
+
+describe('ApiCaseRepository', () => {
+  let repository: ApiCaseRepository;
+  let backend: HttpTestingController;
+
+  beforeEach(() => {
+    TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
+    repository = TestBed.inject(ApiCaseRepository);
+    backend = TestBed.inject(HttpTestingController);
+  });
+
+  afterEach(() => backend.verify());
+
+  it('opens the latest revision with its runs, writable for an analyst', async () => {
+    const opened = firstValueFrom(repository.open('c1'));
+    backend.expectOne('/api/cases/c1').flush(DETAIL);
+    backend.expectOne('/api/cases/c1/revisions/3').flush(revision(3));
+    const value = await opened;
+    expect(value).toMatchObject({ caseId: 'c1', revision: 3, latestRevision: 3, readOnly: false, labId: 'lab-1' });
+    expect(value.params.drive.frequency).toBe(40);
+    // A run kind this engine does not know is left out rather than offered for a rerun it cannot do.
+    expect(value.runs.map((r) => r.id)).toEqual(['r1']);
+  });
+
+  it('opens read-only for a viewer and for an archived case', async () => {
+    const asViewer = firstValueFrom(repository.open('c1', 2));
+    backend.expectOne('/api/cases/c1').flush({ ...DETAIL, myRole: 'viewer' });
+    backend.expectOne('/api/cases/c1/revisions/2').flush(revision(2));
+    expect((await asViewer).readOnly).toBe(true);
+    const archived = firstValueFrom(repository.open('c1', 2));
+    backend.expectOne('/api/cases/c1').flush({ ...DETAIL, archived: true });
+    backend.expectOne('/api/cases/c1/revisions/2').flush(revision(2));
+    expect((await archived).readOnly).toBe(true);
+  });
+
+  it('turns a stale save (409) into a stale-revision error that says to open the latest revision', async () => {
+    const saved = firstValueFrom(repository.saveRevision('c1', 2, templateCase(), 'tweak'));
+    const request = backend.expectOne('/api/cases/c1/revisions');
+    expect(request.request.body).toMatchObject({ baseRevision: 2, note: 'tweak' });
+    request.flush({ error: { code: 'stale-revision', message: 'r3 exists' } }, { status: 409, statusText: 'Conflict' });
+    const error: unknown = await saved.catch((e: unknown) => e);
+    expect(error).toBeInstanceOf(CaseRepositoryError);
+    expect((error as CaseRepositoryError).code).toBe('stale-revision');
+    expect((error as CaseRepositoryError).message).toMatch(/since you opened r2.*Open the latest revision/);
+  });
+
+  it('turns a refused parameter (422) into an invalid error naming the field inside the case', async () => {
+    const saved = firstValueFrom(repository.saveRevision('c1', 3, templateCase(), ''));
+    backend.expectOne('/api/cases/c1/revisions').flush(
+      { error: { code: 'invalid_params', message: 'params.drive.amplitude: must be at most 10', field: 'params.drive.amplitude' } },
+      { status: 422, statusText: 'Unprocessable Entity' },
+    );
+    const error = (await saved.catch((e: unknown) => e)) as CaseRepositoryError;
+    expect(error.code).toBe('invalid');
+    expect(error.field).toBe('drive.amplitude');
+    expect(error.message).toContain('must be at most 10');
+  });
+
+  it('refuses to create a case outside a lab without asking the server', async () => {
+    const created = firstValueFrom(repository.create({ labId: null, title: 'x', tags: [], params: templateCase(), note: '' }));
+    const error = (await created.catch((e: unknown) => e)) as CaseRepositoryError;
+    expect(error.code).toBe('invalid');
+    backend.expectNone(() => true);
+  });
+});
