@@ -139,6 +139,30 @@ describe('case library', () => {
     await screenshot(page, 'history-desktop');
   }, 180_000);
 
+  it('takes bench traces: a bad row is named by its line, a good file is listed and plotted', async () => {
+    const page = await browser.newPage(DESKTOP);
+    await signIn(page, 'analyst', `/cases/${caseId}/r/2/bench`);
+    await page.getByRole('heading', { name: 'Upload a bench trace' }).waitFor();
+    const bad = 'time,angle\n0,1.5\n0.01,x\n';
+    await page.setInputFiles('#bench-file', { name: 'bad.csv', mimeType: 'text/csv', buffer: Buffer.from(bad) });
+    await page.locator('.upload-button').click();
+    await expect.poll(() => page.locator('.upload-error').textContent()).toContain('line 3');
+
+    const rows = Array.from({ length: 300 }, (_, i) => {
+      const t = i * 0.01;
+      return `${t.toFixed(2)},${(5 * Math.cos(2 * Math.PI * 1.1 * t) * Math.exp(-0.2 * t)).toFixed(4)}`;
+    });
+    const good = `time,angle\n${rows.join('\n')}\n`;
+    await page.setInputFiles('#bench-file', { name: 'free-swing.csv', mimeType: 'text/csv', buffer: Buffer.from(good) });
+    await page.locator('.upload-button').click();
+    await page.locator('.trace-label', { hasText: 'free-swing' }).waitFor();
+    expect(await page.locator('.upload-error').count()).toBe(0);
+    expect((await page.locator('tr.mat-mdc-row td.num').first().textContent())?.trim()).toBe('300');
+    await page.getByRole('button', { name: 'Plot' }).click();
+    await page.locator('qp-plot .main-svg').first().waitFor({ timeout: 30_000 });
+    await screenshot(page, 'bench-desktop');
+  }, 120_000);
+
   it('lets the reviewer rerun r2 in the browser, see the same numbers and confirm', async () => {
     const page = await browser.newPage(DESKTOP);
     await signIn(page, 'reviewer', `/cases/${caseId}/r/2/recheck`);
@@ -214,6 +238,10 @@ describe('case library', () => {
     await analyst.goto(`${server.baseUrl}/cases/${caseId}/r/2/history`);
     await analyst.locator('.diff-table tr.changed').first().waitFor();
     await screenshot(analyst, 'history-phone');
+    await noSideScroll(analyst);
+    await analyst.goto(`${server.baseUrl}/cases/${caseId}/r/2/bench`);
+    await analyst.locator('.trace-label', { hasText: 'free-swing' }).waitFor();
+    await screenshot(analyst, 'bench-phone');
     await noSideScroll(analyst);
 
     const reviewer = await browser.newPage(NARROW);

@@ -80,6 +80,10 @@ describe('BenchTab', () => {
     expect(alert?.getAttribute('role')).toBe('alert');
     expect(alert?.textContent).toContain('line 3: angle "x" is not a number');
     expect(host.querySelector<HTMLButtonElement>('.upload-button')?.disabled).toBe(false);
+
+    // Picking a corrected file relabels it, since the label was never typed by hand.
+    pickFile('time,angle\n0,1\n0.01,2\n', 'swing-fixed.csv');
+    expect(host.querySelector<HTMLInputElement>('input[name="label"]')?.value).toBe('swing-fixed');
   });
 
   it('refuses a file over 2 MiB before sending it', async () => {

@@ -104,6 +104,7 @@ export class BenchTab {
   protected readonly uploading = signal(false);
   protected readonly progress = signal(0);
   protected readonly uploadError = signal<string | null>(null);
+  private labelFromFile = '';
 
   protected formatDuration(seconds: number): string {
     return `${formatNumber(Number(seconds.toPrecision(4)))} s`;
@@ -119,7 +120,11 @@ export class BenchTab {
       return;
     }
     this.file.set(file);
-    if (file && this.label() === '') this.label.set(file.name.replace(/\.csv$/i, ''));
+    // The label follows the chosen file until the user types their own.
+    if (file && (this.label() === '' || this.label() === this.labelFromFile)) {
+      this.labelFromFile = file.name.replace(/\.csv$/i, '');
+      this.label.set(this.labelFromFile);
+    }
   }
 
   protected upload(input: HTMLInputElement): void {
