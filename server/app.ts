@@ -19,7 +19,9 @@ import { apiNotFound, jsonErrors } from './middleware/errors';
 import { ANY_LAB_ROLE, requireLabRole } from './middleware/roles';
 import { signInRoute, signOutRoute } from './routes/auth-routes';
 import { healthRoute } from './routes/health-routes';
-import { acceptInvitationRoute, addMemberRoute, changeRoleRoute, membersRoute, myLabsRoute, removeMemberRoute } from './routes/lab-routes';
+import {
+  acceptInvitationRoute, addMemberRoute, changeRoleRoute, invitationsRoute, membersRoute, myLabsRoute, removeMemberRoute, revokeInvitationRoute,
+} from './routes/lab-routes';
 import { meRoute } from './routes/me-routes';
 import { requireCaseRole } from './middleware/case-access';
 import { requireSiteAdmin } from './middleware/site-admin';
@@ -30,7 +32,6 @@ import {
   addCommentRoute, auditRoute, caseRoute, commentsRoute, createCaseRoute, duplicateCaseRoute, listCasesRoute, patchCaseRoute,
   recheckRequestRoute, recheckRoute, revisionRoute, saveRevisionRoute, storeRunRoute,
 } from './routes/case-routes';
-import { createMailer, type SendMail } from './services/mailer';
 
 export interface AppOptions {
   config: Config;
@@ -38,7 +39,6 @@ export interface AppOptions {
   logger?: Logger;
   /** serve the built Angular app (default: when config.env is production) */
   serveClient?: boolean;
-  sendMail?: SendMail;
 }
 
 /** sha256 of `this.media='all'`, the handler Angular's build puts on its deferred stylesheet link. */
@@ -47,7 +47,6 @@ const DEFERRED_STYLESHEET_HANDLER = "'sha256-MhtPZXr7+LpJUY5qtMutB+qWfQtMaPccfe7
 export function createApp(options: AppOptions): Express {
   const { config, sequelize } = options;
   const logger = options.logger ?? createLogger(config.logLevel);
-  const sendMail = options.sendMail ?? createMailer(config);
   const authenticate = createAuthenticator(config.jwtSecret);
   const signInLimiter = rateLimit({
     windowMs: config.signInWindowMs,
@@ -113,9 +112,11 @@ export function createApp(options: AppOptions): Express {
     ['get', '/me', authenticate, meRoute],
     ['get', '/labs', authenticate, myLabsRoute],
     ['get', '/labs/:labId/members', authenticate, anyRole, membersRoute],
-    ['post', '/labs/:labId/members', authenticate, owner, addMemberRoute(sequelize, config, sendMail)],
+    ['post', '/labs/:labId/members', authenticate, owner, addMemberRoute(sequelize, config)],
     ['patch', '/labs/:labId/members/:userId', authenticate, owner, changeRoleRoute(sequelize)],
     ['delete', '/labs/:labId/members/:userId', authenticate, owner, removeMemberRoute(sequelize)],
+    ['get', '/labs/:labId/invitations', authenticate, owner, invitationsRoute],
+    ['delete', '/labs/:labId/invitations/:invitationId', authenticate, owner, revokeInvitationRoute(sequelize)],
     // case library (docs/api.md has the role matrix)
     ['get', '/labs/:labId/cases', authenticate, anyRole, listCasesRoute],
     ['post', '/labs/:labId/cases', authenticate, labAuthor, createCaseRoute(sequelize)],

@@ -6,10 +6,10 @@ import { LAB_ROLES } from '../db/models';
 import { currentUser } from '../middleware/auth';
 import { labMembership } from '../middleware/roles';
 import { parseInput } from '../middleware/validate';
-import type { SendMail } from '../services/mailer';
-import { acceptInvitation, addMember, changeRole, labsOf, membersOf, removeMember } from '../services/lab-service';
+import {
+  acceptInvitation, addMember, changeRole, labsOf, membersOf, pendingInvitationsOf, removeMember, revokeInvitation,
+} from '../services/lab-service';
 import { issueToken } from '../services/auth-service';
-import { enqueueMail } from '../services/outbox-service';
 
 const page = z.object({
   limit: z.coerce.number().int().min(1).max(500).default(100),
@@ -19,6 +19,7 @@ const role = z.enum(LAB_ROLES);
 const addBody = z.object({ email: z.email().max(320), role });
 const roleBody = z.object({ role });
 const userIdParam = z.object({ userId: z.uuid() });
+const invitationIdParam = z.object({ invitationId: z.uuid() });
 const acceptBody = z.object({
   token: z.string().min(16).max(200),
   name: z.string().trim().min(1).max(200).optional(),
@@ -35,31 +36,25 @@ export const membersRoute: RequestHandler = async (req, res) => {
   res.json(await membersOf(labMembership(req).labId, limit, offset));
 };
 
-export function addMemberRoute(sequelize: Sequelize, config: Config, sendMail: SendMail): RequestHandler {
+/** An unknown address gets an invitation; its mail is queued in the outbox with it, so the reply says `queued`. */
+export function addMemberRoute(sequelize: Sequelize, config: Config): RequestHandler {
   return async (req, res) => {
     const { email, role: newRole } = parseInput(addBody, req.body);
-    const { labId } = labMembership(req);
-    const result = await addMember(sequelize, currentUser(req).id, labId, email, newRole, config.invitationTtlHours);
-    if (result.kind === 'member') {
-      res.status(201).json(result);
-      return;
-    }
-    const link = new URL(`/invitations/${encodeURIComponent(result.token)}`, config.publicUrl).toString();
-    let mailed = true;
-    const mail = {
-      to: result.invitation.email,
-      subject: 'You are invited to a Quiverpoint lab',
-      text: `${currentUser(req).name} invited you to join their lab as ${newRole}.\n\nAccept within ${config.invitationTtlHours} hours: ${link}\n`,
-    };
-    try {
-      await sendMail(mail);
-    } catch (err) {
-      mailed = false;
-      req.log?.warn({ err }, 'invitation mail not sent now; queued in the outbox for retries');
-      // The outbox sender loop retries with backoff; the row shows the failure to site admins.
-      await enqueueMail(mail);
-    }
-    res.status(201).json({ kind: 'invitation', invitation: result.invitation, mailed, ...(mailed ? {} : { queued: true }) });
+    const { id, name } = currentUser(req);
+    res.status(201).json(await addMember(sequelize, { id, name }, labMembership(req).labId, email, newRole, config));
+  };
+}
+
+export const invitationsRoute: RequestHandler = async (req, res) => {
+  const { limit, offset } = parseInput(page, req.query, 'query');
+  res.json(await pendingInvitationsOf(labMembership(req).labId, limit, offset));
+};
+
+export function revokeInvitationRoute(sequelize: Sequelize): RequestHandler {
+  return async (req, res) => {
+    const { invitationId } = parseInput(invitationIdParam, req.params, 'path');
+    await revokeInvitation(sequelize, currentUser(req).id, labMembership(req).labId, invitationId);
+    res.status(204).end();
   };
 }
 

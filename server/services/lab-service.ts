@@ -1,13 +1,16 @@
 /**
  * Labs and their members: who belongs, with what role, and how owners add, invite, re-role and remove people.
- * A lab always keeps at least one owner.
+ * A lab always keeps at least one owner. An invitation and its mail are written in one transaction: the mail goes
+ * through the outbox, and only the token's hash stays in `invitations`.
  */
 import { createHash, randomBytes } from 'node:crypto';
 import { Op, type Sequelize, type Transaction } from 'sequelize';
 import { AppError } from '../app-error';
+import type { Config } from '../config';
 import { AuditEvent, Invitation, Lab, Membership, User, type LabRole } from '../db/models';
 import { hashPassword } from './passwords';
 import { normaliseEmail } from './auth-service';
+import { enqueueMail } from './outbox-service';
 
 export interface LabSummary {
   id: string;
@@ -28,7 +31,14 @@ export interface InvitationView {
   labId: string;
   email: string;
   role: LabRole;
+  invitedAt: string;
   expiresAt: string;
+}
+
+/** Who is acting: their id for the audit trail and their name for the mail. */
+export interface Actor {
+  id: string;
+  name: string;
 }
 
 export interface Page<T> {
@@ -41,6 +51,10 @@ export interface Page<T> {
 function memberView(m: Membership): MemberView {
   if (!m.user) throw new Error('membership loaded without its user');
   return { userId: m.userId, email: m.user.email, name: m.user.name, role: m.role, joinedAt: m.createdAt.toISOString() };
+}
+
+function invitationView(i: Invitation): InvitationView {
+  return { id: i.id, labId: i.labId, email: i.email, role: i.role, invitedAt: i.createdAt.toISOString(), expiresAt: i.expiresAt.toISOString() };
 }
 
 export function hashToken(token: string): string {
@@ -72,16 +86,20 @@ export async function membersOf(labId: string, limit: number, offset: number): P
 
 export type AddResult =
   | { kind: 'member'; member: MemberView }
-  | { kind: 'invitation'; invitation: InvitationView; token: string };
+  | { kind: 'invitation'; invitation: InvitationView; queued: true };
 
-/** Adds an existing account to the lab, or creates an invitation (with a one-time token) for an unknown address. */
+/**
+ * Adds an existing account to the lab, or invites an unknown address: the invitation (token hash only) and an
+ * outbox mail carrying the one-time accept link are written in the same transaction, so neither exists without the
+ * other. The outbox sender loop delivers the mail.
+ */
 export async function addMember(
   sequelize: Sequelize,
-  actorId: string,
+  actor: Actor,
   labId: string,
   rawEmail: string,
   role: LabRole,
-  invitationTtlHours: number,
+  config: Pick<Config, 'publicUrl' | 'invitationTtlHours'>,
 ): Promise<AddResult> {
   const email = normaliseEmail(rawEmail);
   return sequelize.transaction(async (transaction) => {
@@ -91,20 +109,53 @@ export async function addMember(
       if (existing) throw new AppError('already_member', `${email} is already a member of this lab (${existing.role}).`, 409, 'email');
       const membership = await Membership.create({ labId, userId: user.id, role }, { transaction });
       membership.user = user;
-      await AuditEvent.create({ actorId, labId, action: 'member.added', details: { userId: user.id, role } }, { transaction });
+      await AuditEvent.create({ actorId: actor.id, labId, action: 'member.added', details: { userId: user.id, role } }, { transaction });
       return { kind: 'member', member: memberView(membership) };
     }
     const token = randomBytes(32).toString('base64url');
     const invitation = await Invitation.create(
-      { labId, email, role, tokenHash: hashToken(token), expiresAt: new Date(Date.now() + invitationTtlHours * 3_600_000), invitedById: actorId },
+      { labId, email, role, tokenHash: hashToken(token), expiresAt: new Date(Date.now() + config.invitationTtlHours * 3_600_000), invitedById: actor.id },
       { transaction },
     );
-    await AuditEvent.create({ actorId, labId, action: 'member.invited', details: { email, role } }, { transaction });
-    return {
-      kind: 'invitation',
-      token,
-      invitation: { id: invitation.id, labId, email, role, expiresAt: invitation.expiresAt.toISOString() },
-    };
+    const link = new URL(`/invitations/${encodeURIComponent(token)}`, config.publicUrl).toString();
+    await enqueueMail(
+      {
+        to: email,
+        subject: 'You are invited to a Quiverpoint lab',
+        text: `${actor.name} invited you to join their lab as ${role}.\n\nAccept within ${config.invitationTtlHours} hours: ${link}\n`,
+      },
+      transaction,
+    );
+    await AuditEvent.create({ actorId: actor.id, labId, action: 'member.invited', details: { email, role } }, { transaction });
+    return { kind: 'invitation', invitation: invitationView(invitation), queued: true };
+  });
+}
+
+/** Invitations of the lab that are neither accepted nor expired, newest first. */
+export async function pendingInvitationsOf(labId: string, limit: number, offset: number): Promise<Page<InvitationView>> {
+  const { rows, count } = await Invitation.findAndCountAll({
+    where: { labId, acceptedAt: null, expiresAt: { [Op.gt]: new Date() } },
+    order: [['createdAt', 'DESC'], ['id', 'ASC']],
+    limit,
+    offset,
+  });
+  return { items: rows.map(invitationView), total: count, limit, offset };
+}
+
+/** Withdraws a pending invitation: the row goes, so its token no longer accepts. */
+export async function revokeInvitation(sequelize: Sequelize, actorId: string, labId: string, invitationId: string): Promise<void> {
+  await sequelize.transaction(async (transaction) => {
+    const invitation = await Invitation.findOne({
+      where: { id: invitationId, labId, acceptedAt: null },
+      lock: transaction.LOCK.UPDATE,
+      transaction,
+    });
+    if (!invitation) throw new AppError('invitation_not_found', 'That invitation does not exist or was already accepted.', 404, 'invitationId');
+    await invitation.destroy({ transaction });
+    await AuditEvent.create(
+      { actorId, labId, action: 'invitation.revoked', details: { email: invitation.email, role: invitation.role } },
+      { transaction },
+    );
   });
 }
 

@@ -2,12 +2,16 @@
  * The mail outbox. Changes that notify someone write an outbox row in their own transaction (`enqueueMail`), so a
  * mail exists exactly when the change committed. A sender loop in the server process delivers due rows over SMTP;
  * a failure keeps the row with one more attempt, the last error and a later next attempt (exponential backoff),
- * until MAX_ATTEMPTS, after which the row stays unsent with no next attempt.
+ * until MAX_ATTEMPTS, after which the row stays unsent with no next attempt. A row that reaches either end (sent or
+ * given up) loses its body: mails can carry one-time links (invitations), and nothing reads a finished body again.
  */
 import { Op, type Sequelize, type Transaction } from 'sequelize';
 import { OutboxMail } from '../db/models';
 import type { Logger } from '../logger';
 import type { OutgoingMail, SendMail } from './mailer';
+
+/** What a finished row keeps instead of its text and html. */
+const CLEARED_BODY = { textBody: '', htmlBody: null };
 
 export const MAX_ATTEMPTS = 8;
 const FIRST_RETRY_MS = 30_000;
@@ -52,12 +56,13 @@ export async function deliverDueMail(sequelize: Sequelize, sendMail: SendMail, o
       const attempts = row.attempts + 1;
       try {
         await sendMail({ to: row.toAddress, subject: row.subject, text: row.textBody, ...(row.htmlBody ? { html: row.htmlBody } : {}) });
-        await row.update({ attempts, sentAt: new Date(), nextAttemptAt: null, lastError: null }, { transaction });
+        await row.update({ attempts, sentAt: new Date(), nextAttemptAt: null, lastError: null, ...CLEARED_BODY }, { transaction });
         report.sent++;
       } catch (err) {
         const message = err instanceof Error ? err.message : String(err);
-        const nextAttemptAt = attempts >= MAX_ATTEMPTS ? null : new Date(now.getTime() + retryDelayMs(attempts));
-        await row.update({ attempts, lastError: message.slice(0, 2000), nextAttemptAt }, { transaction });
+        const givenUp = attempts >= MAX_ATTEMPTS;
+        const nextAttemptAt = givenUp ? null : new Date(now.getTime() + retryDelayMs(attempts));
+        await row.update({ attempts, lastError: message.slice(0, 2000), nextAttemptAt, ...(givenUp ? CLEARED_BODY : {}) }, { transaction });
         report.failed++;
       }
     }

@@ -1,4 +1,5 @@
 import { createServer, type Server } from 'node:net';
+import { Op } from 'sequelize';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { OutboxMail, SinkMail } from '../../server/db/models';
 import { startMailSink, type MailSink } from '../../server/scripts/mail-sink';
@@ -63,6 +64,8 @@ describe('mail outbox', () => {
     expect(row.sentAt).not.toBeNull();
     expect(row.nextAttemptAt).toBeNull();
     expect(row.lastError).toBeNull();
+    expect(row.textBody).toBe('');
+    expect(row.htmlBody).toBeNull();
     const caught = await SinkMail.findOne({ where: { subject: 'Outbox retry check' }, order: [['id', 'DESC']] });
     expect(caught?.rcptTo).toEqual([to]);
     expect(caught?.textBody.trim()).toBe('Hello through the outbox.');
@@ -80,6 +83,7 @@ describe('mail outbox', () => {
     expect(row.attempts).toBe(MAX_ATTEMPTS);
     expect(row.nextAttemptAt).toBeNull();
     expect(row.sentAt).toBeNull();
+    expect(row.textBody).toBe('');
     const admin = await createUser('outbox-admin', { isSiteAdmin: true });
     const token = await tokenFor(api.app, admin);
     const failed = await client(api.app, token).get('/api/admin/outbox?state=failed&pageSize=200');
@@ -113,16 +117,31 @@ describe('mail outbox', () => {
     expect(delivered.length).toBe(count);
   });
 
-  it('queues an invitation mail that could not be sent right away', async () => {
+  it('keeps an invitation mail with its link until SMTP answers, then keeps no body', async () => {
     const owner = await createUser('inviting-owner');
     const lab = await createLab([[owner, 'owner']]);
     const email = uniqueEmail('queued-invitee');
     const res = await client(api.app, await tokenFor(api.app, owner)).post(`/api/labs/${lab.id}/members`, { email, role: 'viewer' });
     expect(res.status).toBe(201);
-    expect(res.body).toMatchObject({ kind: 'invitation', mailed: false, queued: true });
+    expect(res.body).toMatchObject({ kind: 'invitation', queued: true });
     const queued = await OutboxMail.findOne({ where: { toAddress: email } });
     expect(queued).toMatchObject({ subject: 'You are invited to a Quiverpoint lab', attempts: 0, sentAt: null });
     expect(queued?.textBody).toMatch(/\/invitations\/[A-Za-z0-9_-]+/);
+    if (!queued) throw new Error('no outbox row');
+
+    const now = new Date();
+    await deliverDueMail(api.sequelize, createMailer({ smtpHost: '127.0.0.1', smtpPort: closedPort, mailFrom: FROM }), { now, limit: 1000 });
+    await queued.reload();
+    expect(queued).toMatchObject({ attempts: 1, sentAt: null });
+    expect(queued.textBody).toMatch(/\/invitations\/[A-Za-z0-9_-]+/);
+
+    const open = createMailer({ smtpHost: '127.0.0.1', smtpPort: sink.port, mailFrom: FROM });
+    await deliverDueMail(api.sequelize, open, { now: new Date(now.getTime() + retryDelayMs(1) + 1), limit: 1000 });
+    await queued.reload();
+    expect(queued.sentAt).not.toBeNull();
+    expect(queued.textBody).toBe('');
+    const caught = await SinkMail.findOne({ where: { rcptTo: { [Op.contains]: [email] } } });
+    expect(caught?.textBody).toMatch(/\/invitations\/[A-Za-z0-9_-]+/);
   });
 
   it('sends a due mail once even when two senders run at the same time', async () => {

@@ -12,7 +12,6 @@ import { loadConfig, type Config } from '../../server/config';
 import { Lab, Membership, User, type LabRole } from '../../server/db/models';
 import { createSequelize } from '../../server/db/sequelize';
 import { hashPassword } from '../../server/services/passwords';
-import type { SendMail } from '../../server/services/mailer';
 
 export const PASSWORD = 'correct-horse-battery';
 let passwordHash: Promise<string> | undefined;
@@ -37,10 +36,10 @@ export function testConfig(overrides: Record<string, string> = {}): Config {
   });
 }
 
-export function startApi(options: { env?: Record<string, string>; sendMail?: SendMail } = {}): TestApi {
+export function startApi(options: { env?: Record<string, string> } = {}): TestApi {
   const config = testConfig(options.env);
   const sequelize = createSequelize(config.databaseUrl, { poolMax: 4 });
-  const app = createApp({ config, sequelize, serveClient: false, ...(options.sendMail ? { sendMail: options.sendMail } : {}) });
+  const app = createApp({ config, sequelize, serveClient: false });
   const appWith = (env: Record<string, string>) => createApp({ config: testConfig({ ...options.env, ...env }), sequelize, serveClient: false });
   return { app, config, sequelize, appWith, close: () => sequelize.close() };
 }

@@ -2,7 +2,8 @@ import { DataTypes, Model, type CreationOptional, type InferAttributes, type Inf
 
 /**
  * An e-mail waiting to be sent (or sent). Rows are written in the same transaction as the change they report; the
- * sender loop delivers them with retries. `nextAttemptAt` null with `sentAt` null means it gave up.
+ * sender loop delivers them with retries. `nextAttemptAt` null with `sentAt` null means it gave up. Bodies are
+ * cleared ('' and null) once a row is sent or given up.
  */
 export class OutboxMail extends Model<InferAttributes<OutboxMail>, InferCreationAttributes<OutboxMail>> {
   declare id: CreationOptional<string>;
