@@ -159,7 +159,7 @@ describe('case library', () => {
     expect(await page.locator('.upload-error').count()).toBe(0);
     expect((await page.locator('tr.mat-mdc-row td.num').first().textContent())?.trim()).toBe('300');
     await page.getByRole('button', { name: 'Plot' }).click();
-    await page.locator('qp-plot .main-svg').first().waitFor({ timeout: 30_000 });
+    await page.locator('qp-plot .scatterlayer .trace').first().waitFor({ timeout: 30_000 });
     await screenshot(page, 'bench-desktop');
   }, 120_000);
 

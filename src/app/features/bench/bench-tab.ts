@@ -1,7 +1,8 @@
+import { BreakpointObserver } from '@angular/cdk/layout';
 import { HttpEventType } from '@angular/common/http';
 import { DatePipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, ErrorHandler, computed, inject, signal } from '@angular/core';
-import { rxResource } from '@angular/core/rxjs-interop';
+import { rxResource, toSignal } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
@@ -10,6 +11,7 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { MatTableModule } from '@angular/material/table';
+import { map } from 'rxjs';
 
 import { apiErrorOf, describeError } from '../../core/error-message';
 import { Plot, PlotCsv, PlotSpec } from '../../ui/plot/plot';
@@ -21,6 +23,9 @@ import type { BenchTrace, BenchTraceSummary } from '../library/library-types';
 
 /** Largest file the server accepts; checked here too so a wrong file fails at once. */
 export const MAX_TRACE_BYTES = 2 * 1024 * 1024;
+
+/** Most points drawn per series; plenty for a screen-wide line. */
+export const MAX_PLOTTED_POINTS = 5000;
 
 /** An upload refusal in words: the server names the line of the first bad row. */
 export function uploadProblem(error: unknown): string {
@@ -55,7 +60,16 @@ export class BenchTab {
 
   protected readonly caseId = computed(() => this.workspace.opened()?.caseId ?? null);
   protected readonly canUpload = computed(() => this.caseId() !== null && !this.workspace.readOnly());
-  protected readonly columns = computed(() => ['label', 'rows', 'duration', 'author', 'created', 'actions']);
+  /** Phones keep label, rows and the actions; author and date need a wider screen. */
+  private readonly narrow = toSignal(
+    inject(BreakpointObserver)
+      .observe('(max-width: 599.98px)')
+      .pipe(map((state) => state.matches)),
+    { initialValue: false },
+  );
+  protected readonly columns = computed(() =>
+    this.narrow() ? ['label', 'rows', 'actions'] : ['label', 'rows', 'duration', 'author', 'created', 'actions'],
+  );
 
   protected readonly traces = rxResource({
     params: () => this.caseId() ?? undefined,
@@ -74,11 +88,15 @@ export class BenchTab {
   protected readonly plotData = computed<PlotSpec[]>(() => {
     const trace = this.selected.value();
     if (!trace) return [];
+    // SVG lines work without WebGL; long traces are thinned for drawing (the CSV keeps every row).
+    const stride = Math.max(1, Math.ceil(trace.time.length / MAX_PLOTTED_POINTS));
+    const thin = (values: readonly number[]) => values.filter((_, i) => i % stride === 0);
+    const time = thin(trace.time);
     const data: PlotSpec[] = [
-      { x: trace.time, y: trace.angle.map((a) => (a * 180) / Math.PI), type: 'scattergl', mode: 'lines', name: 'angle (°)' },
+      { x: time, y: thin(trace.angle).map((a) => (a * 180) / Math.PI), type: 'scatter', mode: 'lines', name: 'angle (°)' },
     ];
     if (trace.pivot) {
-      data.push({ x: trace.time, y: trace.pivot.map((p) => p * 1000), type: 'scattergl', mode: 'lines', name: 'pivot (mm)', yaxis: 'y2' });
+      data.push({ x: time, y: thin(trace.pivot).map((p) => p * 1000), type: 'scatter', mode: 'lines', name: 'pivot (mm)', yaxis: 'y2' });
     }
     return data;
   });
