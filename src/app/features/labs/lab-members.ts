@@ -19,16 +19,19 @@ export const LAB_ROLES: readonly { readonly value: LabRole; readonly label: stri
   { value: 'viewer', label: 'Viewer', can: 'reads cases and runs' },
 ];
 
-/** A pending invitation for an address that has no account yet. */
+/** A pending invitation for an address that has no account yet (times are ISO strings). */
 export interface LabInvitation {
+  readonly id: string;
   readonly email: string;
   readonly role: LabRole;
+  readonly invitedAt: string;
   readonly expiresAt: string;
 }
 
+/** An invitation's mail is queued in the server's outbox with it and sent shortly after. */
 export type AddMemberResult =
   | { readonly kind: 'member'; readonly member: LabMember }
-  | { readonly kind: 'invitation'; readonly invitation: LabInvitation; readonly mailed: boolean };
+  | { readonly kind: 'invitation'; readonly invitation: LabInvitation; readonly queued: boolean };
 
 function isRecord(value: unknown): value is Record<string, unknown> {
   return typeof value === 'object' && value !== null;
@@ -47,16 +50,29 @@ export function parseMembers(reply: unknown): LabMember[] {
   return items.map(parseMember).filter((m): m is LabMember => m !== null);
 }
 
+/** One `{ id, email, role, invitedAt, expiresAt }` invitation. */
+function parseInvitation(value: unknown): LabInvitation | null {
+  if (!isRecord(value)) return null;
+  const { id, email, role, invitedAt, expiresAt } = value;
+  if (typeof id !== 'string' || typeof email !== 'string' || !isLabRole(role)) return null;
+  if (typeof invitedAt !== 'string' || typeof expiresAt !== 'string') return null;
+  return { id, email, role, invitedAt, expiresAt };
+}
+
+/** `GET /api/labs/:labId/invitations` answers a page like the members list. */
+export function parseInvitations(reply: unknown): LabInvitation[] {
+  const items = isRecord(reply) && Array.isArray(reply['items']) ? (reply['items'] as unknown[]) : [];
+  return items.map(parseInvitation).filter((i): i is LabInvitation => i !== null);
+}
+
 export function parseAddResult(reply: unknown): AddMemberResult {
   if (isRecord(reply) && reply['kind'] === 'member') {
     const member = parseMember(reply['member']);
     if (member) return { kind: 'member', member };
   }
-  if (isRecord(reply) && reply['kind'] === 'invitation' && isRecord(reply['invitation'])) {
-    const { email, role, expiresAt } = reply['invitation'];
-    if (typeof email === 'string' && isLabRole(role) && typeof expiresAt === 'string') {
-      return { kind: 'invitation', invitation: { email, role, expiresAt }, mailed: reply['mailed'] === true };
-    }
+  if (isRecord(reply) && reply['kind'] === 'invitation') {
+    const invitation = parseInvitation(reply['invitation']);
+    if (invitation) return { kind: 'invitation', invitation, queued: reply['queued'] === true };
   }
   throw new Error('The server sent an unexpected reply to adding a member.');
 }
@@ -83,6 +99,24 @@ export class LabMembers {
     return this.http.patch<unknown>(
       `/api/labs/${encodeURIComponent(labId)}/members/${encodeURIComponent(userId)}`,
       { role },
+    );
+  }
+
+  /** Owners only; the server answers 409 `last_owner` rather than leave a lab without an owner. */
+  remove(labId: string, userId: string): Observable<unknown> {
+    return this.http.delete<unknown>(`/api/labs/${encodeURIComponent(labId)}/members/${encodeURIComponent(userId)}`);
+  }
+
+  /** Pending invitations (not accepted, not expired), newest first. Owners only. */
+  invitations(labId: string): Observable<LabInvitation[]> {
+    return this.http
+      .get<unknown>(`/api/labs/${encodeURIComponent(labId)}/invitations`, { params: { limit: MEMBER_PAGE_SIZE } })
+      .pipe(map(parseInvitations));
+  }
+
+  revokeInvitation(labId: string, invitationId: string): Observable<unknown> {
+    return this.http.delete<unknown>(
+      `/api/labs/${encodeURIComponent(labId)}/invitations/${encodeURIComponent(invitationId)}`,
     );
   }
 }

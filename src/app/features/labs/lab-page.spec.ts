@@ -2,12 +2,38 @@ import { provideHttpClient, withInterceptors } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestbedHarnessEnvironment } from '@angular/cdk/testing/testbed';
 import { ComponentFixture, TestBed } from '@angular/core/testing';
+import { MATERIAL_ANIMATIONS } from '@angular/material/core';
+import { MatDialog } from '@angular/material/dialog';
 import { MatSelectHarness } from '@angular/material/select/testing';
 import { provideRouter } from '@angular/router';
 
 import { authInterceptor } from '../../core/auth-interceptor';
 import { LabRole, SESSION_STORAGE_KEY } from '../../core/session';
 import { LabPage } from './lab-page';
+
+const INVITATIONS = {
+  items: [
+    {
+      id: 'i2',
+      labId: 'lab-1',
+      email: 'newer@example.org',
+      role: 'viewer',
+      invitedAt: '2026-03-02T09:15:00.000Z',
+      expiresAt: '2026-03-09T09:15:00.000Z',
+    },
+    {
+      id: 'i1',
+      labId: 'lab-1',
+      email: 'older@example.org',
+      role: 'reviewer',
+      invitedAt: '2026-03-01T08:00:00.000Z',
+      expiresAt: '2026-03-08T08:00:00.000Z',
+    },
+  ],
+  total: 2,
+  limit: 500,
+  offset: 0,
+};
 
 const MEMBERS = {
   items: [
@@ -37,13 +63,16 @@ describe('LabPage', () => {
   let backend: HttpTestingController;
   let host: HTMLElement;
 
-  async function open(): Promise<void> {
+  /** Opens the page as whoever signInAs() chose; an owner's page also asks for the pending invitations. */
+  async function open(invitations: object = INVITATIONS): Promise<void> {
     TestBed.configureTestingModule({
       imports: [LabPage],
       providers: [
         provideRouter([]),
         provideHttpClient(withInterceptors([authInterceptor])),
         provideHttpClientTesting(),
+        // Dialogs close at once instead of after their exit animation.
+        { provide: MATERIAL_ANIMATIONS, useValue: { animationsDisabled: true } },
       ],
     });
     backend = TestBed.inject(HttpTestingController);
@@ -54,12 +83,33 @@ describe('LabPage', () => {
     const request = backend.expectOne((r) => r.url === '/api/labs/lab-1/members');
     expect(request.request.headers.get('Authorization')).toBe('Bearer jwt-1');
     request.flush(MEMBERS);
+    const owner = JSON.parse(localStorage.getItem(SESSION_STORAGE_KEY) ?? '{}').memberships?.[0]?.role === 'owner';
+    if (owner) {
+      TestBed.tick();
+      backend.expectOne((r) => r.url === '/api/labs/lab-1/invitations' && r.method === 'GET').flush(invitations);
+    }
     await fixture.whenStable();
+    fixture.detectChanges();
+  }
+
+  function text(element: Element | null | undefined): string {
+    return element?.textContent?.replace(/\s+/g, ' ').trim() ?? '';
+  }
+
+  function dialog(): HTMLElement | null {
+    return document.querySelector<HTMLElement>('mat-dialog-container');
+  }
+
+  async function settle(): Promise<void> {
+    TestBed.tick();
+    await fixture.whenStable();
+    fixture.detectChanges();
   }
 
   afterEach(() => {
     backend.verify();
     localStorage.clear();
+    TestBed.inject(MatDialog).closeAll();
   });
 
   function memberNames(): string[] {
@@ -78,6 +128,9 @@ describe('LabPage', () => {
     ]);
     expect(host.querySelector('form[aria-label="Add a member"]')).toBeNull();
     expect(host.querySelector('mat-select')).toBeNull();
+    expect(host.querySelector('.remove-member')).toBeNull();
+    // No invitations request was made (backend.verify) and no section is shown.
+    expect(host.querySelector('#invitations-heading')).toBeNull();
   });
 
   it('gives an owner the add-member form and a role picker for each member', async () => {
@@ -129,5 +182,154 @@ describe('LabPage', () => {
     TestBed.tick();
     backend.expectOne((r) => r.url === '/api/labs/lab-1/members' && r.method === 'GET').flush(MEMBERS);
     await fixture.whenStable();
+  });
+
+  it('gives an owner a remove control on every row, with "leave" on their own', async () => {
+    signInAs('u2', 'owner');
+    await open();
+    const labels = Array.from(host.querySelectorAll('.remove-member'), (b) => b.getAttribute('aria-label'));
+    expect(labels).toEqual(['Remove Ada Analyst', 'Leave this lab', 'Remove Remy Reviewer']);
+  });
+
+  it('asks before removing a member, then removes them and reloads the list', async () => {
+    signInAs('u2', 'owner');
+    await open();
+    host.querySelector<HTMLButtonElement>('[aria-label="Remove Remy Reviewer"]')?.click();
+    await settle();
+    expect(text(dialog()?.querySelector('h2'))).toBe('Remove Remy Reviewer?');
+    expect(text(dialog())).toContain('reviewer@example.org');
+    backend.expectNone('/api/labs/lab-1/members/u3');
+
+    dialog()?.querySelector<HTMLButtonElement>('.remove-confirm')?.click();
+    const removal = backend.expectOne('/api/labs/lab-1/members/u3');
+    expect(removal.request.method).toBe('DELETE');
+    removal.flush(null, { status: 204, statusText: 'No Content' });
+    // The dialog reports its result once it has closed, a turn later.
+    await new Promise((resolve) => setTimeout(resolve));
+    TestBed.tick();
+    const reload = backend.expectOne((r) => r.url === '/api/labs/lab-1/members' && r.method === 'GET');
+    reload.flush({ ...MEMBERS, items: MEMBERS.items.slice(0, 2), total: 2 });
+    await settle();
+    expect(memberNames()).toEqual(['Ada Analyst', 'Olga Owner (you)']);
+    expect(text(document.querySelector('.mat-mdc-snack-bar-label'))).toContain('Remy Reviewer was removed from Shaker Lab.');
+  });
+
+  it('sends nothing when the owner cancels the removal', async () => {
+    signInAs('u2', 'owner');
+    await open();
+    host.querySelector<HTMLButtonElement>('[aria-label="Remove Ada Analyst"]')?.click();
+    await settle();
+    dialog()?.querySelector<HTMLButtonElement>('[mat-dialog-close]')?.click();
+    await settle();
+    backend.expectNone('/api/labs/lab-1/members/u1');
+  });
+
+  it("shows the server's last_owner refusal inside the dialog and offers no retry", async () => {
+    signInAs('u2', 'owner');
+    await open();
+    host.querySelector<HTMLButtonElement>('[aria-label="Leave this lab"]')?.click();
+    await settle();
+    expect(text(dialog()?.querySelector('h2'))).toBe('Leave Shaker Lab?');
+    dialog()?.querySelector<HTMLButtonElement>('.remove-confirm')?.click();
+    backend.expectOne('/api/labs/lab-1/members/u2').flush(
+      { error: { code: 'last_owner', message: 'A lab needs at least one owner: make someone else owner first.' } },
+      { status: 409, statusText: 'Conflict' },
+    );
+    await settle();
+    expect(text(dialog()?.querySelector('[role="alert"] span'))).toBe(
+      'Olga Owner is the only owner of Shaker Lab. A lab needs at least one owner: make someone else owner first.',
+    );
+    expect(dialog()?.querySelector('.remove-confirm')).toBeNull();
+    expect(text(dialog()?.querySelector('[mat-dialog-close]'))).toBe('Close');
+    // The list was not reloaded: nobody left.
+    backend.expectNone((r) => r.url === '/api/labs/lab-1/members' && r.method === 'GET');
+  });
+
+  it('lists pending invitations with email, role, invited and expiry times', async () => {
+    signInAs('u2', 'owner');
+    await open();
+    const rows = Array.from(host.querySelectorAll('.invitations-table tr.mat-mdc-row'), (row) =>
+      Array.from(row.querySelectorAll('td'), (cell) => text(cell)),
+    );
+    expect(rows.map((r) => r.slice(0, 2))).toEqual([
+      ['newer@example.org', 'Viewer'],
+      ['older@example.org', 'Reviewer'],
+    ]);
+    const times = Array.from(host.querySelectorAll('.invitations-table time'), (t) => t.getAttribute('datetime'));
+    expect(times).toEqual([
+      '2026-03-02T09:15:00.000Z',
+      '2026-03-09T09:15:00.000Z',
+      '2026-03-01T08:00:00.000Z',
+      '2026-03-08T08:00:00.000Z',
+    ]);
+    expect(rows[0]?.[2]).toMatch(/^2 Mar 2026, \d\d:\d\d$/);
+    expect(rows[0]?.[3]).toMatch(/^9 Mar 2026, \d\d:\d\d$/);
+  });
+
+  it('says so when no invitation is pending', async () => {
+    signInAs('u2', 'owner');
+    await open({ items: [], total: 0, limit: 500, offset: 0 });
+    expect(host.querySelector('.invitations-table')).toBeNull();
+    expect(text(host.querySelector('.invitations .empty'))).toBe('No invitations are waiting for an answer.');
+  });
+
+  it('revokes an invitation and reloads the pending list', async () => {
+    signInAs('u2', 'owner');
+    await open();
+    host.querySelector<HTMLButtonElement>('[aria-label="Revoke the invitation for older@example.org"]')?.click();
+    const revoke = backend.expectOne('/api/labs/lab-1/invitations/i1');
+    expect(revoke.request.method).toBe('DELETE');
+    revoke.flush(null, { status: 204, statusText: 'No Content' });
+    TestBed.tick();
+    backend
+      .expectOne((r) => r.url === '/api/labs/lab-1/invitations' && r.method === 'GET')
+      .flush({ ...INVITATIONS, items: INVITATIONS.items.slice(0, 1), total: 1 });
+    await settle();
+    expect(Array.from(host.querySelectorAll('.invitation-email'), (e) => text(e))).toEqual(['newer@example.org']);
+    expect(text(document.querySelector('.mat-mdc-snack-bar-label'))).toContain(
+      'The invitation for older@example.org was revoked',
+    );
+  });
+
+  it('tells the owner an invitation was queued and shows it among the pending ones', async () => {
+    signInAs('u2', 'owner');
+    await open();
+    const email = host.querySelector<HTMLInputElement>('.add-email input');
+    if (!email) throw new Error('no email input');
+    email.value = 'fresh@example.org';
+    email.dispatchEvent(new Event('input'));
+    host.querySelector<HTMLButtonElement>('.add-submit')?.click();
+    backend.expectOne('/api/labs/lab-1/members').flush(
+      {
+        kind: 'invitation',
+        queued: true,
+        invitation: {
+          id: 'i3',
+          labId: 'lab-1',
+          email: 'fresh@example.org',
+          role: 'analyst',
+          invitedAt: '2026-03-03T10:00:00.000Z',
+          expiresAt: '2026-03-10T10:00:00.000Z',
+        },
+      },
+      { status: 201, statusText: 'Created' },
+    );
+    TestBed.tick();
+    const fresh = {
+      id: 'i3',
+      labId: 'lab-1',
+      email: 'fresh@example.org',
+      role: 'analyst',
+      invitedAt: '2026-03-03T10:00:00.000Z',
+      expiresAt: '2026-03-10T10:00:00.000Z',
+    };
+    backend
+      .expectOne((r) => r.url === '/api/labs/lab-1/invitations' && r.method === 'GET')
+      .flush({ ...INVITATIONS, items: [fresh, ...INVITATIONS.items], total: 3 });
+    await settle();
+    expect(text(document.querySelector('.mat-mdc-snack-bar-label'))).toContain(
+      'fresh@example.org has no account yet: an invitation to join as analyst is on its way by e-mail.',
+    );
+    expect(Array.from(host.querySelectorAll('.invitation-email'), (e) => text(e))[0]).toBe('fresh@example.org');
   });
 });
