@@ -13,6 +13,7 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { MatSlideToggleModule } from '@angular/material/slide-toggle';
 import { MatSnackBar } from '@angular/material/snack-bar';
+import { MatTooltipModule } from '@angular/material/tooltip';
 import { RouterLink } from '@angular/router';
 
 import { describeError } from '../../core/error-message';
@@ -48,6 +49,7 @@ export function revisionUrl(caseId: string, revision: number, origin = globalThi
     MatProgressBarModule,
     MatSelectModule,
     MatSlideToggleModule,
+    MatTooltipModule,
     ComparisonTable,
     RecheckChip,
     StoredRunsTable,
@@ -87,6 +89,7 @@ export class HistoryTab {
   protected readonly canReview = computed(() => this.role() === 'reviewer' || this.role() === 'owner');
   protected readonly canComment = computed(() => this.canAuthor() || this.canReview());
   protected readonly revision = computed(() => (this.current.hasValue() ? this.current.value() : null));
+  protected readonly hasRuns = computed(() => (this.revision()?.runs.length ?? 0) > 0);
 
   /** The pair being compared: by default the open revision against the one before it. */
   protected readonly leftNumber = linkedSignal(() => {
