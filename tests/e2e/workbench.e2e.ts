@@ -68,7 +68,15 @@ describe('workbench', () => {
     await openTab(page, 'Motion');
     await page.getByTestId('run-motion').click();
     await expect.poll(() => page.getByTestId('outcome').textContent(), { timeout: 60_000 }).toBe('holds upright');
-  }, 90_000);
+
+    // Saving creates the case with r1 and stores the motion run with it.
+    await page.getByLabel('Case title').fill('Tall rod, workbench test');
+    await page.getByRole('button', { name: /Save/ }).click();
+    await page.waitForURL((url) => /\/cases\/[^/]+\/r\/1\/motion$/.test(url.pathname), { timeout: 30_000 });
+    await expect.poll(() => page.getByTestId('revision').textContent()).toBe('r1');
+    await expect.poll(() => page.getByText('unsaved run').count()).toBe(0);
+    expect(await page.getByTestId('outcome').textContent()).toBe('holds upright');
+  }, 120_000);
 
   it('shows falls once the drive amplitude is lowered below the threshold', async () => {
     await openTab(page, 'Rig');
@@ -79,7 +87,12 @@ describe('workbench', () => {
     await expect.poll(() => page.getByText('These results belong to earlier inputs').count()).toBe(1);
     await page.getByTestId('run-motion').click();
     await expect.poll(() => page.getByTestId('outcome').textContent(), { timeout: 60_000 }).toBe('falls');
-  }, 90_000);
+
+    // The edited inputs become r2, with the run computed for them.
+    await page.getByRole('button', { name: /Save/ }).click();
+    await page.waitForURL((url) => /\/r\/2\/motion$/.test(url.pathname), { timeout: 30_000 });
+    await expect.poll(() => page.getByTestId('revision').textContent()).toBe('r2');
+  }, 120_000);
 
   it('finds the amplitude threshold of a fast drive within 5 % of averaged theory and exports the points as CSV', async () => {
     await page.goto(`${server.baseUrl}/cases/new`);
