@@ -1,7 +1,7 @@
 import { provideHttpClient, withInterceptors } from '@angular/common/http';
 import { HttpTestingController, TestRequest, provideHttpClientTesting } from '@angular/common/http/testing';
 import { ComponentFixture, TestBed } from '@angular/core/testing';
-import { provideRouter } from '@angular/router';
+import { Router, provideRouter } from '@angular/router';
 
 import { authInterceptor } from '../../core/auth-interceptor';
 import { LabRole, SESSION_STORAGE_KEY } from '../../core/session';
@@ -62,13 +62,14 @@ describe('LibraryPage', () => {
     await fixture.whenStable();
   }
 
-  async function open(role: LabRole): Promise<TestRequest> {
+  async function open(role: LabRole, url = '/'): Promise<TestRequest> {
     signInAs(role);
     TestBed.configureTestingModule({
       imports: [LibraryPage],
       providers: [provideRouter([]), provideHttpClient(withInterceptors([authInterceptor])), provideHttpClientTesting()],
     });
     backend = TestBed.inject(HttpTestingController);
+    await TestBed.inject(Router).navigateByUrl(url);
     fixture = TestBed.createComponent(LibraryPage);
     host = fixture.nativeElement as HTMLElement;
     fixture.detectChanges();
@@ -155,6 +156,26 @@ describe('LibraryPage', () => {
     byAuthor.flush(casePage(0, []));
     await settle();
     expect(host.querySelector('.create-button')).toBeNull();
+  });
+
+  it('starts from the filters in the address and keeps the address in step', async () => {
+    const first = await open('analyst', '/?q=rod&recheck=disputed&sort=title&page=2&size=50&bogus=1');
+    expect(first.request.params.get('search')).toBe('rod');
+    expect(first.request.params.get('recheck')).toBe('disputed');
+    expect(first.request.params.get('sort')).toBe('title');
+    expect(first.request.params.get('page')).toBe('2');
+    expect(first.request.params.get('pageSize')).toBe('50');
+    first.flush(casePage(60, ['Rod A'], 2, 50));
+    await settle();
+    expect(host.querySelector<HTMLInputElement>('input[type="search"]')?.value).toBe('rod');
+
+    click(host.querySelector('.mat-mdc-paginator-navigation-previous'));
+    casesRequest().flush(casePage(60, ['Rod B'], 1, 50));
+    await settle();
+    const url = TestBed.inject(Router).url;
+    expect(url).toContain('q=rod');
+    expect(url).toContain('sort=title');
+    expect(url).not.toContain('page=');
   });
 
   it('waits for the typing to pause before searching', async () => {

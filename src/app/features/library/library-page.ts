@@ -1,6 +1,6 @@
 import { BreakpointObserver } from '@angular/cdk/layout';
 import { DatePipe } from '@angular/common';
-import { ChangeDetectionStrategy, Component, ErrorHandler, computed, inject, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, ErrorHandler, computed, effect, inject, signal } from '@angular/core';
 import { rxResource, toObservable, toSignal } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatChipsModule } from '@angular/material/chips';
@@ -16,7 +16,7 @@ import { MatSlideToggleModule } from '@angular/material/slide-toggle';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { MatSortModule, Sort } from '@angular/material/sort';
 import { MatTableModule } from '@angular/material/table';
-import { Router, RouterLink } from '@angular/router';
+import { ActivatedRoute, ParamMap, Params, Router, RouterLink } from '@angular/router';
 import { debounceTime, distinctUntilChanged, map, of } from 'rxjs';
 
 import { describeError } from '../../core/error-message';
@@ -99,18 +99,21 @@ export class LibraryPage {
     ...(this.canEdit() ? ['actions'] : []),
   ]);
 
-  protected readonly searchText = signal('');
+  /** The table's state starts from the address, so a filtered, sorted page can be bookmarked or shared. */
+  private readonly route = inject(ActivatedRoute);
+  private readonly initial = queryFromUrl(this.route.snapshot.queryParamMap);
+  protected readonly searchText = signal(this.initial.search);
   private readonly search = toSignal(
     toObservable(this.searchText).pipe(debounceTime(SEARCH_DEBOUNCE_MS), distinctUntilChanged()),
-    { initialValue: '' },
+    { initialValue: this.initial.search },
   );
-  protected readonly tag = signal('');
-  protected readonly author = signal('');
-  protected readonly recheck = signal<RecheckState | ''>('');
-  protected readonly archived = signal(false);
-  protected readonly sort = signal<Sort>({ active: 'updated', direction: 'desc' });
-  protected readonly page = signal(1);
-  protected readonly pageSize = signal(PAGE_SIZES[1]);
+  protected readonly tag = signal(this.initial.tag);
+  protected readonly author = signal(this.initial.author);
+  protected readonly recheck = signal<RecheckState | ''>(this.initial.recheck);
+  protected readonly archived = signal(this.initial.archived);
+  protected readonly sort = signal<Sort>(sortOf(this.initial.sort));
+  protected readonly page = signal(this.initial.page);
+  protected readonly pageSize = signal(this.initial.pageSize);
 
   protected readonly query = computed<CaseQuery>(() => ({
     search: this.search(),
@@ -146,6 +149,13 @@ export class LibraryPage {
   protected readonly filtered = computed(
     () => this.search().trim() !== '' || this.tag() !== '' || this.author() !== '' || this.recheck() !== '',
   );
+
+  constructor() {
+    effect(() => {
+      const query = this.query();
+      void this.router.navigate([], { relativeTo: this.route, queryParams: urlOfQuery(query), replaceUrl: true });
+    });
+  }
 
   protected setSearch(value: string): void {
     this.searchText.set(value);
@@ -232,6 +242,46 @@ export class LibraryPage {
       error: (error: unknown) => this.errorHandler.handleError(error),
     });
   }
+}
+
+const DEFAULT_SORT: CaseSort = '-updated';
+const SORTS: readonly CaseSort[] = ['-updated', 'updated', 'title', '-title'];
+
+/** The address's query parameters as a table query; anything unknown falls back to the defaults. */
+export function queryFromUrl(params: ParamMap): CaseQuery {
+  const recheck = params.get('recheck') ?? '';
+  const sort = params.get('sort') ?? DEFAULT_SORT;
+  const page = Number(params.get('page') ?? 1);
+  const size = Number(params.get('size') ?? PAGE_SIZES[1]);
+  return {
+    search: params.get('q') ?? '',
+    tag: params.get('tag') ?? '',
+    author: params.get('author') ?? '',
+    recheck: (RECHECK_STATES as readonly string[]).includes(recheck) ? (recheck as RecheckState) : '',
+    archived: params.get('archived') === 'true',
+    sort: (SORTS as readonly string[]).includes(sort) ? (sort as CaseSort) : DEFAULT_SORT,
+    page: Number.isInteger(page) && page >= 1 ? page : 1,
+    pageSize: PAGE_SIZES.includes(size) ? size : PAGE_SIZES[1],
+  };
+}
+
+/** Only what differs from the defaults goes into the address. */
+function urlOfQuery(query: CaseQuery): Params {
+  return {
+    q: query.search.trim() || null,
+    tag: query.tag || null,
+    author: query.author || null,
+    recheck: query.recheck || null,
+    archived: query.archived ? 'true' : null,
+    sort: query.sort === DEFAULT_SORT ? null : query.sort,
+    page: query.page === 1 ? null : query.page,
+    size: query.pageSize === PAGE_SIZES[1] ? null : query.pageSize,
+  };
+}
+
+function sortOf(sort: CaseSort): Sort {
+  const active = sort.replace('-', '');
+  return { active, direction: sort.startsWith('-') ? 'desc' : 'asc' };
 }
 
 function isCreated(value: unknown): value is { id: string; latestRevision: number } {
