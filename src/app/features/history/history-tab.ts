@@ -130,6 +130,12 @@ export class HistoryTab {
   protected readonly commentText = signal('');
   protected readonly posting = signal(false);
 
+  /** A compared run by its kind ("Motion run"), or by the start of its id when it is no longer listed. */
+  protected runName(runId: string): string {
+    const kind = this.revision()?.runs.find((r) => r.id === runId)?.kind;
+    return kind ? `${kind.charAt(0).toUpperCase()}${kind.slice(1)} run` : `Run ${runId.slice(0, 8)}`;
+  }
+
   protected revisionLink(revision: number, tab = 'history'): string[] {
     return ['/cases', this.key()?.caseId ?? '', 'r', String(revision), tab];
   }
