@@ -9,8 +9,9 @@ import { seedLibrary } from './seed-library';
 
 export const DEMO_LAB_NAME = 'Brightwater Shaker Lab';
 
-export const DEMO_ACCOUNTS: ReadonlyArray<{ email: string; name: string; role: LabRole; password: string }> = [
-  { email: 'owner@quiverpoint.test', name: 'Odile Owner', role: 'owner', password: 'quiver-owner' },
+/** The demo owner is also the local site administrator, so the mail sink page works without SQL. */
+export const DEMO_ACCOUNTS: ReadonlyArray<{ email: string; name: string; role: LabRole; password: string; siteAdmin?: boolean }> = [
+  { email: 'owner@quiverpoint.test', name: 'Odile Owner', role: 'owner', password: 'quiver-owner', siteAdmin: true },
   { email: 'analyst@quiverpoint.test', name: 'Ada Analyst', role: 'analyst', password: 'quiver-analyst' },
   { email: 'reviewer@quiverpoint.test', name: 'Rui Reviewer', role: 'reviewer', password: 'quiver-reviewer' },
   { email: 'viewer@quiverpoint.test', name: 'Vera Viewer', role: 'viewer', password: 'quiver-viewer' },
@@ -24,7 +25,10 @@ export async function seedDemo(sequelize: Sequelize): Promise<{ labId: string; c
     await sequelize.transaction(async (transaction) => {
       let user = await User.findOne({ where: { email: account.email }, transaction });
       if (!user) {
-        user = await User.create({ email: account.email, name: account.name, passwordHash: await hashPassword(account.password) }, { transaction });
+        user = await User.create(
+          { email: account.email, name: account.name, passwordHash: await hashPassword(account.password), isSiteAdmin: account.siteAdmin ?? false },
+          { transaction },
+        );
         created++;
       }
       const [, membershipCreated] = await Membership.findOrCreate({

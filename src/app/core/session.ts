@@ -8,6 +8,8 @@ export interface User {
   readonly id: string;
   readonly name: string;
   readonly email: string;
+  /** Site administrators see the local mail sink and outbox; the server checks it on every admin route. */
+  readonly isSiteAdmin: boolean;
 }
 
 export interface Lab {
@@ -156,7 +158,7 @@ export function parseUser(value: unknown): User | null {
   const id = idOf(value['id']);
   const { name, email } = value;
   if (id === null || typeof name !== 'string' || typeof email !== 'string') return null;
-  return { id, name, email };
+  return { id, name, email, isSiteAdmin: value['isSiteAdmin'] === true };
 }
 
 const ROLES: readonly LabRole[] = ['owner', 'analyst', 'reviewer', 'viewer'];

@@ -66,6 +66,7 @@ export class Shell {
       { label: 'New case', icon: 'add_circle', link: '/cases/new', exact: false },
     ];
     if (lab) items.push({ label: 'Lab members', icon: 'group', link: `/labs/${lab.id}`, exact: false });
+    if (this.user()?.isSiteAdmin) items.push({ label: 'Mail', icon: 'mail', link: '/admin/mail', exact: false });
     return items;
   });
 
