@@ -60,6 +60,7 @@ export interface RemoveMemberData {
       background: var(--mat-sys-error-container);
       color: var(--mat-sys-on-error-container);
     }
+    .refusal mat-icon { flex: none; }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
