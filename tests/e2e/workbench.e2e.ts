@@ -4,12 +4,11 @@
  * and a phone size (test-results/screenshots/workbench-*.png, for looking at).
  */
 import { readFileSync } from 'node:fs';
-import { join } from 'node:path';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 
 import { templateCase } from '../../shared/case/templates';
-import { DESKTOP, NARROW, SCREENSHOT_DIR, launchBrowser, screenshot, type TestBrowser } from './support/browser';
+import { DESKTOP, NARROW, launchBrowser, screenshot, type TestBrowser } from './support/browser';
 import { DEMO_ACCOUNTS, startE2eServer, type E2eServer } from './support/server';
 
 const analyst = DEMO_ACCOUNTS.find((a) => a.role === 'analyst') ?? DEMO_ACCOUNTS[0];
@@ -177,8 +176,6 @@ describe('workbench', () => {
         await openTab(page, tab);
         await page.waitForTimeout(1200);
         await screenshot(page, `workbench-${name}-${tab.toLowerCase()}`);
-        // The page scrolls inside the shell, so the whole tab is captured from its panel as well.
-        await page.locator('.tab-panel').screenshot({ path: join(SCREENSHOT_DIR, `workbench-${name}-${tab.toLowerCase()}-panel.png`) });
         const overflow = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
         expect(overflow, `${tab} at ${name} width scrolls sideways`).toBeLessThanOrEqual(1);
       }

@@ -10,12 +10,26 @@ import { defaultChartGrid } from '../../../../../shared/engine/chart';
 import { defaultBasinGrid } from '../../../../../shared/engine/sweep';
 import { Plot, type PlotCsv, type PlotSpec } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
-import { OUTCOME_COLORS, OUTCOME_LABELS, formatIn } from '../format';
+import { OUTCOME_COLORS, OUTCOME_LABELS, formatIn, formatNumber } from '../format';
 import { toDisplay, unitLabelOf } from '../rig/rig-form';
 
 /** Multipliers above this are drawn in the darkest red (the hover still shows the true value). */
 const MULTIPLIER_CLIP = 2;
 const OUTCOMES = Object.keys(OUTCOME_LABELS);
+
+/** Ticks 1, 2, 5 x 10^k inside [lo, hi], written in full (Plotly's own log ticks abbreviate 20 as "2"). */
+export function logTicks(lo: number, hi: number): { tickvals: number[]; ticktext: string[] } {
+  const tickvals: number[] = [];
+  const [a, b] = lo < hi ? [lo, hi] : [hi, lo];
+  if (!(a > 0)) return { tickvals, ticktext: [] };
+  for (let k = Math.floor(Math.log10(a)); k <= Math.ceil(Math.log10(b)); k++) {
+    for (const m of [1, 2, 5]) {
+      const v = m * 10 ** k;
+      if (v >= a * (1 - 1e-9) && v <= b * (1 + 1e-9)) tickvals.push(v);
+    }
+  }
+  return { tickvals, ticktext: tickvals.map((v) => formatNumber(v, 3)) };
+}
 
 /** A stepped colour scale, one band per outcome index (z from -0.5 to n - 0.5). */
 function outcomeColorscale(): Array<[number, string]> {
@@ -93,10 +107,11 @@ export class MapTab {
       marker: { symbol: 'star', size: 16, color: '#f5b301', line: { color: '#1f2937', width: 1.5 } },
       hovertemplate: `this case<br>largest |μ| ${c.caseMark.maxMultiplier.toPrecision(5)}<extra></extra>`,
     });
-    const log = (axis: 'x' | 'y') => ((axis === 'x' ? c.grid.x.scale : c.grid.y.scale) === 'log' ? 'log' : 'linear');
+    const axis = (scale: 'linear' | 'log' | undefined, values: number[]): PlotSpec =>
+      scale === 'log' ? { type: 'log', ...logTicks(values[0], values[values.length - 1]) } : { type: 'linear' };
     const layout: PlotSpec = {
-      xaxis: { title: { text: `drive frequency (${fUnit})` }, type: log('x'), dtick: log('x') === 'log' ? 'D2' : undefined },
-      yaxis: { title: { text: `drive amplitude (${aUnit})` }, type: log('y'), dtick: log('y') === 'log' ? 'D2' : undefined },
+      xaxis: { title: { text: `drive frequency (${fUnit})` }, ...axis(c.grid.x.scale, x) },
+      yaxis: { title: { text: `drive amplitude (${aUnit})` }, ...axis(c.grid.y.scale, y) },
       margin: { l: 64, r: 16, t: 40, b: 52 },
     };
     const rows: Array<Array<number | string>> = [];

@@ -198,6 +198,33 @@ export class SweepsTab {
     return { data, layout, csv };
   });
 
+  /** The points of the running sweep finished so far, drawn while the rest are computed. */
+  protected readonly livePlot = computed(() => {
+    if (!this.job.running()) return null;
+    const points = this.workspace.sweepPartial();
+    if (points.length === 0) return null;
+    const dimension = this.dimension();
+    const units = this.units();
+    const data: PlotSpec[] = Object.keys(OUTCOME_LABELS).map((outcome) => {
+      const mine = points.filter((p) => p.outcome === outcome);
+      return {
+        type: 'scatter', mode: 'markers', name: OUTCOME_LABELS[outcome],
+        x: mine.map((p) => toDisplay(p.value, dimension, units)),
+        y: mine.map((p) => p.slowFrequencyHz ?? 0),
+        marker: { size: 9, color: OUTCOME_COLORS[outcome] },
+      };
+    });
+    const layout: PlotSpec = {
+      xaxis: { title: { text: `${this.field().label} (${this.unit() || '1'})` } },
+      yaxis: { title: { text: 'slow frequency (Hz)' }, rangemode: 'tozero' },
+    };
+    const csv: PlotCsv = {
+      columns: [{ header: this.field().label, unit: this.unit() || undefined }, { header: 'outcome' }, { header: 'slow frequency', unit: 'Hz' }],
+      rows: points.map((p) => [toDisplay(p.value, dimension, units), p.outcome ?? 'invalid', p.slowFrequencyHz]),
+    };
+    return { data, layout, csv };
+  });
+
   /** The field whose default range was set last; a new field gets a new default range. */
   private rangeFor: string | null = null;
 
