@@ -14,6 +14,7 @@ import { EMPTY, catchError, switchMap, tap } from 'rxjs';
 import { downloadText } from '../../ui/csv';
 import { caseFileJson, caseFileName, readCaseFile } from './case-file';
 import { CASE_TABS } from './case-tabs';
+import { CaseRepositoryError } from './case-repository-error';
 import { CaseWorkspace, messageOf } from './case-workspace';
 
 /** The case page: toolbar (title, revision, Save, case file in and out) over the tab bar of the case's tabs. */
@@ -45,6 +46,8 @@ export class CasePage {
 
   protected readonly tabs = CASE_TABS;
   protected readonly problem = signal<string | null>(null);
+  /** The last Save was refused because a newer revision exists: the banner offers to open it. */
+  protected readonly staleSave = signal(false);
   protected readonly opened = this.workspace.opened;
   protected readonly revisionLabel = computed(() => {
     const opened = this.opened();
@@ -55,12 +58,14 @@ export class CasePage {
   protected readonly canSave = computed(
     () => !this.workspace.saving() && !this.workspace.readOnly() && this.workspace.valid() && !this.workspace.loading(),
   );
+  protected readonly edited = computed(() => !this.workspace.isNew() && (this.workspace.dirty() || this.workspace.titleEdited()));
   protected readonly unsavedRuns = computed(() => this.workspace.runs().length);
   protected readonly saveHint = computed(() => {
     if (this.workspace.readOnly()) return 'Your role cannot save this case';
     if (!this.workspace.valid()) return 'Some Rig fields need attention';
     if (this.workspace.isNew()) return 'Create the case with its first revision';
     if (this.workspace.dirty()) return 'Save these inputs as a new revision';
+    if (this.workspace.titleEdited()) return 'Save the new title (no new revision)';
     return this.unsavedRuns() > 0 ? 'Store the new runs with this revision' : 'Nothing new to save';
   });
 
@@ -69,7 +74,7 @@ export class CasePage {
     this.route.paramMap
       .pipe(
         switchMap((params) => {
-          this.problem.set(null);
+          this.dismissProblem();
           const caseId = params.get('caseId');
           if (!caseId) {
             this.workspace.startNew(this.route.snapshot.queryParamMap.get('preset'));
@@ -89,16 +94,23 @@ export class CasePage {
   }
 
   protected save(): void {
-    this.problem.set(null);
+    this.dismissProblem();
     this.workspace.save().subscribe({
-      next: ({ saved, runsStored, newRevision }) => {
+      next: ({ saved, runsStored, newRevision, renamed }) => {
         const runs = runsStored === 1 ? '1 run' : `${runsStored} runs`;
-        const what = newRevision ? `Saved as r${saved.revision}` : `Stored with r${saved.revision}`;
+        const what = newRevision
+          ? `Saved as r${saved.revision}`
+          : renamed && !runsStored
+            ? 'Title saved'
+            : `Stored with r${saved.revision}`;
         this.snackBar.open(`${what}${runsStored ? ` with ${runs}` : ''}.`, 'OK', { duration: 5000 });
         const tab = this.currentTab();
         void this.router.navigate(['/cases', saved.caseId, 'r', saved.revision, tab]);
       },
-      error: (error: unknown) => this.problem.set(messageOf(error)),
+      error: (error: unknown) => {
+        this.problem.set(messageOf(error));
+        this.staleSave.set(error instanceof CaseRepositoryError && error.code === 'stale-revision');
+      },
     });
   }
 
@@ -114,10 +126,11 @@ export class CasePage {
     try {
       const result = readCaseFile(await file.text());
       if (!result.ok) {
+        this.dismissProblem();
         this.problem.set(`${file.name}: ${result.message}`);
         return;
       }
-      this.problem.set(null);
+      this.dismissProblem();
       this.workspace.applyParams(result.params);
       if (this.workspace.isNew()) this.workspace.title.set(result.title);
       this.snackBar.open(`Loaded "${result.title}" from ${file.name}. Save to keep it as a revision.`, 'OK', { duration: 5000 });
@@ -128,6 +141,13 @@ export class CasePage {
 
   protected dismissProblem(): void {
     this.problem.set(null);
+    this.staleSave.set(false);
+  }
+
+  /** After a refused stale save: reads the case's latest revision (the edits made here are let go). */
+  protected openLatest(): void {
+    const opened = this.opened();
+    if (opened) void this.router.navigate(['/cases', opened.caseId]);
   }
 
   private currentTab(): string {

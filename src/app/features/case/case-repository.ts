@@ -42,6 +42,12 @@ export interface NewCase {
   readonly note: string;
 }
 
+/** The name and tags a case carries across all its revisions. */
+export interface CaseLabel {
+  readonly title: string;
+  readonly tags: readonly string[];
+}
+
 /** Where case revisions and their runs are kept (the browser's storage now, the API later). */
 export interface CaseRepository {
   /** The given revision, or the latest when `revision` is absent. */
@@ -50,6 +56,8 @@ export interface CaseRepository {
   /** A new revision on top of `baseRevision`; fails with code `stale-revision` when that is no longer the latest. */
   saveRevision(caseId: string, baseRevision: number, params: CaseParams, note: string): Observable<OpenedCase>;
   saveRun(caseId: string, revision: number, run: RunRecord): Observable<StoredRun>;
+  /** Renames the case (no new revision: the title is not part of the parameters); replaces the tags when given. */
+  rename(caseId: string, title: string, tags?: readonly string[]): Observable<CaseLabel>;
 }
 
 export const CASE_REPOSITORY = new InjectionToken<CaseRepository>('CASE_REPOSITORY', {

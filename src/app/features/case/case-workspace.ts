@@ -32,6 +32,8 @@ export interface SaveOutcome {
   readonly saved: OpenedCase;
   readonly runsStored: number;
   readonly newRevision: boolean;
+  /** The title was saved (an existing case renamed). */
+  readonly renamed: boolean;
 }
 
 /**
@@ -87,6 +89,12 @@ export class CaseWorkspace {
     const opened = this.openedState();
     return opened === null || opened.paramsDigest !== this.draftDigest();
   });
+  /** The title field differs from the stored title (a rename is saved with the next Save, without a new revision). */
+  readonly titleEdited = computed(() => {
+    const opened = this.openedState();
+    const title = this.title().trim();
+    return opened !== null && title !== '' && title !== opened.title;
+  });
   readonly storedRuns = computed<readonly StoredRun[]>(() => this.openedState()?.runs ?? []);
 
   readonly motion = this.motionState.asReadonly();
@@ -122,8 +130,9 @@ export class CaseWorkspace {
 
   /** Opens a stored revision (the latest when `revision` is absent); keeps state when it is already open. */
   open(caseId: string, revision?: number): Observable<OpenedCase> {
+    // Asking for the latest always reads it again: someone may have saved since this page opened the case.
     const current = this.openedState();
-    if (current && current.caseId === caseId && (revision === undefined || current.revision === revision)) {
+    if (current && current.caseId === caseId && revision !== undefined && current.revision === revision) {
       return of(current);
     }
     this.reset();
@@ -216,8 +225,8 @@ export class CaseWorkspace {
   }
 
   /**
-   * Saves: a new case, or a new revision when the draft changed, then every session run computed for the saved
-   * parameters. Errors carry a message meant for the user (see `messageOf`).
+   * Saves: a new case, or a changed title and then a new revision when the draft changed, then every session run
+   * computed for the saved parameters. Errors carry a message meant for the user (see `messageOf`).
    */
   save(note = ''): Observable<SaveOutcome> {
     if (!this.valid()) {
@@ -226,18 +235,20 @@ export class CaseWorkspace {
     const opened = this.openedState();
     const params = this.draftState();
     const newRevision = opened === null || this.dirty();
-    const base$: Observable<OpenedCase> =
-      opened === null
-        ? this.repository.create({
-            labId: this.session.currentLab()?.id ?? null,
-            title: this.title().trim() || 'Untitled case',
-            tags: [],
-            params,
-            note,
-          })
-        : newRevision
-          ? this.repository.saveRevision(opened.caseId, opened.revision, params, note)
-          : of(opened);
+    // The rename goes first: it cannot be stale, so a refused revision leaves nothing half-saved but the title.
+    const renamed = opened !== null && this.titleEdited();
+    const renamed$: Observable<OpenedCase | null> =
+      renamed && opened !== null
+        ? this.repository.rename(opened.caseId, this.title()).pipe(
+            map((label) => {
+              const view: OpenedCase = { ...opened, title: label.title, tags: label.tags };
+              this.openedState.set(view);
+              this.title.set(label.title);
+              return view;
+            }),
+          )
+        : of(opened);
+    const base$ = renamed$.pipe(switchMap((current) => this.saveParams(current, params, newRevision, note)));
     this.savingState.set(true);
     return base$.pipe(
       switchMap((saved) => {
@@ -250,12 +261,25 @@ export class CaseWorkspace {
             this.runsState.update((runs) => runs.filter((r) => !pending.includes(r)));
             const view: OpenedCase = { ...saved, runs: [...saved.runs, ...stored] };
             this.openedState.set(view);
-            return { saved: view, runsStored: stored.length, newRevision };
+            return { saved: view, runsStored: stored.length, newRevision, renamed };
           }),
         );
       }),
       finalize(() => this.savingState.set(false)),
     );
+  }
+
+  private saveParams(opened: OpenedCase | null, params: CaseParams, newRevision: boolean, note: string): Observable<OpenedCase> {
+    if (opened === null) {
+      return this.repository.create({
+        labId: this.session.currentLab()?.id ?? null,
+        title: this.title().trim() || 'Untitled case',
+        tags: [],
+        params,
+        note,
+      });
+    }
+    return newRevision ? this.repository.saveRevision(opened.caseId, opened.revision, params, note) : of(opened);
   }
 
   private readForm(): void {

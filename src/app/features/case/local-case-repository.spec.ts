@@ -53,4 +53,25 @@ describe('LocalCaseRepository', () => {
     const error: unknown = await firstValueFrom(repository.saveRun(saved.caseId, 1, foreign)).catch((e: unknown) => e);
     expect((error as CaseRepositoryError).code).toBe('invalid');
   });
+  it('renames a case for every revision without adding one, and replaces tags only when given', async () => {
+    const first = await firstValueFrom(repository.create({ labId: null, title: 'Rig C', tags: ['teaching'], params: templateCase(), note: '' }));
+    await firstValueFrom(repository.saveRevision(first.caseId, 1, templateCase(), ''));
+    const label = await firstValueFrom(repository.rename(first.caseId, '  Rig C, long stroke '));
+    expect(label).toEqual({ title: 'Rig C, long stroke', tags: ['teaching'] });
+    const r1 = await firstValueFrom(repository.open(first.caseId, 1));
+    expect(r1.title).toBe('Rig C, long stroke');
+    expect(r1.latestRevision).toBe(2);
+    expect((await firstValueFrom(repository.rename(first.caseId, 'Rig C', ['shaker', 'upright']))).tags).toEqual(['shaker', 'upright']);
+    expect((await firstValueFrom(repository.open(first.caseId))).tags).toEqual(['shaker', 'upright']);
+  });
+
+  it('refuses an empty title and an unknown case', async () => {
+    const first = await firstValueFrom(repository.create({ labId: null, title: 'Rig D', tags: [], params: templateCase(), note: '' }));
+    const empty: unknown = await firstValueFrom(repository.rename(first.caseId, '   ')).catch((e: unknown) => e);
+    expect(empty).toBeInstanceOf(CaseRepositoryError);
+    expect((empty as CaseRepositoryError).code).toBe('invalid');
+    expect((await firstValueFrom(repository.open(first.caseId))).title).toBe('Rig D');
+    const missing: unknown = await firstValueFrom(repository.rename('case-nope', 'X')).catch((e: unknown) => e);
+    expect((missing as CaseRepositoryError).code).toBe('not-found');
+  });
 });

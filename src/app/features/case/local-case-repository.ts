@@ -5,12 +5,7 @@ import { caseDigest } from '../../../../shared/case/canonical';
 import type { CaseParams } from '../../../../shared/case/case-schema';
 import { parseCase } from '../../../../shared/case/validate';
 import type { RunRecord } from '../../../../shared/engine/run-record';
-import type {
-  CaseRepository,
-  NewCase,
-  OpenedCase,
-  StoredRun,
-} from './case-repository';
+import type { CaseLabel, CaseRepository, NewCase, OpenedCase, StoredRun } from './case-repository';
 import { CaseRepositoryError } from './case-repository-error';
 
 /** Storage key of the browser-local case library. */
@@ -118,6 +113,20 @@ export class LocalCaseRepository implements CaseRepository {
       rev.runs.push(stored);
       this.write(library);
       return of(stored);
+    });
+  }
+
+  rename(caseId: string, title: string, tags?: readonly string[]): Observable<CaseLabel> {
+    return defer(() => {
+      const library = this.read();
+      const stored = library[caseId];
+      if (!stored) return throwError(() => new CaseRepositoryError('not-found', 'That case does not exist in this browser.'));
+      const trimmed = title.trim();
+      if (!trimmed) return throwError(() => new CaseRepositoryError('invalid', 'A case needs a title.', 'title'));
+      stored.title = trimmed;
+      if (tags) stored.tags = [...tags];
+      this.write(library);
+      return of({ title: stored.title, tags: [...stored.tags] });
     });
   }
 

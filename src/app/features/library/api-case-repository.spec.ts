@@ -87,4 +87,29 @@ describe('ApiCaseRepository', () => {
     expect(error.code).toBe('invalid');
     backend.expectNone(() => true);
   });
+  it('renames with PATCH and answers with the stored title and tags', async () => {
+    const renamed = firstValueFrom(repository.rename('c1', ' Teaching rod, long stroke '));
+    const request = backend.expectOne('/api/cases/c1');
+    expect(request.request.method).toBe('PATCH');
+    expect(request.request.body).toEqual({ title: 'Teaching rod, long stroke' });
+    request.flush({ ...DETAIL, title: 'Teaching rod, long stroke' });
+    expect(await renamed).toEqual({ title: 'Teaching rod, long stroke', tags: ['teaching'] });
+
+    const retagged = firstValueFrom(repository.rename('c1', 'Teaching rod', ['shaker']));
+    const second = backend.expectOne('/api/cases/c1');
+    expect(second.request.body).toEqual({ title: 'Teaching rod', tags: ['shaker'] });
+    second.flush({ ...DETAIL, tags: ['shaker'] });
+    expect((await retagged).tags).toEqual(['shaker']);
+  });
+
+  it('reports a rename refused for the role in words', async () => {
+    const renamed = firstValueFrom(repository.rename('c1', 'New name')).catch((e: unknown) => e);
+    backend
+      .expectOne('/api/cases/c1')
+      .flush({ error: { code: 'role_too_low', message: 'Your role in this lab cannot do that.' } }, { status: 403, statusText: 'Forbidden' });
+    const error = await renamed;
+    expect(error).toBeInstanceOf(CaseRepositoryError);
+    expect((error as CaseRepositoryError).code).toBe('storage');
+    expect((error as CaseRepositoryError).message).toMatch(/role/i);
+  });
 });

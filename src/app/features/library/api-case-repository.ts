@@ -5,10 +5,10 @@ import { Observable, catchError, map, switchMap, throwError } from 'rxjs';
 import type { CaseParams } from '../../../../shared/case/case-schema';
 import { RUN_KINDS, type RunKind, type RunRecord, type RunSettings } from '../../../../shared/engine/run-record';
 import { apiErrorOf, describeError } from '../../core/error-message';
-import type { CaseRepository, NewCase, OpenedCase, StoredRun } from '../case/case-repository';
+import type { CaseLabel, CaseRepository, NewCase, OpenedCase, StoredRun } from '../case/case-repository';
 import { CaseRepositoryError } from '../case/case-repository-error';
 import { LibraryApi } from './library-api';
-import { CaseDetail, RevisionDetail, RunView, isRecord } from './library-types';
+import { CaseDetail, RevisionDetail, RunView, isRecord, parseCaseDetail } from './library-types';
 
 /** Roles that may save revisions and runs (the server enforces the same). */
 const WRITERS: readonly string[] = ['analyst', 'owner'];
@@ -108,6 +108,16 @@ export class ApiCaseRepository implements CaseRepository {
         const stored = storedRunOf(view);
         if (!stored) throw new CaseRepositoryError('storage', 'The server stored the run but answered in an unexpected way.');
         return stored;
+      }),
+      catchError((error: unknown) => throwError(() => repositoryErrorOf(error))),
+    );
+  }
+
+  rename(caseId: string, title: string, tags?: readonly string[]): Observable<CaseLabel> {
+    return this.api.updateCase(caseId, { title: title.trim(), ...(tags ? { tags: [...tags] } : {}) }).pipe(
+      map((reply) => {
+        const detail = parseCaseDetail(reply);
+        return { title: detail.title, tags: detail.tags };
       }),
       catchError((error: unknown) => throwError(() => repositoryErrorOf(error))),
     );
