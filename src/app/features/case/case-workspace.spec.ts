@@ -97,6 +97,25 @@ describe('CaseWorkspace', () => {
     expect(workspace.dirty()).toBe(true);
   });
 
+  it('keeps an opened case unedited through a unit switch and a field put back as it was shown', async () => {
+    const repository = TestBed.inject(LocalCaseRepository);
+    const params = templateCase();
+    params.start.angle = 0.15;
+    params.drive.amplitude = 0.0123456789;
+    const created = await firstValueFrom(repository.create({ labId: null, title: 'Exact rig', tags: [], params, note: '' }));
+    await firstValueFrom(workspace.open(created.caseId, 1));
+    const amplitude = workspace.form.group.controls.drive.controls.amplitude;
+    workspace.setUnits({ length: 'cm', frequency: 'rpm', angle: 'rad' });
+    const shown = amplitude.value;
+    expect(String(shown)).toBe('1.23457');
+    amplitude.setValue(2);
+    expect(workspace.dirty()).toBe(true);
+    amplitude.setValue(shown);
+    expect(workspace.dirty()).toBe(false);
+    expect(workspace.draftDigest()).toBe(created.paramsDigest);
+    expect(workspace.draft().start.angle).toBe(0.15);
+  });
+
   it('refuses to save while a field needs attention', async () => {
     workspace.startNew(null);
     workspace.form.group.controls.body.controls.length.setValue(-1);

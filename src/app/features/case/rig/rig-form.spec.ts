@@ -1,3 +1,4 @@
+import { caseDigest } from '../../../../../shared/case/canonical';
 import { getField } from '../../../../../shared/case/case-fields';
 import type { CaseParams } from '../../../../../shared/case/case-schema';
 import { DEMO_RIGS, templateCase } from '../../../../../shared/case/templates';
@@ -31,7 +32,39 @@ describe('RigForm', () => {
     expect(c.body.controls.length.value).toBe(200);
     expect(c.drive.controls.amplitude.value).toBe(10);
     expect(c.drive.controls.frequency.value).toBe(40);
-    expect(c.start.controls.angle.value).toBeCloseTo(5.729577951, 8);
+    expect(String(c.start.controls.angle.value)).toBe('5.72958');
+  });
+
+  it('shows at most 6 significant digits, without trailing zeros', () => {
+    const params = structuredClone(DEMO_RIGS[0].params);
+    params.start.angle = 0.15;
+    params.drive.amplitude = 0.0123456789;
+    const form = new RigForm(params);
+    const c = form.group.controls;
+    expect(String(c.start.controls.angle.value)).toBe('8.59437');
+    expect(String(c.drive.controls.amplitude.value)).toBe('12.3457');
+    form.setUnits({ length: 'cm', frequency: 'rpm', angle: 'rad' });
+    expect(String(c.start.controls.angle.value)).toBe('0.15');
+    expect(String(c.drive.controls.amplitude.value)).toBe('1.23457');
+  });
+
+  it('keeps every field the user did not edit exactly as stored, through display and unit switches', () => {
+    for (const rig of DEMO_RIGS) {
+      const params = structuredClone(rig.params);
+      params.drive.amplitude = 0.0123456789;
+      const stored = caseDigest(params);
+      const form = new RigForm(params);
+      expect(caseDigest(parsed(form)), rig.id).toBe(stored);
+      form.setUnits({ length: 'cm', frequency: 'rpm', angle: 'rad' });
+      form.setUnits({ length: 'm', frequency: 'Hz', angle: 'deg' });
+      expect(caseDigest(parsed(form)), rig.id).toBe(stored);
+
+      // An edited field takes the typed value; the others keep every stored digit.
+      form.group.controls.drive.controls.frequency.setValue(41.5);
+      const edited = parsed(form);
+      expect(edited.drive.frequency).toBeCloseTo(41.5, 12);
+      expect(caseDigest(edited), rig.id).toBe(caseDigest({ ...params, drive: { ...params.drive, frequency: edited.drive.frequency } }));
+    }
   });
 
   for (const units of [

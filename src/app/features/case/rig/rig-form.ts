@@ -50,6 +50,16 @@ export function toDisplay(si: number, dimension: Dimension, units: DisplayUnits)
   return Number.isFinite(value) ? Number(value.toPrecision(12)) : value;
 }
 
+/** Significant digits a Rig field shows; the stored SI value keeps all of its digits (see RigForm). */
+export const SHOWN_DIGITS = 6;
+
+/** SI value as a Rig field shows it: in the display unit, at most SHOWN_DIGITS significant digits. */
+export function toShown(si: number, dimension: Dimension, units: DisplayUnits): number {
+  const id = unitIdOf(dimension, units);
+  const value = id === null ? si : fromSi(si, id);
+  return Number.isFinite(value) ? Number(value.toPrecision(SHOWN_DIGITS)) : value;
+}
+
 /** Display value back to SI. */
 export function fromDisplay(value: number, dimension: Dimension, units: DisplayUnits): number {
   const id = unitIdOf(dimension, units);
@@ -188,10 +198,15 @@ function bodyFallbacks(params: CaseParams): Record<string, number> {
 /**
  * The Rig tab's typed reactive form over the whole case, in display units. `setParams` fills it from an SI case,
  * `parse` reads it back through `parseCase` and puts each issue on the control that edits the field.
+ *
+ * Fields show rounded values (SHOWN_DIGITS); each control remembers the exact SI value behind what it shows, and
+ * reading the form uses that value while the field still shows it. So opening a case, switching units and saving
+ * leaves every field the user did not edit bit-for-bit as stored (same case digest, nothing marked edited).
  */
 export class RigForm {
   readonly group: FormGroup<RigControls>;
   private currentUnits: DisplayUnits;
+  private readonly exact = new WeakMap<AbstractControl, { readonly si: number; readonly shown: number }>();
 
   constructor(params: CaseParams, units: DisplayUnits = DEFAULT_UNITS) {
     this.currentUnits = units;
@@ -243,48 +258,50 @@ export class RigForm {
 
   /** Fills every control from an SI case, without emitting value changes. */
   setParams(params: CaseParams): void {
-    const u = this.currentUnits;
-    const d = (si: number, dim: Dimension) => toDisplay(si, dim, u);
+    // The form is first filled in SI, then each numeric control is switched to its shown value (see `show`).
     const fb = bodyFallbacks(params);
     const b = params.body;
     const body = {
       kind: b.kind,
-      length: d(b.kind === 'point-mass' ? b.length : fb['length'], 'length'),
+      length: b.kind === 'point-mass' ? b.length : fb['length'],
       mass: b.kind === 'rod-bob' ? fb['mass'] : b.mass,
-      rodLength: d(b.kind === 'rod-bob' ? b.rodLength : fb['rodLength'], 'length'),
+      rodLength: b.kind === 'rod-bob' ? b.rodLength : fb['rodLength'],
       rodMass: b.kind === 'rod-bob' ? b.rodMass : fb['rodMass'],
       bobMass: b.kind === 'rod-bob' ? b.bobMass : fb['bobMass'],
-      bobRadius: d(b.kind === 'rod-bob' ? b.bobRadius : fb['bobRadius'], 'length'),
-      bobDistance: d(b.kind === 'rod-bob' ? b.bobDistance : fb['bobDistance'], 'length'),
-      swingFrequency: d(b.kind === 'measured-swing' ? b.swingFrequency : fb['swingFrequency'], 'frequency'),
+      bobRadius: b.kind === 'rod-bob' ? b.bobRadius : fb['bobRadius'],
+      bobDistance: b.kind === 'rod-bob' ? b.bobDistance : fb['bobDistance'],
+      swingFrequency: b.kind === 'measured-swing' ? b.swingFrequency : fb['swingFrequency'],
     };
     const w = params.drive.waveform;
     const terms: HarmonicTerm[] = w.kind === 'harmonics' ? w.terms : [{ order: 1, relAmplitude: 1, phase: 0 }];
     const harmonics = this.harmonics;
     harmonics.clear({ emitEvent: false });
-    for (const term of terms) harmonics.push(harmonicGroup(term, u), { emitEvent: false });
+    for (const term of terms) harmonics.push(harmonicGroup(term, this.currentUnits), { emitEvent: false });
     const ramp = params.drive.ramp;
     this.group.setValue(
       {
         body,
         drive: {
-          direction: d(params.drive.direction, 'angle'),
-          amplitude: d(params.drive.amplitude, 'length'),
-          frequency: d(params.drive.frequency, 'frequency'),
+          direction: params.drive.direction,
+          amplitude: params.drive.amplitude,
+          frequency: params.drive.frequency,
           waveform: w.kind,
-          connectingRod: d(w.kind === 'crank-slider' ? w.connectingRod : params.drive.amplitude * 5 || 0.1, 'length'),
-          harmonics: terms.map((t) => ({ order: t.order, relAmplitude: t.relAmplitude, phase: d(t.phase, 'angle') })),
+          connectingRod: w.kind === 'crank-slider' ? w.connectingRod : params.drive.amplitude * 5 || 0.1,
+          harmonics: terms.map((t) => ({ order: t.order, relAmplitude: t.relAmplitude, phase: t.phase })),
           rampOn: ramp !== undefined,
-          rampFrom: d(ramp?.fromFrequency ?? 0, 'frequency'),
+          rampFrom: ramp?.fromFrequency ?? 0,
           rampDuration: ramp?.duration ?? Math.min(1, params.run.duration / 4),
         },
         damping: { ...params.damping },
-        start: { angle: d(params.start.angle, 'angle'), rate: d(params.start.rate, 'rate') },
+        start: { ...params.start },
         gravity: params.gravity,
-        run: { ...params.run, strobePhase: d(params.run.strobePhase, 'angle') },
+        run: { ...params.run },
       },
       { emitEvent: false },
     );
+    this.forEachNumeric((control, path) => {
+      if (control.value !== null) this.show(control, control.value, dimensionOf(path));
+    });
     this.group.markAsPristine();
   }
 
@@ -296,7 +313,7 @@ export class RigForm {
       const dim = dimensionOf(path);
       const value = control.value;
       if (dim === 'plain' || value === null || !Number.isFinite(value)) return;
-      control.setValue(toDisplay(fromDisplay(value, dim, prev), dim, next), { emitEvent: false });
+      this.show(control, this.siOf(control, dim, prev), dim);
     });
   }
 
@@ -311,30 +328,34 @@ export class RigForm {
   /** The form's case in SI, unvalidated (empty fields become NaN, which the schema refuses). */
   rawParams(): unknown {
     const v = this.group.getRawValue();
-    const u = this.currentUnits;
-    const si = (value: number | null, dim: Dimension) => fromDisplay(value ?? Number.NaN, dim, u);
-    const n = (value: number | null) => value ?? Number.NaN;
+    const c = this.group.controls;
+    const b = c.body.controls;
+    const dr = c.drive.controls;
+    const dm = c.damping.controls;
+    const r = c.run.controls;
+    const si = (control: Num, dim: Dimension) => this.siOf(control, dim, this.currentUnits);
+    const n = (control: Num) => this.siOf(control, 'plain', this.currentUnits);
     const body =
       v.body.kind === 'point-mass'
-        ? { kind: v.body.kind, length: si(v.body.length, 'length'), mass: n(v.body.mass) }
+        ? { kind: v.body.kind, length: si(b.length, 'length'), mass: n(b.mass) }
         : v.body.kind === 'rod-bob'
           ? {
               kind: v.body.kind,
-              rodLength: si(v.body.rodLength, 'length'),
-              rodMass: n(v.body.rodMass),
-              bobMass: n(v.body.bobMass),
-              bobRadius: si(v.body.bobRadius, 'length'),
-              bobDistance: si(v.body.bobDistance, 'length'),
+              rodLength: si(b.rodLength, 'length'),
+              rodMass: n(b.rodMass),
+              bobMass: n(b.bobMass),
+              bobRadius: si(b.bobRadius, 'length'),
+              bobDistance: si(b.bobDistance, 'length'),
             }
-          : { kind: v.body.kind, swingFrequency: si(v.body.swingFrequency, 'frequency'), mass: n(v.body.mass) };
+          : { kind: v.body.kind, swingFrequency: si(b.swingFrequency, 'frequency'), mass: n(b.mass) };
     const waveform =
       v.drive.waveform === 'sine'
         ? { kind: 'sine' }
         : v.drive.waveform === 'crank-slider'
-          ? { kind: 'crank-slider', connectingRod: si(v.drive.connectingRod, 'length') }
+          ? { kind: 'crank-slider', connectingRod: si(dr.connectingRod, 'length') }
           : {
               kind: 'harmonics',
-              terms: v.drive.harmonics.map((t) => ({
+              terms: dr.harmonics.controls.map(({ controls: t }) => ({
                 order: n(t.order),
                 relAmplitude: n(t.relAmplitude),
                 phase: si(t.phase, 'angle'),
@@ -344,29 +365,29 @@ export class RigForm {
       schemaVersion: CASE_SCHEMA_VERSION,
       body,
       drive: {
-        direction: si(v.drive.direction, 'angle'),
-        amplitude: si(v.drive.amplitude, 'length'),
-        frequency: si(v.drive.frequency, 'frequency'),
+        direction: si(dr.direction, 'angle'),
+        amplitude: si(dr.amplitude, 'length'),
+        frequency: si(dr.frequency, 'frequency'),
         waveform,
         ...(v.drive.rampOn
-          ? { ramp: { fromFrequency: si(v.drive.rampFrom, 'frequency'), duration: n(v.drive.rampDuration) } }
+          ? { ramp: { fromFrequency: si(dr.rampFrom, 'frequency'), duration: n(dr.rampDuration) } }
           : {}),
       },
       damping: {
-        viscousRatio: n(v.damping.viscousRatio),
-        quadratic: n(v.damping.quadratic),
-        friction: n(v.damping.friction),
-        frictionSmoothing: n(v.damping.frictionSmoothing),
+        viscousRatio: n(dm.viscousRatio),
+        quadratic: n(dm.quadratic),
+        friction: n(dm.friction),
+        frictionSmoothing: n(dm.frictionSmoothing),
       },
-      start: { angle: si(v.start.angle, 'angle'), rate: si(v.start.rate, 'rate') },
-      gravity: n(v.gravity),
+      start: { angle: si(c.start.controls.angle, 'angle'), rate: si(c.start.controls.rate, 'rate') },
+      gravity: n(c.gravity),
       run: {
-        duration: n(v.run.duration),
-        rtol: n(v.run.rtol),
-        atol: n(v.run.atol),
-        outputPoints: n(v.run.outputPoints),
-        strobePhase: si(v.run.strobePhase, 'angle'),
-        transientFraction: n(v.run.transientFraction),
+        duration: n(r.duration),
+        rtol: n(r.rtol),
+        atol: n(r.atol),
+        outputPoints: n(r.outputPoints),
+        strobePhase: si(r.strobePhase, 'angle'),
+        transientFraction: n(r.transientFraction),
       },
     };
   }
@@ -386,6 +407,21 @@ export class RigForm {
   /** The control that edits a case path, if any. */
   controlFor(casePath: string): AbstractControl | null {
     return this.group.get(formPathOf(casePath));
+  }
+
+  /** Shows an SI value on a control, rounded, and remembers the exact value behind it. */
+  private show(control: Num, si: number, dim: Dimension): void {
+    const shown = toShown(si, dim, this.currentUnits);
+    control.setValue(shown, { emitEvent: false });
+    this.exact.set(control, { si, shown });
+  }
+
+  /** A control's SI value: the exact one while it shows what `show` put there, else its value converted. */
+  private siOf(control: Num, dim: Dimension, units: DisplayUnits): number {
+    const value = control.value;
+    if (value === null) return Number.NaN;
+    const exact = this.exact.get(control);
+    return exact !== undefined && exact.shown === value ? exact.si : fromDisplay(value, dim, units);
   }
 
   private applyIssues(issues: readonly CaseIssue[]): void {
