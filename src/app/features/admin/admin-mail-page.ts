@@ -74,24 +74,7 @@ import { LibraryApi } from '../library/library-api';
       </section>
     }
   `,
-  styles: `
-    :host { display: flex; flex-direction: column; gap: 16px; }
-    .page-header { display: flex; align-items: center; justify-content: space-between; gap: 12px; }
-    .title { margin: 0; font: var(--mat-sys-headline-medium); }
-    .section-title { margin: 0 0 8px; font: var(--mat-sys-title-medium); }
-    .help { margin: 0; color: var(--mat-sys-on-surface-variant); }
-    .mail-subject { font-weight: 500; }
-    .mail-head { margin: 0 0 8px; color: var(--mat-sys-on-surface-variant); }
-    .mail-body { margin: 0; white-space: pre-wrap; overflow-wrap: anywhere; font: var(--mat-sys-body-medium); }
-    .scroll { overflow-x: auto; }
-    .outbox { width: 100%; min-width: 640px; border-collapse: collapse; }
-    .outbox th, .outbox td { padding: 6px 10px; border-bottom: 1px solid var(--mat-sys-outline-variant); text-align: start; }
-    .outbox thead th { color: var(--mat-sys-on-surface-variant); }
-    .num { text-align: end !important; }
-    .when, .state { white-space: nowrap; }
-    .failed { color: var(--mat-sys-error); }
-    .form-error { margin: 0; color: var(--mat-sys-error); }
-  `,
+  styleUrl: './admin-mail-page.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class AdminMailPage {
