@@ -7,7 +7,7 @@ import { bodyProperties } from '../../../../../shared/engine/body';
 import { Plot, type PlotCsv, type PlotSpec } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
 import { toDisplay, unitLabelOf } from '../rig/rig-form';
-import { OutcomeCard, type OutcomeView } from './outcome-card';
+import { OutcomeCard, uprightMultiplierFor, type OutcomeView } from './outcome-card';
 import { PendulumAnimation } from './pendulum-animation';
 
 function scaled(values: Float64Array, factor: number): number[] {
@@ -30,10 +30,17 @@ export class MotionTab {
   protected readonly stale = computed(() => this.workspace.isStale(this.result()));
 
   protected readonly outcomeView = computed<OutcomeView | null>(() => {
-    const r = this.result()?.value;
-    return r
-      ? { outcome: r.outcome, numbers: r.outcomeNumbers, summary: r.summary, status: r.status, rhsEvaluations: r.rhsEvaluations }
-      : null;
+    const motion = this.result();
+    if (!motion) return null;
+    const r = motion.value;
+    return {
+      outcome: r.outcome,
+      numbers: r.outcomeNumbers,
+      summary: r.summary,
+      status: r.status,
+      rhsEvaluations: r.rhsEvaluations,
+      uprightMultiplier: uprightMultiplierFor(motion, this.workspace.margins()),
+    };
   });
   protected readonly bodyLength = computed(() => {
     const p = this.result()?.params;

@@ -1,9 +1,19 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 
 import type { MotionOutcome, OutcomeNumbers } from '../../../../../shared/engine/classify';
-import type { MotionSummary } from '../../../../../shared/engine/motion';
+import type { FloquetAnalysis } from '../../../../../shared/engine/floquet';
+import type { MotionResult, MotionSummary } from '../../../../../shared/engine/motion';
+import type { Computed } from '../case-workspace';
 import { OUTCOME_COLORS, OUTCOME_LABELS, formatIn, formatNumber } from '../format';
 import type { DisplayUnits } from '../rig/rig-form';
+
+/**
+ * Largest Floquet multiplier modulus of the upright for the motion's case, as the Margins tab computed it (in its
+ * worker) for the same inputs; `value` null when no periodic motion exists near the upright.
+ */
+export type UprightMultiplier =
+  | { readonly kind: 'from-margins'; readonly value: number | null }
+  | { readonly kind: 'not-computed' };
 
 /** What the outcome card shows: the verdict and the numbers behind it. */
 export interface OutcomeView {
@@ -12,6 +22,34 @@ export interface OutcomeView {
   readonly summary: MotionSummary;
   readonly status: string;
   readonly rhsEvaluations: number;
+  /** Absent when the drive is not periodic (a ramp): the multiplier then says nothing about this run. */
+  readonly uprightMultiplier?: UprightMultiplier;
+}
+
+/** Outcomes whose verdict the upright's Floquet multiplier speaks to. */
+const MULTIPLIER_OUTCOMES: readonly MotionOutcome[] = ['holds-upright', 'settles-tilted'];
+
+/**
+ * The upright's multiplier for a motion result: from the Margins result when it was computed for the same case,
+ * `not-computed` when it was not, undefined when the drive has a ramp (not periodic).
+ */
+export function uprightMultiplierFor(
+  motion: Computed<MotionResult>,
+  margins: Computed<FloquetAnalysis> | null,
+): UprightMultiplier | undefined {
+  if (motion.params.drive.ramp !== undefined) return undefined;
+  if (!margins || margins.paramsDigest !== motion.paramsDigest) return { kind: 'not-computed' };
+  const upright = margins.value.upright;
+  return { kind: 'from-margins', value: upright && Number.isFinite(upright.maxMultiplier) ? upright.maxMultiplier : null };
+}
+
+function multiplierRow(view: OutcomeView): Row[] {
+  const m = view.uprightMultiplier;
+  if (!m || !MULTIPLIER_OUTCOMES.includes(view.outcome)) return [];
+  const label = 'Largest Floquet multiplier |μ| of the upright';
+  if (m.kind === 'not-computed') return [{ label, value: 'run Margins for these inputs to see it' }];
+  const value = m.value === null ? 'no periodic motion near the upright' : formatNumber(m.value, 6);
+  return [{ label, value: `${value} (from Margins)` }];
 }
 
 interface Row {
@@ -59,6 +97,7 @@ export class OutcomeCard {
     const { numbers: n, summary: s } = this.view();
     const u = this.units();
     return [
+      ...multiplierRow(this.view()),
       { label: 'Largest slow deviation from upright', value: formatIn(n.maxDeviation, 'angle', u) },
       { label: 'Mean slow angle', value: formatIn(n.meanAngle, 'angle', u) },
       { label: 'Slow range', value: formatIn(n.slowRange, 'angle', u) },
