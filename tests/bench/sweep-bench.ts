@@ -23,11 +23,15 @@ async function pointsPerSecond(workers: number, params: CaseParams, spec: SweepS
   const pool = createNodeEnginePool(workers);
   try {
     await lastValueFrom(pool.sweep(params, { ...spec, steps: 2 * workers }));
-    const t0 = performance.now();
-    const last = await lastValueFrom(pool.sweep(params, spec));
-    const seconds = (performance.now() - t0) / 1000;
-    if (last.type !== 'result' || last.value.points.length !== spec.steps) throw new Error('sweep did not complete');
-    return spec.steps / seconds;
+    // Best of three: a shared 2-core machine has noisy neighbours, and the best run is the one they disturbed least.
+    let best = Infinity;
+    for (let i = 0; i < 3; i++) {
+      const t0 = performance.now();
+      const last = await lastValueFrom(pool.sweep(params, spec));
+      best = Math.min(best, (performance.now() - t0) / 1000);
+      if (last.type !== 'result' || last.value.points.length !== spec.steps) throw new Error('sweep did not complete');
+    }
+    return spec.steps / best;
   } finally {
     pool.dispose();
   }
@@ -40,7 +44,7 @@ export async function run(): Promise<SweepBenchFigures> {
   const one = await pointsPerSecond(1, params, spec);
   const two = await pointsPerSecond(2, params, spec);
   const figures = { points: spec.steps, oneWorkerPointsPerSecond: one, twoWorkersPointsPerSecond: two, speedup: two / one };
-  console.log(`sweep of ${spec.steps} motion runs (40 s, 1600 drive periods each)`);
+  console.log(`sweep of ${spec.steps} motion runs (40 s, 1600 drive periods each; best of 3)`);
   console.log(`  1 worker : ${one.toFixed(2)} points/s`);
   console.log(`  2 workers: ${two.toFixed(2)} points/s  (x${figures.speedup.toFixed(2)})`);
   return figures;
