@@ -16,7 +16,8 @@ export function toJson(value: unknown): string {
 
 function cell(v: unknown): string {
   if (v === null || v === undefined) return '';
-  const s = String(v);
+  // 15 significant digits hide binary noise such as 0.009000000000000001 and keep every digit the engine resolves.
+  const s = typeof v === 'number' && Number.isFinite(v) ? String(Number(v.toPrecision(15))) : String(v);
   return /[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }
 
