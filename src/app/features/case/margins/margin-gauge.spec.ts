@@ -1,6 +1,6 @@
 import { TestBed } from '@angular/core/testing';
 
-import { MarginGauge, marginLevel } from './margin-gauge';
+import { MarginGauge, bandPosition, marginLevel } from './margin-gauge';
 
 describe('MarginGauge', () => {
   function render(margin: number | null, position: number | null): HTMLElement {
@@ -39,6 +39,14 @@ describe('MarginGauge', () => {
     expect(middle?.style.left).toBe('50%');
     const beyond = render(-30, 400).querySelector<HTMLElement>('.marker');
     expect(beyond?.style.left).toBe('100%');
+  });
+
+  it('puts the case between the limits, or against the scan end when a limit was not met', () => {
+    expect(bandPosition({ value: 60, lower: 50, upper: 150, scanned: [10, 600] })).toBeCloseTo(10, 12);
+    // No upper limit up to 600 Hz: the scan's end stands in for it.
+    expect(bandPosition({ value: 60, lower: 50, upper: null, scanned: [10, 600] })).toBeCloseTo((100 * 10) / 550, 12);
+    expect(bandPosition({ value: 60, lower: null, upper: 150, scanned: [10, 600] })).toBeCloseTo((100 * 50) / 140, 12);
+    expect(bandPosition({ value: 60, lower: null, upper: null, scanned: [10, 600] })).toBeNull();
   });
 
   it('grades levels at the 20 % line', () => {

@@ -29,6 +29,24 @@ const LEVEL_COLORS: Record<MarginLevel, string> = {
 };
 
 /**
+ * Where the case sits on the gauge's band, 0 % at the lower limit and 100 % at the upper. A limit the scan did not meet
+ * is replaced by the scan's end, so the marker still shows where the case sits in what was searched; null when
+ * neither limit was found.
+ */
+export function bandPosition(limits: {
+  value: number;
+  lower: number | null;
+  upper: number | null;
+  scanned: readonly [number, number];
+}): number | null {
+  const { value, lower, upper, scanned } = limits;
+  if (lower === null && upper === null) return null;
+  const lo = lower ?? scanned[0];
+  const hi = upper ?? scanned[1];
+  return hi > lo ? (100 * (value - lo)) / (hi - lo) : null;
+}
+
+/**
  * The upright's margin in one glance: the signed smallest change of the drive that reaches a limit, in percent, its
  * level in words and colour, and where the case sits between the lower and upper limits.
  */

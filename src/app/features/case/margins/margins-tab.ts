@@ -10,7 +10,7 @@ import { Plot, type PlotCsv, type PlotSpec } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
 import { formatIn, formatNumber, formatPercent } from '../format';
 import { toDisplay, unitLabelOf, type Dimension } from '../rig/rig-form';
-import { MarginGauge } from './margin-gauge';
+import { MarginGauge, bandPosition } from './margin-gauge';
 
 interface NumberRow {
   readonly label: string;
@@ -158,9 +158,9 @@ export class MarginsTab {
     const dim: Dimension = useFrequency ? 'frequency' : 'length';
     return {
       margin: r.marginPercent,
-      position: l.positionPercent,
-      lower: formatIn(l.lower, dim, u),
-      upper: formatIn(l.upper, dim, u),
+      position: bandPosition(l),
+      lower: l.lower === null ? `none down to ${formatIn(l.scanned[0], dim, u)}` : formatIn(l.lower, dim, u),
+      upper: l.upper === null ? `none up to ${formatIn(l.scanned[1], dim, u)}` : formatIn(l.upper, dim, u),
       caption: `Smallest change of drive ${useFrequency ? 'frequency' : 'amplitude'} that loses the upright (Floquet, with damping). The marker shows where the case sits between the limits.`,
     };
   });
