@@ -40,7 +40,7 @@ async function pointsPerSecond(workers: number, params: CaseParams, spec: SweepS
 export async function run(): Promise<SweepBenchFigures> {
   const params = benchCase();
   // Every point holds the upright: no thresholds to bisect, so the figure is pure point throughput.
-  const spec: SweepSpec = { field: 'drive.amplitude', from: 0.009, to: 0.03, steps: 24 };
+  const spec: SweepSpec = { field: 'drive.amplitude', from: 0.009, to: 0.03, steps: 48 };
   const one = await pointsPerSecond(1, params, spec);
   const two = await pointsPerSecond(2, params, spec);
   const figures = { points: spec.steps, oneWorkerPointsPerSecond: one, twoWorkersPointsPerSecond: two, speedup: two / one };
