@@ -13,7 +13,7 @@ import { pinoHttp } from 'pino-http';
 import type { Sequelize } from 'sequelize';
 import { AppError } from './app-error';
 import type { Config } from './config';
-import { createLogger, type Logger } from './logger';
+import { createLogger, redactUrl, type Logger } from './logger';
 import { createAuthenticator } from './middleware/auth';
 import { apiNotFound, jsonErrors } from './middleware/errors';
 import { ANY_LAB_ROLE, requireLabRole } from './middleware/roles';
@@ -89,7 +89,7 @@ export function createApp(options: AppOptions): Express {
       logger,
       autoLogging: { ignore: (req) => req.url === '/api/health' },
       serializers: {
-        req: (req: { id: unknown; method: string; url: string }) => ({ id: req.id, method: req.method, url: req.url }),
+        req: (req: { id: unknown; method: string; url: string }) => ({ id: req.id, method: req.method, url: redactUrl(req.url) }),
         res: (res: { statusCode: number }) => ({ statusCode: res.statusCode }),
       },
     }),
