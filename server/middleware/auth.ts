@@ -5,6 +5,7 @@
 import type { RequestHandler } from 'express';
 import { Passport } from 'passport';
 import { ExtractJwt, Strategy as JwtStrategy } from 'passport-jwt';
+import { z } from 'zod';
 import { AppError } from '../app-error';
 import { User } from '../db/models';
 import { isRevoked, publicUser, type PublicUser } from '../services/auth-service';
@@ -18,6 +19,9 @@ declare global {
     }
   }
 }
+
+/** The claims we sign; ids are checked here, as the database refuses a non-UUID with an error, not a miss. */
+const claimsSchema = z.object({ sub: z.guid(), jti: z.guid(), exp: z.number() });
 
 interface Failure {
   code: string;
@@ -41,12 +45,12 @@ export function createAuthenticator(jwtSecret: string): RequestHandler {
     new JwtStrategy(
       { jwtFromRequest: ExtractJwt.fromAuthHeaderAsBearerToken(), secretOrKey: jwtSecret, algorithms: ['HS256'] },
       (payload: unknown, done: (err: unknown, user?: Express.User | false, info?: Failure) => void) => {
-        const claims = payload as { sub?: unknown; jti?: unknown; exp?: unknown };
-        if (typeof claims.sub !== 'string' || typeof claims.jti !== 'string' || typeof claims.exp !== 'number') {
+        const claims = claimsSchema.safeParse(payload);
+        if (!claims.success) {
           done(null, false, { code: 'invalid_token', message: 'The access token is not valid.' });
           return;
         }
-        const { sub, jti, exp } = claims;
+        const { sub, jti, exp } = claims.data;
         (async () => {
           if (await isRevoked(jti)) return done(null, false, { code: 'token_revoked', message: 'This session was signed out; sign in again.' });
           const user = await User.findByPk(sub);

@@ -107,6 +107,20 @@ describe('access tokens', () => {
     expect(errorOf(res).code).toBe('invalid_token');
   });
 
+  it('refuses a signed token whose sub or jti is not a UUID with 401, not 500', async () => {
+    const claims = [
+      { sub: 'not-a-uuid', jti: crypto.randomUUID() },
+      { sub: ada.id, jti: 'not-a-uuid' },
+      { sub: `${ada.id}'; --`, jti: '' },
+    ];
+    for (const c of claims) {
+      const token = jwt.sign(c, api.config.jwtSecret, { expiresIn: 600 });
+      const res = await request(api.app).get('/api/me').set('Authorization', `Bearer ${token}`);
+      expect(res.status, JSON.stringify(c)).toBe(401);
+      expect(errorOf(res).code).toBe('invalid_token');
+    }
+  });
+
   it('refuses an expired token with 401 token_expired', async () => {
     const past = Math.floor(Date.now() / 1000) - 3600;
     const expired = jwt.sign({ sub: ada.id, jti: crypto.randomUUID(), iat: past - 1800, exp: past }, api.config.jwtSecret);
