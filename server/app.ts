@@ -16,6 +16,7 @@ import type { Config } from './config';
 import { createLogger, redactUrl, type Logger } from './logger';
 import { createAuthenticator } from './middleware/auth';
 import { apiNotFound, jsonErrors } from './middleware/errors';
+import { jsonBody } from './middleware/json-body';
 import { ANY_LAB_ROLE, requireLabRole } from './middleware/roles';
 import { signInRoute, signOutRoute } from './routes/auth-routes';
 import { healthRoute } from './routes/health-routes';
@@ -94,7 +95,7 @@ export function createApp(options: AppOptions): Express {
       },
     }),
   );
-  app.use(express.json({ limit: '2mb' }));
+  app.use(jsonBody({ limit: '2mb' }));
 
   const api = express.Router();
   const owner = requireLabRole('owner');

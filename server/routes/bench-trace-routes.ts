@@ -6,6 +6,7 @@ import { AppError } from '../app-error';
 import { currentUser } from '../middleware/auth';
 import { caseAccess } from '../middleware/case-access';
 import { pageQuery } from '../middleware/paging';
+import { assertStorableText } from '../middleware/json-body';
 import { parseInput } from '../middleware/validate';
 import { deleteTrace, listTraces, traceCsv, traceDetail, uploadTrace } from '../services/bench-trace-service';
 
@@ -44,6 +45,8 @@ export function uploadTraceRoute(sequelize: Sequelize): RequestHandler {
   return async (req, res) => {
     const file = req.file;
     if (!file) throw new AppError('missing_field', 'file is required (multipart field "file").', 400, 'file');
+    assertStorableText(req.body ?? {});
+    assertStorableText(file.originalname, { what: 'file' });
     const fields = parseInput(uploadFields, req.body ?? {});
     // A NUL byte means a binary file whatever its name says.
     if (file.buffer.includes(0)) throw new AppError('unsupported_type', 'The file is not text; a bench trace must be a CSV file.', 415, 'file');
