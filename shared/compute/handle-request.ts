@@ -4,9 +4,11 @@
  */
 import { parseCase } from '../case/validate';
 import { stabilityChartRows } from '../engine/chart';
+import { fitFreeSwing } from '../engine/fit';
 import { floquetAnalysis } from '../engine/floquet';
 import { EngineCancelledError, simulateMotion } from '../engine/motion';
 import { basinMapRows, outcomeMapRows, sweepPoints, sweepThresholds } from '../engine/sweep';
+import { overlayDrivenTrace } from '../engine/trace-drive';
 import {
   isEngineRequest, resultTransferables, type EngineRequest, type EngineResponse, type EngineResult,
 } from './protocol';
@@ -54,13 +56,21 @@ export function handleEngineRequest(message: unknown, post: PostResponse, should
 function compute(
   request: EngineRequest, onProgress: (fraction: number) => void, shouldCancel?: () => boolean,
 ): EngineResult | null {
+  const hooks = { onProgress, shouldCancel };
+  if (request.type === 'fit') {
+    const { trace, model, gravity, frictionSmoothing } = request;
+    return { kind: 'fit', fit: fitFreeSwing(trace, { model, gravity, frictionSmoothing, ...hooks }) };
+  }
   const parsed = parseCase(request.params);
   if (!parsed.ok) {
     throw new Error(`invalid case: ${parsed.issues.map((i) => `${i.field || '(case)'}: ${i.message}`).join('; ')}`);
   }
   const params = parsed.value;
-  const hooks = { onProgress, shouldCancel };
   switch (request.type) {
+    case 'overlay': {
+      const { trace, partAngle, holdLimit } = request;
+      return { kind: 'overlay', overlay: overlayDrivenTrace(params, trace, { partAngle, holdLimit, ...hooks }) };
+    }
     case 'motion':
       return { kind: 'motion', motion: simulateMotion(params, hooks) };
     case 'margins':

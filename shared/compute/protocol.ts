@@ -8,6 +8,8 @@
  */
 import type { CaseParams } from '../case/case-schema';
 import type { Grid2 } from '../engine/chart';
+import type { FitModel, FitResult } from '../engine/fit';
+import type { OverlayResult } from '../engine/trace-drive';
 import type { FloquetAnalysis } from '../engine/floquet';
 import type { MotionResult } from '../engine/motion';
 import type { BasinCell, MapCell, SweepPoint, SweepSpec, SweepThreshold, ThresholdBracket } from '../engine/sweep';
@@ -66,7 +68,29 @@ export interface MapChunkRequest {
   rowTo: number;
 }
 
+/** Fit a free swing (times s, angles rad from any fixed zero); no case needed. */
+export interface FitRequest {
+  type: 'fit';
+  id: string;
+  trace: { time: number[]; angle: number[] };
+  model: FitModel;
+  gravity?: number;
+  frictionSmoothing?: number;
+}
+
+/** Measured against simulated motion of a driven trace (angles rad from the upright, pivot m). */
+export interface OverlayRequest {
+  type: 'overlay';
+  id: string;
+  params: CaseParams;
+  trace: { time: number[]; angle: number[]; pivot: number[] };
+  partAngle?: number;
+  holdLimit?: number;
+}
+
 export type EngineRequest =
+  | FitRequest
+  | OverlayRequest
   | MotionRequest
   | MarginsRequest
   | SweepChunkRequest
@@ -84,7 +108,9 @@ export type EngineResult =
   | { kind: 'sweep-thresholds'; thresholds: SweepThreshold[] }
   | { kind: 'chart-rows'; rowFrom: number; rowTo: number; values: Float64Array }
   | { kind: 'basin-rows'; rowFrom: number; rowTo: number; cells: BasinCell[] }
-  | { kind: 'map-rows'; rowFrom: number; rowTo: number; cells: MapCell[] };
+  | { kind: 'map-rows'; rowFrom: number; rowTo: number; cells: MapCell[] }
+  | { kind: 'fit'; fit: FitResult }
+  | { kind: 'overlay'; overlay: OverlayResult };
 
 export interface ProgressResponse {
   type: 'progress';
@@ -116,7 +142,7 @@ function isRecord(value: unknown): value is Record<string, unknown> {
   return typeof value === 'object' && value !== null;
 }
 
-const REQUEST_TYPES: readonly string[] = ['motion', 'margins', 'sweep-chunk', 'chart-chunk', 'basin-chunk', 'map-chunk'];
+const REQUEST_TYPES: readonly string[] = ['fit', 'overlay', 'motion', 'margins', 'sweep-chunk', 'chart-chunk', 'basin-chunk', 'map-chunk'];
 const RESPONSE_TYPES: readonly string[] = ['progress', 'result', 'error', 'cancelled'];
 
 /** Shape check of an incoming request (the case itself is validated by the handler). */

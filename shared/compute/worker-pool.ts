@@ -11,13 +11,17 @@
 import { Observable } from 'rxjs';
 import type { CaseParams } from '../case/case-schema';
 import { assembleChart, type Grid2, type StabilityChart } from '../engine/chart';
+import type { FitResult } from '../engine/fit';
 import type { FloquetAnalysis } from '../engine/floquet';
 import type { MotionResult } from '../engine/motion';
+import type { OverlayResult } from '../engine/trace-drive';
 import {
   assembleCellMap, assembleSweep, thresholdBrackets, sweepValues, type BasinCell, type CellMap, type MapCell,
   type SweepPoint, type SweepResult, type SweepSpec, type SweepThreshold,
 } from '../engine/sweep';
-import { isEngineResponse, type EngineRequest, type EngineResponse, type EngineResult } from './protocol';
+import {
+  isEngineResponse, type EngineRequest, type EngineResponse, type EngineResult, type FitRequest, type OverlayRequest,
+} from './protocol';
 
 /** The part of a Worker the pool uses; Web Workers fit as they are, worker_threads through an adapter. */
 export interface WorkerLike {
@@ -139,6 +143,24 @@ export class WorkerPool {
       const [r] = await ctx.runAll([{ type: 'motion', params }], 0, 1);
       if (r.kind !== 'motion') throw new Error(`unexpected ${r.kind} result`);
       return r.motion;
+    });
+  }
+
+  /** Free-swing fit of a bench trace. */
+  fit(request: Omit<FitRequest, 'id' | 'type'>): Observable<PoolEvent<FitResult>> {
+    return this.job(async (ctx) => {
+      const [r] = await ctx.runAll([{ type: 'fit', ...request }], 0, 1);
+      if (r.kind !== 'fit') throw new Error(`unexpected ${r.kind} result`);
+      return r.fit;
+    });
+  }
+
+  /** Driven bench trace against the case's simulation with the drive read from the pivot column. */
+  overlay(request: Omit<OverlayRequest, 'id' | 'type'>): Observable<PoolEvent<OverlayResult>> {
+    return this.job(async (ctx) => {
+      const [r] = await ctx.runAll([{ type: 'overlay', ...request }], 0, 1);
+      if (r.kind !== 'overlay') throw new Error(`unexpected ${r.kind} result`);
+      return r.overlay;
     });
   }
 

@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { templateCase } from '../case/templates';
 import type { CaseParams } from '../case/case-schema';
+import { handleEngineRequest } from '../compute/handle-request';
+import type { EngineResponse } from '../compute/protocol';
 import { fitFreeSwing } from './fit';
 import { EngineCancelledError } from './motion';
 import { syntheticTrace } from './synthetic-trace';
@@ -50,6 +52,15 @@ describe('free-swing fit', { timeout: 30_000 }, () => {
     expect(Math.abs(r.fitted.startAngle - (Math.PI + 25 * DEG))).toBeLessThan(0.05 * DEG);
     expect(r.points).toBe(trace20sPoints());
     expect(r.residual.length).toBe(r.points);
+  });
+
+  it('answers a worker fit request with progress and then the estimates', () => {
+    const trace = syntheticTrace(swing({ viscousRatio: 0.01 }), options);
+    const responses: EngineResponse[] = [];
+    handleEngineRequest({ type: 'fit', id: 'f1', trace, model: 'viscous' }, (r) => responses.push(r));
+    const last = responses[responses.length - 1];
+    expect(responses.some((r) => r.type === 'progress')).toBe(true);
+    expect(last.type === 'result' && last.result.kind === 'fit' ? last.result.fit.fitted.equivalentLength : 0).toBeCloseTo(0.3, 3);
   });
 
   it('stops with EngineCancelledError when cancelled', () => {
