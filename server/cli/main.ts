@@ -15,6 +15,7 @@ import {
   computeRun, makeRunRecord, parseRunRecord, recheckRun, type RunResult, type RunSettings,
 } from '../../shared/engine/run-record';
 import { defaultBasinGrid } from '../../shared/engine/sweep';
+import { fitOutput, fitRequest, TraceInputError } from './fit-command';
 import { countOption, flag, numberOption, parseArgs, stringOption, UsageError, type ParsedArgs } from './args';
 import { toCsv, toJson } from './output';
 
@@ -26,6 +27,8 @@ const USAGE = `usage: npm run cli -- <command> [options]
   chart   <case.json> [--freq-from F --freq-to F --amp-from A --amp-to A --n 200 (40 oblique) --linear]
   map     <case.json> --x-field F --x-from X --x-to X --y-field F --y-from Y --y-to Y [--n 9]
   basin   <case.json> [--n 11 --angle-from -3.14 --angle-to 3.14 --rate-from R --rate-to R]
+  fit     <trace.csv> [--model viscous|viscous+quadratic|viscous+friction] [--angle-unit deg|rad] [--case case.json]
+                                           free-swing fit: L, zeta, [c | mu], sensor zero, start state (SI)
   check   <run.json>                       rerun a stored run record and compare digest and summary
   template [--demo <id>]                   print a complete valid case (or a demo rig)
 
@@ -217,6 +220,13 @@ async function main(argv: readonly string[]): Promise<number> {
     if (!report.ok) throw new MismatchExit();
     return 0;
   }
+  if (command === 'fit') {
+    const caseFile = stringOption(args, 'case');
+    const request = fitRequest(args, caseFile === undefined ? undefined : readCase(caseFile));
+    const fit = await onPool(args, `fit ${request.model}`, (pool) => pool.fit(request));
+    process.stdout.write(fitOutput(args, fit));
+    return 0;
+  }
   const params = readCase(args.positional[0]);
   const { settings, result } = await runCommand(command, args, params);
   const record = makeRunRecord(params, settings, result);
@@ -236,7 +246,7 @@ main(process.argv.slice(2)).then(
     } else if (error instanceof UsageError) {
       process.stderr.write(`error: ${error.message}\n\n${USAGE}\n`);
       process.exitCode = 2;
-    } else if (error instanceof InputError) {
+    } else if (error instanceof InputError || error instanceof TraceInputError) {
       process.stderr.write(`error: ${error.message}\n`);
       process.exitCode = 2;
     } else {
