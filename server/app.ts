@@ -28,10 +28,10 @@ import { requireCaseRole } from './middleware/case-access';
 import { requireSiteAdmin } from './middleware/site-admin';
 import { outboxRoute, sinkMailsRoute } from './routes/admin-routes';
 import { deleteTraceRoute, listTracesRoute, receiveTraceFile, traceDownloadRoute, traceRoute, uploadTraceRoute } from './routes/bench-trace-routes';
-import { createLinkRoute, listLinksRoute, publicLinkRoute, revokeLinkRoute } from './routes/case-link-routes';
+import { createLinkRoute, listLinksRoute, publicLinkReportRoute, publicLinkRoute, revokeLinkRoute } from './routes/case-link-routes';
 import {
   addCommentRoute, auditRoute, caseRoute, commentsRoute, createCaseRoute, duplicateCaseRoute, listCasesRoute, patchCaseRoute,
-  recheckRequestRoute, recheckRoute, revisionRoute, saveRevisionRoute, storeRunRoute,
+  recheckRequestRoute, recheckRoute, reportRoute, revisionRoute, saveRevisionRoute, storeRunRoute,
 } from './routes/case-routes';
 
 export interface AppOptions {
@@ -127,6 +127,7 @@ export function createApp(options: AppOptions): Express {
     ['get', '/cases/:caseId/audit', authenticate, caseReader, auditRoute],
     ['post', '/cases/:caseId/revisions', authenticate, caseAuthor, saveRevisionRoute(sequelize)],
     ['get', '/cases/:caseId/revisions/:rev', authenticate, caseReader, revisionRoute],
+    ['get', '/cases/:caseId/revisions/:rev/report.pdf', authenticate, caseReader, reportRoute],
     ['post', '/cases/:caseId/revisions/:rev/runs', authenticate, caseAuthor, storeRunRoute(sequelize)],
     ['get', '/cases/:caseId/revisions/:rev/comments', authenticate, caseReader, commentsRoute],
     ['post', '/cases/:caseId/revisions/:rev/comments', authenticate, caseCommenter, addCommentRoute(sequelize)],
@@ -136,6 +137,7 @@ export function createApp(options: AppOptions): Express {
     ['post', '/cases/:caseId/links', authenticate, caseAuthor, createLinkRoute(sequelize, config)],
     ['delete', '/cases/:caseId/links/:linkId', authenticate, caseAuthor, revokeLinkRoute(sequelize)],
     ['get', '/links/:token', publicLinkRoute],
+    ['get', '/links/:token/report.pdf', publicLinkReportRoute],
     ['get', '/cases/:caseId/bench-traces', authenticate, caseReader, listTracesRoute],
     ['post', '/cases/:caseId/bench-traces', authenticate, caseAuthor, receiveTraceFile, uploadTraceRoute(sequelize)],
     ['get', '/cases/:caseId/bench-traces/:traceId', authenticate, caseReader, traceRoute],

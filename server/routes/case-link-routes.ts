@@ -1,12 +1,15 @@
 import type { RequestHandler } from 'express';
 import type { Sequelize } from 'sequelize';
 import { z } from 'zod';
+import { AppError } from '../app-error';
 import type { Config } from '../config';
 import { currentUser } from '../middleware/auth';
 import { caseAccess } from '../middleware/case-access';
 import { pageQuery } from '../middleware/paging';
 import { parseInput } from '../middleware/validate';
 import { MAX_LINK_DAYS, createLink, listLinks, readLink, revokeLink } from '../services/case-link-service';
+import { linkReport } from '../services/report-service';
+import { sendReport } from './case-routes';
 
 const createBody = z.object({
   revision: z.number().int().min(1),
@@ -36,14 +39,24 @@ export function revokeLinkRoute(sequelize: Sequelize): RequestHandler {
   };
 }
 
+/** The token of a public link route; a malformed one is simply a link that does not exist. */
+function linkToken(params: unknown): string {
+  const parsed = tokenParam.safeParse(params);
+  if (!parsed.success) throw new AppError('link_not_found', 'This case link does not exist.', 404, 'token');
+  return parsed.data.token;
+}
+
 /** Public, no sign-in: the revision behind a case link, read-only. */
 export const publicLinkRoute: RequestHandler = async (req, res) => {
-  const parsed = tokenParam.safeParse(req.params);
-  if (!parsed.success) {
-    res.status(404).json({ error: { code: 'link_not_found', message: 'This case link does not exist.', field: 'token' } });
-    return;
-  }
+  const token = linkToken(req.params);
   res.setHeader('Cache-Control', 'no-store');
   res.setHeader('Referrer-Policy', 'no-referrer');
-  res.json(await readLink(parsed.data.token));
+  res.json(await readLink(token));
+};
+
+/** Public, no sign-in: the case report of the revision behind a case link. */
+export const publicLinkReportRoute: RequestHandler = async (req, res) => {
+  const token = linkToken(req.params);
+  res.setHeader('Referrer-Policy', 'no-referrer');
+  sendReport(res, await linkReport(token));
 };

@@ -1,4 +1,4 @@
-import type { RequestHandler } from 'express';
+import type { RequestHandler, Response } from 'express';
 import type { Sequelize } from 'sequelize';
 import { z } from 'zod';
 import { RUN_KINDS } from '../../shared/engine/run-record';
@@ -24,6 +24,7 @@ import {
   type Actor,
 } from '../services/case-service';
 import { recordRecheck, requestRecheck } from '../services/recheck-service';
+import { revisionReport, type CaseReport } from '../services/report-service';
 
 const title = z.string().trim().min(1).max(200);
 const tags = z.array(z.string().trim().min(1).max(40)).max(20);
@@ -164,3 +165,17 @@ export function recheckRoute(sequelize: Sequelize, config: Config): RequestHandl
     res.status(201).json(await recordRecheck(sequelize, config, actorOf(req), caseAccess(req), rev, body));
   };
 }
+
+/** Sends a rendered case report as a PDF download. */
+export function sendReport(res: Response, report: CaseReport): void {
+  res.type('application/pdf');
+  res.attachment(report.fileName);
+  res.setHeader('Cache-Control', 'private, no-store');
+  res.send(report.pdf);
+}
+
+export const reportRoute: RequestHandler = async (req, res) => {
+  const { rev } = parseInput(revParam, req.params, 'path');
+  const access = caseAccess(req);
+  sendReport(res, await revisionReport(access.caseId, access.labId, rev));
+};

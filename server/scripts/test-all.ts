@@ -1,7 +1,7 @@
 /**
  * `npm test`: every check, in order, stopping at the first failure, with a summary at the end.
  * PostgreSQL (started here with fsync off if it was not running, and stopped again at the end), Debian chromium
- * for the browser tests, then (test databases are made fresh by the tests' own set-up): Node tests (Vitest projects shared, reference, server, api), Angular unit tests,
+ * for the browser tests and poppler-utils (pdftotext) for the case report tests, then (test databases are made fresh by the tests' own set-up): Node tests (Vitest projects shared, reference, server, api), Angular unit tests,
  * worker type check, client build, server build, browser tests.
  */
 import { existsSync } from 'node:fs';
@@ -10,14 +10,15 @@ import { checkoutPaths } from '../paths';
 import { ensurePostgres, stopPostgres, type PgCluster } from './pg';
 import { runCommand, summary, timed, type StepResult } from './steps';
 
-const CHROMIUM = '/usr/bin/chromium';
-
-function ensureChromium(): boolean {
-  if (existsSync(CHROMIUM)) return true;
-  console.log('chromium missing: apt-get install -y chromium');
-  const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
-  if (runCommand('apt-get', ['install', '-y', 'chromium'], '/', env)) return true;
-  return runCommand('apt-get', ['update'], '/', env) && runCommand('apt-get', ['install', '-y', 'chromium'], '/', env);
+/** Installs a Debian package when the program it brings is missing (apt-get update only when the install fails). */
+function ensureDebianPackage(pkg: string, program: string): () => boolean {
+  return () => {
+    if (existsSync(program)) return true;
+    console.log(`${program} missing: apt-get install -y ${pkg}`);
+    const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
+    if (runCommand('apt-get', ['install', '-y', pkg], '/', env)) return true;
+    return runCommand('apt-get', ['update'], '/', env) && runCommand('apt-get', ['install', '-y', pkg], '/', env);
+  };
 }
 
 async function main(): Promise<number> {
@@ -43,7 +44,9 @@ async function main(): Promise<number> {
         return true;
       },
     ],
-    ['chromium present', ensureChromium],
+    ['chromium present', ensureDebianPackage('chromium', '/usr/bin/chromium')],
+    // The case report tests read the PDF's text with pdftotext.
+    ['poppler-utils present', ensureDebianPackage('poppler-utils', '/usr/bin/pdftotext')],
     ['vitest: shared, reference, server, api', npx('vitest', 'run')],
     ['ng test (Angular unit tests)', npx('ng', 'test', '--watch=false')],
   ];

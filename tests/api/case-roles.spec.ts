@@ -82,6 +82,7 @@ const ROWS: RouteRow[] = [
     call: async () => ({ method: 'post', url: `/api/cases/${caseId}/revisions`, body: { baseRevision: await latest(), params } }),
   },
   { name: 'GET revision', allowed: ALL, success: 200, outsider: 404, call: async () => ({ method: 'get', url: `/api/cases/${caseId}/revisions/1` }) },
+  { name: 'GET case report', allowed: ALL, success: 200, outsider: 404, call: async () => ({ method: 'get', url: `/api/cases/${caseId}/revisions/1/report.pdf` }) },
   { name: 'POST run', allowed: AUTHORS, success: 201, outsider: 404, call: async () => ({ method: 'post', url: `/api/cases/${caseId}/revisions/1/runs`, body: motionRun(params) }) },
   { name: 'GET comments', allowed: ALL, success: 200, outsider: 404, call: async () => ({ method: 'get', url: `/api/cases/${caseId}/revisions/1/comments` }) },
   {

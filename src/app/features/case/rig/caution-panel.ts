@@ -1,22 +1,21 @@
 import { ChangeDetectionStrategy, Component } from '@angular/core';
 import { MatIconModule } from '@angular/material/icon';
 
+import { CAUTION_DEFERRAL, CAUTION_NOTES, CAUTION_TITLE } from '../../../../../shared/case/caution';
+
 /** Safety notes for people who build the rig; shown beside the inputs, always visible. */
 @Component({
   selector: 'qp-caution-panel',
   imports: [MatIconModule],
   template: `
     <section class="caution" aria-labelledby="caution-title">
-      <h2 id="caution-title"><mat-icon aria-hidden="true">warning</mat-icon> Before you run the rig</h2>
+      <h2 id="caution-title"><mat-icon aria-hidden="true">warning</mat-icon> {{ title }}</h2>
       <ul>
-        <li>Guard the crank, the connecting rod and every coupling; a rotating part can catch clothing, hair and fingers.</li>
-        <li>Clamp the rig and the shaker to the bench; an unbalanced drive walks across the table.</li>
-        <li>Keep hands and faces out of the swept volume of the body and of anything it can reach when it falls.</li>
-        <li>Wear eye protection: bobs, screws and broken rods leave at speed when the drive runs fast.</li>
-        <li>Stay inside the shaker's rated force, stroke and velocity; hitting the end stops damages it and throws the load.</li>
-        <li>Keep an emergency stop within reach and test it before each session.</li>
+        @for (note of notes; track $index) {
+          <li>{{ note }}</li>
+        }
       </ul>
-      <p>These notes do not replace local codes, the machine makers' instructions or licensed practice; follow those first.</p>
+      <p>{{ deferral }}</p>
     </section>
   `,
   styles: `
@@ -34,4 +33,8 @@ import { MatIconModule } from '@angular/material/icon';
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
-export class CautionPanel {}
+export class CautionPanel {
+  protected readonly title = CAUTION_TITLE;
+  protected readonly notes = CAUTION_NOTES;
+  protected readonly deferral = CAUTION_DEFERRAL;
+}
