@@ -19,6 +19,7 @@ import { apiNotFound, jsonErrors } from './middleware/errors';
 import { jsonBody } from './middleware/json-body';
 import { ANY_LAB_ROLE, requireLabRole } from './middleware/roles';
 import { signInRoute, signOutRoute } from './routes/auth-routes';
+import { SignInBackoff } from './services/sign-in-backoff';
 import { healthRoute } from './routes/health-routes';
 import {
   acceptInvitationRoute, addMemberRoute, changeRoleRoute, invitationsRoute, membersRoute, myLabsRoute, removeMemberRoute, revokeInvitationRoute,
@@ -42,6 +43,9 @@ export interface AppOptions {
   serveClient?: boolean;
 }
 
+/** An account's failed sign-ins are forgotten after this long without another failure. */
+const SIGN_IN_FORGET_AFTER_MS = 15 * 60_000;
+
 /** sha256 of `this.media='all'`, the handler Angular's build puts on its deferred stylesheet link. */
 const DEFERRED_STYLESHEET_HANDLER = "'sha256-MhtPZXr7+LpJUY5qtMutB+qWfQtMaPccfe7QXtCcEYc='";
 
@@ -56,6 +60,13 @@ export function createApp(options: AppOptions): Express {
     legacyHeaders: false,
     handler: (_req, _res, next) =>
       next(new AppError('too_many_attempts', 'Too many sign-in attempts from this address; wait a minute and try again.', 429)),
+  });
+
+  const signInBackoff = new SignInBackoff({
+    freeFailures: config.signInAccountFreeFailures,
+    baseDelayMs: config.signInAccountBaseDelayMs,
+    maxDelayMs: config.signInAccountMaxDelayMs,
+    forgetAfterMs: SIGN_IN_FORGET_AFTER_MS,
   });
 
   const app = express();
@@ -107,7 +118,7 @@ export function createApp(options: AppOptions): Express {
   const caseReviewer = requireCaseRole('owner', 'reviewer');
   const routes: Array<[method: 'get' | 'post' | 'patch' | 'delete', path: string, ...handlers: RequestHandler[]]> = [
     ['get', '/health', healthRoute(sequelize)],
-    ['post', '/auth/sign-in', signInLimiter, signInRoute(config)],
+    ['post', '/auth/sign-in', signInLimiter, signInRoute(config, signInBackoff)],
     ['post', '/auth/sign-out', authenticate, signOutRoute],
     ['post', '/invitations/accept', signInLimiter, acceptInvitationRoute(sequelize, config)],
     ['get', '/me', authenticate, meRoute],

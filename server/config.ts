@@ -29,6 +29,12 @@ const schema = z.object({
   signInLimit: positiveInt,
   /** QP_SIGNIN_WINDOW_MS: length of the sign-in rate-limit window */
   signInWindowMs: positiveInt,
+  /** QP_SIGNIN_ACCOUNT_FREE_FAILURES: wrong passwords for one account before its back-off starts */
+  signInAccountFreeFailures: positiveInt,
+  /** QP_SIGNIN_ACCOUNT_BASE_DELAY_MS: first back-off delay; each further failure doubles it */
+  signInAccountBaseDelayMs: positiveInt,
+  /** QP_SIGNIN_ACCOUNT_MAX_DELAY_MS: the longest back-off delay */
+  signInAccountMaxDelayMs: positiveInt,
   /** QP_SMTP_HOST: SMTP server for outgoing mail (the local mail sink by default) */
   smtpHost: z.string().min(1),
   /** QP_SMTP_PORT: SMTP port (local mail sink default 54325) */
@@ -79,6 +85,9 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     jwtTtlSeconds: env['QP_JWT_TTL_SECONDS'] || 1800,
     signInLimit: env['QP_SIGNIN_LIMIT'] || 10,
     signInWindowMs: env['QP_SIGNIN_WINDOW_MS'] || 60_000,
+    signInAccountFreeFailures: env['QP_SIGNIN_ACCOUNT_FREE_FAILURES'] || 5,
+    signInAccountBaseDelayMs: env['QP_SIGNIN_ACCOUNT_BASE_DELAY_MS'] || 2_000,
+    signInAccountMaxDelayMs: env['QP_SIGNIN_ACCOUNT_MAX_DELAY_MS'] || 300_000,
     smtpHost: env['QP_SMTP_HOST'] || '127.0.0.1',
     smtpPort: env['QP_SMTP_PORT'] || 54325,
     mailSink: ['1', 'true', 'yes'].includes((env['QP_MAIL_SINK'] ?? '').toLowerCase()),

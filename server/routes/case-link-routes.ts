@@ -22,6 +22,8 @@ export function createLinkRoute(sequelize: Sequelize, config: Config): RequestHa
   return async (req, res) => {
     const body = parseInput(createBody, req.body);
     const user = currentUser(req);
+    // The reply holds the link's token, shown once.
+    res.setHeader('Cache-Control', 'no-store');
     res.status(201).json(await createLink(sequelize, config, { id: user.id, name: user.name }, caseAccess(req), body));
   };
 }

@@ -79,6 +79,7 @@ export function acceptInvitationRoute(sequelize: Sequelize, config: Config): Req
   return async (req, res) => {
     const { token, name, password } = parseInput(acceptBody, req.body);
     const user = await acceptInvitation(sequelize, token, { name, password });
+    res.setHeader('Cache-Control', 'no-store');
     res.status(201).json(issueToken(user, config));
   };
 }
