@@ -17,6 +17,34 @@ export const DEMO_ACCOUNTS: ReadonlyArray<{ email: string; name: string; role: L
   { email: 'viewer@quiverpoint.test', name: 'Vera Viewer', role: 'viewer', password: 'quiver-viewer' },
 ];
 
+/** True for names and addresses that only this machine can reach. */
+export function isLoopback(host: string): boolean {
+  const h = host.toLowerCase().replace(/^\[|\]$/g, '');
+  return h === 'localhost' || h.endsWith('.localhost') || h === '::1' || /^127(\.\d{1,3}){3}$/.test(h) || /^::ffff:127(\.\d{1,3}){3}$/.test(h);
+}
+
+/**
+ * The demo passwords are public, so the demo is seeded only where nobody else can sign in with them: the app must
+ * listen on loopback (HOST) and its public URL (QP_PUBLIC_URL) must name this machine, unless QP_SEED_FORCE=1.
+ */
+export function assertDemoSeedAllowed(where: { host: string; publicUrl: string }, force: boolean): void {
+  if (force) return;
+  const problems: string[] = [];
+  if (!isLoopback(where.host)) problems.push(`the app listens on ${where.host} (HOST), beyond this machine`);
+  let urlHost = '';
+  try {
+    urlHost = new URL(where.publicUrl).hostname;
+  } catch {
+    // an unparsable URL is not a local one
+  }
+  if (!isLoopback(urlHost)) problems.push(`the public URL ${where.publicUrl} (QP_PUBLIC_URL) is not a local address`);
+  if (problems.length === 0) return;
+  throw new Error(
+    `refusing to seed the demo accounts, whose passwords are public: ${problems.join(' and ')}. ` +
+      'Seed only a local copy, or set QP_SEED_FORCE=1 if you really mean it.',
+  );
+}
+
 export async function seedDemo(sequelize: Sequelize): Promise<{ labId: string; created: number }> {
   let created = 0;
   const [lab, labCreated] = await Lab.findOrCreate({ where: { name: DEMO_LAB_NAME }, defaults: { name: DEMO_LAB_NAME } });

@@ -3,8 +3,9 @@
  */
 import { Sequelize } from 'sequelize';
 import { migrateUp } from '../db/migrator';
-import { seedDemo } from '../db/seed';
+import { assertDemoSeedAllowed, seedDemo } from '../db/seed';
 import { createSequelize } from '../db/sequelize';
+import { config } from '../config';
 import { withDatabase } from '../paths';
 
 /** Drops and creates `database` on the server of `url`, as the role in `url` (it needs CREATEDB). */
@@ -22,6 +23,7 @@ export async function recreateDatabase(url: string, database: string): Promise<s
 
 /** Migrates (and optionally seeds) the database at `url`; returns what it did. */
 export async function prepareDatabase(url: string, options: { seed: boolean }): Promise<{ migrations: string[]; seeded: number }> {
+  if (options.seed) assertDemoSeedAllowed(config(), ['1', 'true', 'yes'].includes((process.env['QP_SEED_FORCE'] ?? '').toLowerCase()));
   const sequelize = createSequelize(url, { poolMax: 2 });
   try {
     const migrations = await migrateUp(sequelize);
