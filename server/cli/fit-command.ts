@@ -4,7 +4,8 @@
  * upload (bench-csv.ts); the case, when given, supplies gravity and the friction smoothing.
  */
 import { readFileSync } from 'node:fs';
-import { FIT_MODELS, type FitModel, type FitRequest, type FitResult } from '../../shared/engine/fit';
+import type { FitRequest } from '../../shared/compute/protocol';
+import { FIT_MODELS, type FitModel, type FitResult } from '../../shared/engine/fit';
 import { AppError } from '../app-error';
 import { parseTraceCsv, type AngleUnit } from '../services/bench-csv';
 import { flag, stringOption, UsageError, type ParsedArgs } from './args';

@@ -21,6 +21,8 @@ const traceParam = z.object({ traceId: z.uuid() });
 
 const upload = multer({
   storage: multer.memoryStorage(),
+  // file names in the form's filename="..." are UTF-8 (browsers send them so), not Latin-1
+  defParamCharset: 'utf8',
   limits: { fileSize: MAX_TRACE_BYTES, files: 1, fields: 10, fieldSize: 4096, parts: 12 },
   fileFilter: (_req, file, done) => {
     if (CSV_TYPES.has(file.mimetype) || /\.csv$/i.test(file.originalname)) return done(null, true);
@@ -28,7 +30,7 @@ const upload = multer({
   },
 }).single('file');
 
-/** multer's single-file parser with its errors turned into ours (413 for a file over the limit). */
+/** multer's single-file parser with its errors turned into ours (413 for a file over the limit, 400 for a broken body). */
 export const receiveTraceFile: RequestHandler = (req, res, next) => {
   upload(req, res, (err: unknown) => {
     if (!err) return next();
@@ -37,7 +39,9 @@ export const receiveTraceFile: RequestHandler = (req, res, next) => {
       if (err.code === 'LIMIT_FILE_SIZE') return next(new AppError('file_too_large', `A bench trace may be at most ${MAX_TRACE_BYTES / 1024 / 1024} MiB.`, 413, 'file'));
       return next(new AppError('bad_upload', `The upload was refused: ${err.message}.`, 400, err.field ?? 'file'));
     }
-    return next(err);
+    // anything else comes from reading the multipart body itself (cut short, bad boundary, bad headers)
+    const reason = err instanceof Error ? err.message : String(err);
+    return next(new AppError('bad_upload', `The upload could not be read as a form: ${reason}.`, 400, 'file'));
   });
 };
 

@@ -7,7 +7,8 @@ import { AppError } from '../app-error';
 import { BenchTrace, User, type TraceSeries } from '../db/models';
 import type { CaseAccess } from '../middleware/case-access';
 import { offsetOf, type Paged } from '../middleware/paging';
-import { parseTraceCsv, type AngleUnit } from './bench-csv';
+import type { AngleUnit } from './bench-csv';
+import { parseTraceCsvOffThread } from './bench-csv-off-thread';
 import { audit, personRef, type Actor, type PersonRef } from './case-service';
 
 export interface TraceView {
@@ -45,6 +46,18 @@ function traceView(t: BenchTrace): TraceView {
   };
 }
 
+/** Longest label and file name the table holds. */
+export const MAX_LABEL_LENGTH = 200;
+export const MAX_FILE_NAME_LENGTH = 255;
+
+/** Cuts a name to `max` characters (whole code points), keeping its extension when it has a short one. */
+export function cutName(name: string, max: number): string {
+  const chars = Array.from(name);
+  if (chars.length <= max) return name;
+  const ext = /\.[^.]{1,8}$/.exec(name)?.[0] ?? '';
+  return Array.from(name.slice(0, name.length - ext.length)).slice(0, max - ext.length).join('') + ext;
+}
+
 export async function uploadTrace(
   sequelize: Sequelize,
   actor: Actor,
@@ -52,24 +65,30 @@ export async function uploadTrace(
   file: { originalName: string; text: string; sizeBytes: number },
   input: { label?: string | undefined; angleUnit?: AngleUnit | undefined },
 ): Promise<TraceView> {
-  const parsed = parseTraceCsv(file.text, input.angleUnit);
+  const parsed = await parseTraceCsvOffThread(file.text, input.angleUnit);
+  const fileName = cutName(file.originalName, MAX_FILE_NAME_LENGTH);
   return sequelize.transaction(async (transaction) => {
+    // the series goes in as JSON text made on the parser thread: stringifying 200 000 rows here would stall requests
     const trace = await BenchTrace.create(
       {
         caseId: access.caseId,
-        label: input.label ?? file.originalName.replace(/\.csv$/i, ''),
-        fileName: file.originalName,
+        label: input.label ?? cutName(file.originalName.replace(/\.csv$/i, ''), MAX_LABEL_LENGTH),
+        fileName,
         sizeBytes: file.sizeBytes,
         rows: parsed.rows,
         columns: parsed.columns,
         angleUnit: parsed.angleUnit,
         duration: parsed.duration,
-        series: parsed.series,
+        series: { time: [], angle: [] },
         csv: file.text,
         authorId: actor.id,
       },
       { transaction },
     );
+    await sequelize.query('UPDATE bench_traces SET series = CAST($series AS jsonb) WHERE id = $id', {
+      bind: { series: parsed.seriesJson, id: trace.id },
+      transaction,
+    });
     await audit(transaction, actor.id, access.labId, 'bench_trace.uploaded', access.caseId, { traceId: trace.id, fileName: trace.fileName, rows: trace.rows });
     return { ...traceView(trace), author: { id: actor.id, name: actor.name } };
   });
