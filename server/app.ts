@@ -11,7 +11,14 @@ import { rateLimit } from 'express-rate-limit';
 import helmet from 'helmet';
 import { pinoHttp } from 'pino-http';
 import type { Sequelize } from 'sequelize';
+import type { z } from 'zod';
+import {
+  addMemberResultSchema, auditEntrySchema, caseDetailSchema, caseListItemSchema, commentSchema, createdLinkSchema, healthSchema, invitationSchema,
+  labSummarySchema, linkSchema, meSchema, memberSchema, outboxMailSchema, pagedSchema, publicCaseSchema, recheckSchema, revisionDetailSchema,
+  runSchema, signedInSchema, sinkMailSchema, traceDetailSchema, traceSummarySchema,
+} from '../shared/api';
 import { AppError } from './app-error';
+import { checkReplies, declareReply } from './middleware/reply-contract';
 import type { Config } from './config';
 import { createLogger, redactUrl, type Logger } from './logger';
 import { createAuthenticator } from './middleware/auth';
@@ -41,6 +48,25 @@ export interface AppOptions {
   logger?: Logger;
   /** serve the built Angular app (default: when config.env is production) */
   serveClient?: boolean;
+  /**
+   * Tests only: every JSON reply must parse against its route's schema (errors against the error body and the
+   * code table), or the request fails with 500 `response_contract` naming the mismatch.
+   */
+  checkResponses?: boolean;
+}
+
+type Method = 'get' | 'post' | 'patch' | 'delete';
+
+/** One line of the route table: the reply schema of a 2xx answer, or null when the route answers without JSON. */
+export interface ApiRoute {
+  method: Method;
+  path: string;
+  reply: z.ZodType | null;
+  handlers: RequestHandler[];
+}
+
+function route(method: Method, path: string, reply: z.ZodType | null, ...handlers: RequestHandler[]): ApiRoute {
+  return { method, path, reply, handlers };
 }
 
 /** An account's failed sign-ins are forgotten after this long without another failure. */
@@ -116,48 +142,54 @@ export function createApp(options: AppOptions): Express {
   const caseAuthor = requireCaseRole('owner', 'analyst');
   const caseCommenter = requireCaseRole('owner', 'analyst', 'reviewer');
   const caseReviewer = requireCaseRole('owner', 'reviewer');
-  const routes: Array<[method: 'get' | 'post' | 'patch' | 'delete', path: string, ...handlers: RequestHandler[]]> = [
-    ['get', '/health', healthRoute(sequelize)],
-    ['post', '/auth/sign-in', signInLimiter, signInRoute(config, signInBackoff)],
-    ['post', '/auth/sign-out', authenticate, signOutRoute],
-    ['post', '/invitations/accept', signInLimiter, acceptInvitationRoute(sequelize, config)],
-    ['get', '/me', authenticate, meRoute],
-    ['get', '/labs', authenticate, myLabsRoute],
-    ['get', '/labs/:labId/members', authenticate, anyRole, membersRoute],
-    ['post', '/labs/:labId/members', authenticate, owner, addMemberRoute(sequelize, config)],
-    ['patch', '/labs/:labId/members/:userId', authenticate, owner, changeRoleRoute(sequelize)],
-    ['delete', '/labs/:labId/members/:userId', authenticate, owner, removeMemberRoute(sequelize)],
-    ['get', '/labs/:labId/invitations', authenticate, owner, invitationsRoute],
-    ['delete', '/labs/:labId/invitations/:invitationId', authenticate, owner, revokeInvitationRoute(sequelize)],
-    // case library (docs/api.md has the role matrix)
-    ['get', '/labs/:labId/cases', authenticate, anyRole, listCasesRoute],
-    ['post', '/labs/:labId/cases', authenticate, labAuthor, createCaseRoute(sequelize)],
-    ['get', '/cases/:caseId', authenticate, caseReader, caseRoute],
-    ['patch', '/cases/:caseId', authenticate, caseAuthor, patchCaseRoute(sequelize)],
-    ['post', '/cases/:caseId/duplicate', authenticate, caseAuthor, duplicateCaseRoute(sequelize)],
-    ['get', '/cases/:caseId/audit', authenticate, caseReader, auditRoute],
-    ['post', '/cases/:caseId/revisions', authenticate, caseAuthor, saveRevisionRoute(sequelize)],
-    ['get', '/cases/:caseId/revisions/:rev', authenticate, caseReader, revisionRoute],
-    ['get', '/cases/:caseId/revisions/:rev/report.pdf', authenticate, caseReader, reportRoute],
-    ['post', '/cases/:caseId/revisions/:rev/runs', authenticate, caseAuthor, storeRunRoute(sequelize)],
-    ['get', '/cases/:caseId/revisions/:rev/comments', authenticate, caseReader, commentsRoute],
-    ['post', '/cases/:caseId/revisions/:rev/comments', authenticate, caseCommenter, addCommentRoute(sequelize)],
-    ['post', '/cases/:caseId/revisions/:rev/recheck-request', authenticate, caseAuthor, recheckRequestRoute(sequelize, config)],
-    ['post', '/cases/:caseId/revisions/:rev/rechecks', authenticate, caseReviewer, recheckRoute(sequelize, config)],
-    ['get', '/cases/:caseId/links', authenticate, caseReader, listLinksRoute],
-    ['post', '/cases/:caseId/links', authenticate, caseAuthor, createLinkRoute(sequelize, config)],
-    ['delete', '/cases/:caseId/links/:linkId', authenticate, caseAuthor, revokeLinkRoute(sequelize)],
-    ['get', '/links/:token', publicLinkRoute],
-    ['get', '/links/:token/report.pdf', publicLinkReportRoute],
-    ['get', '/cases/:caseId/bench-traces', authenticate, caseReader, listTracesRoute],
-    ['post', '/cases/:caseId/bench-traces', authenticate, caseAuthor, receiveTraceFile, uploadTraceRoute(sequelize)],
-    ['get', '/cases/:caseId/bench-traces/:traceId', authenticate, caseReader, traceRoute],
-    ['get', '/cases/:caseId/bench-traces/:traceId/download', authenticate, caseReader, traceDownloadRoute],
-    ['delete', '/cases/:caseId/bench-traces/:traceId', authenticate, caseAuthor, deleteTraceRoute(sequelize)],
-    ['get', '/admin/outbox', authenticate, requireSiteAdmin, outboxRoute],
-    ['get', '/admin/mails', authenticate, requireSiteAdmin, sinkMailsRoute(config)],
+  // The contract of each reply is the schema beside its route (shared/api); docs/api.md has the role matrix.
+  const routes: ApiRoute[] = [
+    route('get', '/health', healthSchema, healthRoute(sequelize)),
+    route('post', '/auth/sign-in', signedInSchema, signInLimiter, signInRoute(config, signInBackoff)),
+    route('post', '/auth/sign-out', null, authenticate, signOutRoute),
+    route('post', '/invitations/accept', signedInSchema, signInLimiter, acceptInvitationRoute(sequelize, config)),
+    route('get', '/me', meSchema, authenticate, meRoute),
+    route('get', '/labs', pagedSchema(labSummarySchema), authenticate, myLabsRoute),
+    route('get', '/labs/:labId/members', pagedSchema(memberSchema), authenticate, anyRole, membersRoute),
+    route('post', '/labs/:labId/members', addMemberResultSchema, authenticate, owner, addMemberRoute(sequelize, config)),
+    route('patch', '/labs/:labId/members/:userId', memberSchema, authenticate, owner, changeRoleRoute(sequelize)),
+    route('delete', '/labs/:labId/members/:userId', null, authenticate, owner, removeMemberRoute(sequelize)),
+    route('get', '/labs/:labId/invitations', pagedSchema(invitationSchema), authenticate, owner, invitationsRoute),
+    route('delete', '/labs/:labId/invitations/:invitationId', null, authenticate, owner, revokeInvitationRoute(sequelize)),
+    // case library
+    route('get', '/labs/:labId/cases', pagedSchema(caseListItemSchema), authenticate, anyRole, listCasesRoute),
+    route('post', '/labs/:labId/cases', caseDetailSchema, authenticate, labAuthor, createCaseRoute(sequelize)),
+    route('get', '/cases/:caseId', caseDetailSchema, authenticate, caseReader, caseRoute),
+    route('patch', '/cases/:caseId', caseDetailSchema, authenticate, caseAuthor, patchCaseRoute(sequelize)),
+    route('post', '/cases/:caseId/duplicate', caseDetailSchema, authenticate, caseAuthor, duplicateCaseRoute(sequelize)),
+    route('get', '/cases/:caseId/audit', pagedSchema(auditEntrySchema), authenticate, caseReader, auditRoute),
+    route('post', '/cases/:caseId/revisions', revisionDetailSchema, authenticate, caseAuthor, saveRevisionRoute(sequelize)),
+    route('get', '/cases/:caseId/revisions/:rev', revisionDetailSchema, authenticate, caseReader, revisionRoute),
+    // a PDF file, not JSON
+    route('get', '/cases/:caseId/revisions/:rev/report.pdf', null, authenticate, caseReader, reportRoute),
+    route('post', '/cases/:caseId/revisions/:rev/runs', runSchema, authenticate, caseAuthor, storeRunRoute(sequelize)),
+    route('get', '/cases/:caseId/revisions/:rev/comments', pagedSchema(commentSchema), authenticate, caseReader, commentsRoute),
+    route('post', '/cases/:caseId/revisions/:rev/comments', commentSchema, authenticate, caseCommenter, addCommentRoute(sequelize)),
+    route('post', '/cases/:caseId/revisions/:rev/recheck-request', revisionDetailSchema, authenticate, caseAuthor, recheckRequestRoute(sequelize, config)),
+    route('post', '/cases/:caseId/revisions/:rev/rechecks', recheckSchema, authenticate, caseReviewer, recheckRoute(sequelize, config)),
+    route('get', '/cases/:caseId/links', pagedSchema(linkSchema), authenticate, caseReader, listLinksRoute),
+    route('post', '/cases/:caseId/links', createdLinkSchema, authenticate, caseAuthor, createLinkRoute(sequelize, config)),
+    route('delete', '/cases/:caseId/links/:linkId', linkSchema, authenticate, caseAuthor, revokeLinkRoute(sequelize)),
+    route('get', '/links/:token', publicCaseSchema, publicLinkRoute),
+    route('get', '/links/:token/report.pdf', null, publicLinkReportRoute),
+    route('get', '/cases/:caseId/bench-traces', pagedSchema(traceSummarySchema), authenticate, caseReader, listTracesRoute),
+    route('post', '/cases/:caseId/bench-traces', traceSummarySchema, authenticate, caseAuthor, receiveTraceFile, uploadTraceRoute(sequelize)),
+    route('get', '/cases/:caseId/bench-traces/:traceId', traceDetailSchema, authenticate, caseReader, traceRoute),
+    // a CSV file, not JSON
+    route('get', '/cases/:caseId/bench-traces/:traceId/download', null, authenticate, caseReader, traceDownloadRoute),
+    route('delete', '/cases/:caseId/bench-traces/:traceId', null, authenticate, caseAuthor, deleteTraceRoute(sequelize)),
+    route('get', '/admin/outbox', pagedSchema(outboxMailSchema), authenticate, requireSiteAdmin, outboxRoute),
+    route('get', '/admin/mails', pagedSchema(sinkMailSchema), authenticate, requireSiteAdmin, sinkMailsRoute(config)),
   ];
-  for (const [method, path, ...handlers] of routes) api[method](path, ...handlers);
+  if (options.checkResponses) api.use(checkReplies);
+  for (const { method, path, reply, handlers } of routes) {
+    api[method](path, ...(options.checkResponses ? [declareReply(reply)] : []), ...handlers);
+  }
   api.use(apiNotFound);
   app.use('/api', api);
 

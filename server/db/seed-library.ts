@@ -10,11 +10,11 @@ import type { Sequelize } from 'sequelize';
 import { DEMO_RIGS, demoRigCase, templateCase, type CaseParams } from '../../shared/case';
 import { computeRun, makeRunRecord, recheckRun, type RunRecord } from '../../shared/engine/run-record';
 import { config } from '../config';
-import type { CaseAccess } from '../middleware/case-access';
 import { uploadTrace } from '../services/bench-trace-service';
-import { addComment, audit, createCase, revisionDetail, saveRevision, storeRun, type Actor } from '../services/case-service';
-import { hashToken } from '../services/lab-service';
+import type { Actor, CaseAccess } from '../services/case-access';
+import { addComment, audit, createCase, revisionDetail, saveRevision, storeRun } from '../services/case-service';
 import { recordRecheck, requestRecheck } from '../services/recheck-service';
+import { hashToken } from '../services/tokens';
 import { CaseLink, CaseRecord, Membership, Revision, User, type LabRole } from './models';
 
 /** Token of the seeded case link (local demo only): open /links/<token>. */

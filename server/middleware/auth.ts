@@ -6,6 +6,7 @@ import type { RequestHandler } from 'express';
 import { Passport } from 'passport';
 import { ExtractJwt, Strategy as JwtStrategy } from 'passport-jwt';
 import { z } from 'zod';
+import { ERROR_STATUS, isErrorCode, type CodeWithStatus } from '../../shared/api/errors';
 import { AppError } from '../app-error';
 import { User } from '../db/models';
 import { isRevoked, publicUser, type PublicUser } from '../services/auth-service';
@@ -24,14 +25,18 @@ declare global {
 const claimsSchema = z.object({ sub: z.guid(), jti: z.guid(), exp: z.number() });
 
 interface Failure {
-  code: string;
+  code: CodeWithStatus<401>;
   message: string;
+}
+
+function isUnauthorized(code: unknown): code is CodeWithStatus<401> {
+  return isErrorCode(code) && ERROR_STATUS[code] === 401;
 }
 
 function failureFrom(info: unknown): Failure {
   if (typeof info === 'object' && info !== null) {
     const { code, message, name } = info as { code?: unknown; message?: unknown; name?: unknown };
-    if (typeof code === 'string' && typeof message === 'string') return { code, message };
+    if (isUnauthorized(code) && typeof message === 'string') return { code, message };
     if (name === 'TokenExpiredError') return { code: 'token_expired', message: 'Your session has expired; sign in again.' };
     if (name === 'JsonWebTokenError' || name === 'NotBeforeError') return { code: 'invalid_token', message: 'The access token is not valid.' };
     if (message === 'No auth token') return { code: 'unauthenticated', message: 'Sign in first: this needs an access token (Authorization: Bearer ...).' };

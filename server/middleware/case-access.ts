@@ -6,6 +6,7 @@ import type { Request, RequestHandler } from 'express';
 import { z } from 'zod';
 import { AppError } from '../app-error';
 import { CaseRecord, Membership, type LabRole } from '../db/models';
+import type { CaseAccess } from '../services/case-access';
 import { currentUser } from './auth';
 
 declare global {
@@ -15,13 +16,6 @@ declare global {
       caseAccess?: CaseAccess;
     }
   }
-}
-
-export interface CaseAccess {
-  caseId: string;
-  labId: string;
-  role: LabRole;
-  archived: boolean;
 }
 
 const caseId = z.uuid();

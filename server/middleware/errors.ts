@@ -1,5 +1,6 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { ConnectionError, DatabaseError } from 'sequelize';
+import type { ErrorCode } from '../../shared/api/errors';
 import { AppError } from '../app-error';
 
 /** Seconds a client should wait before retrying while the database is unreachable. */
@@ -35,7 +36,7 @@ function httpish(err: unknown): HttpishError {
 /** Last middleware: every error leaves as `{ error: { code, message, field? } }`. */
 export const jsonErrors: ErrorRequestHandler = (err: unknown, req, res, _next) => {
   let status = 500;
-  let body: { code: string; message: string; field?: string } = { code: 'internal_error', message: 'Something went wrong on the server.' };
+  let body: { code: ErrorCode; message: string; field?: string } = { code: 'internal_error', message: 'Something went wrong on the server.' };
   const { status: rawStatus, type } = httpish(err);
   if (isDatabaseUnavailable(err)) {
     status = 503;
@@ -49,8 +50,12 @@ export const jsonErrors: ErrorRequestHandler = (err: unknown, req, res, _next) =
   } else if (type === 'entity.too.large') {
     status = 413;
     body = { code: 'payload_too_large', message: 'The request body is too large.' };
+  } else if (rawStatus === 415) {
+    status = 415;
+    body = { code: 'unsupported_type', message: err instanceof Error ? err.message : 'Unsupported content type or encoding.' };
   } else if (typeof rawStatus === 'number' && rawStatus >= 400 && rawStatus < 500) {
-    status = rawStatus;
+    // One status per code: any other client error of the body parser is a plain 400.
+    status = 400;
     body = { code: 'bad_request', message: err instanceof Error ? err.message : 'Bad request.' };
   }
   if (body.code === 'database_unavailable') res.setHeader('Retry-After', String(DATABASE_RETRY_AFTER_SECONDS));

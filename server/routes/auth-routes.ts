@@ -1,16 +1,11 @@
 import type { RequestHandler } from 'express';
-import { z } from 'zod';
+import { signInBodySchema } from '../../shared/api/auth';
 import { AppError } from '../app-error';
 import type { Config } from '../config';
 import { currentUser } from '../middleware/auth';
 import { parseInput } from '../middleware/validate';
 import { normaliseEmail, signIn, signOut } from '../services/auth-service';
 import type { SignInBackoff } from '../services/sign-in-backoff';
-
-const signInBody = z.object({
-  email: z.string().trim().min(1).max(320),
-  password: z.string().min(1).max(1024),
-});
 
 function waitText(ms: number): string {
   const seconds = Math.ceil(ms / 1000);
@@ -20,7 +15,7 @@ function waitText(ms: number): string {
 /** Sign-in behind the per-account back-off (the per-address limit runs before this in the route table). */
 export function signInRoute(config: Config, backoff: SignInBackoff): RequestHandler {
   return async (req, res) => {
-    const { email, password } = parseInput(signInBody, req.body);
+    const { email, password } = parseInput(signInBodySchema, req.body);
     const account = normaliseEmail(email);
     const wait = backoff.waitMs(account);
     if (wait > 0) {

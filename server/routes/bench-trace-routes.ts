@@ -2,10 +2,10 @@ import type { RequestHandler } from 'express';
 import multer from 'multer';
 import type { Sequelize } from 'sequelize';
 import { z } from 'zod';
+import { pageQuerySchema, uploadTraceFieldsSchema } from '../../shared/api';
 import { AppError } from '../app-error';
 import { currentUser } from '../middleware/auth';
 import { caseAccess } from '../middleware/case-access';
-import { pageQuery } from '../middleware/paging';
 import { assertStorableText } from '../middleware/json-body';
 import { parseInput } from '../middleware/validate';
 import { deleteTrace, listTraces, traceCsv, traceDetail, uploadTrace } from '../services/bench-trace-service';
@@ -13,10 +13,6 @@ import { deleteTrace, listTraces, traceCsv, traceDetail, uploadTrace } from '../
 export const MAX_TRACE_BYTES = 2 * 1024 * 1024;
 const CSV_TYPES = new Set(['text/csv', 'application/csv', 'text/comma-separated-values']);
 
-const uploadFields = z.object({
-  label: z.string().trim().min(1).max(200).optional(),
-  angleUnit: z.enum(['deg', 'rad']).optional(),
-});
 const traceParam = z.object({ traceId: z.uuid() });
 
 const upload = multer({
@@ -51,7 +47,7 @@ export function uploadTraceRoute(sequelize: Sequelize): RequestHandler {
     if (!file) throw new AppError('missing_field', 'file is required (multipart field "file").', 400, 'file');
     assertStorableText(req.body ?? {});
     assertStorableText(file.originalname, { what: 'file' });
-    const fields = parseInput(uploadFields, req.body ?? {});
+    const fields = parseInput(uploadTraceFieldsSchema, req.body ?? {});
     // A NUL byte means a binary file whatever its name says.
     if (file.buffer.includes(0)) throw new AppError('unsupported_type', 'The file is not text; a bench trace must be a CSV file.', 415, 'file');
     const text = file.buffer.toString('utf8');
@@ -62,7 +58,7 @@ export function uploadTraceRoute(sequelize: Sequelize): RequestHandler {
 }
 
 export const listTracesRoute: RequestHandler = async (req, res) => {
-  const page = parseInput(pageQuery, req.query, 'query');
+  const page = parseInput(pageQuerySchema, req.query, 'query');
   res.json(await listTraces(caseAccess(req).caseId, page));
 };
 

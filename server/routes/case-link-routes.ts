@@ -1,26 +1,22 @@
 import type { RequestHandler } from 'express';
 import type { Sequelize } from 'sequelize';
 import { z } from 'zod';
+import { createLinkBodySchema, linkTokenSchema, pageQuerySchema } from '../../shared/api';
 import { AppError } from '../app-error';
 import type { Config } from '../config';
 import { currentUser } from '../middleware/auth';
 import { caseAccess } from '../middleware/case-access';
-import { pageQuery } from '../middleware/paging';
 import { parseInput } from '../middleware/validate';
-import { MAX_LINK_DAYS, createLink, listLinks, readLink, revokeLink } from '../services/case-link-service';
+import { createLink, listLinks, readLink, revokeLink } from '../services/case-link-service';
 import { linkReport } from '../services/report-service';
 import { sendReport } from './case-routes';
 
-const createBody = z.object({
-  revision: z.number().int().min(1),
-  expiresInDays: z.number().int().min(1).max(MAX_LINK_DAYS).default(30),
-});
 const linkParam = z.object({ linkId: z.uuid() });
-const tokenParam = z.object({ token: z.string().regex(/^[A-Za-z0-9_-]{20,100}$/) });
+const tokenParam = z.object({ token: linkTokenSchema });
 
 export function createLinkRoute(sequelize: Sequelize, config: Config): RequestHandler {
   return async (req, res) => {
-    const body = parseInput(createBody, req.body);
+    const body = parseInput(createLinkBodySchema, req.body);
     const user = currentUser(req);
     // The reply holds the link's token, shown once.
     res.setHeader('Cache-Control', 'no-store');
@@ -29,7 +25,7 @@ export function createLinkRoute(sequelize: Sequelize, config: Config): RequestHa
 }
 
 export const listLinksRoute: RequestHandler = async (req, res) => {
-  const page = parseInput(pageQuery, req.query, 'query');
+  const page = parseInput(pageQuerySchema, req.query, 'query');
   res.json(await listLinks(caseAccess(req).caseId, page));
 };
 

@@ -4,7 +4,7 @@ import { labsOf } from '../services/lab-service';
 
 export const meRoute: RequestHandler = async (req, res) => {
   const { tokenId: _tokenId, tokenExp, ...user } = currentUser(req);
-  const labs = await labsOf(user.id, 1000, 0);
+  const labs = await labsOf(user.id, { page: 1, pageSize: 1000 });
   res.json({
     user,
     memberships: labs.items.map((lab) => ({ labId: lab.id, labName: lab.name, role: lab.role })),

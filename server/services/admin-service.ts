@@ -1,30 +1,8 @@
 /** Site-admin views of outgoing mail: the outbox and what the local mail sink received. */
 import { Op, type WhereOptions } from 'sequelize';
 import { OutboxMail, SinkMail } from '../db/models';
-import { offsetOf, type Paged } from '../middleware/paging';
-
-export type OutboxState = 'pending' | 'sent' | 'failed';
-
-export interface OutboxView {
-  id: string;
-  to: string;
-  subject: string;
-  state: OutboxState;
-  attempts: number;
-  nextAttemptAt: string | null;
-  lastError: string | null;
-  sentAt: string | null;
-  createdAt: string;
-}
-
-export interface SinkMailView {
-  id: string;
-  from: string;
-  to: string[];
-  subject: string;
-  text: string;
-  receivedAt: string;
-}
+import type { OutboxMailView, OutboxState, SinkMailView } from '../../shared/api';
+import { offsetOf, paged, type PageQuery, type Paged } from './paging';
 
 function stateOf(m: OutboxMail): OutboxState {
   if (m.sentAt) return 'sent';
@@ -37,7 +15,7 @@ const STATE_WHERE: Record<OutboxState, WhereOptions<OutboxMail>> = {
   failed: { sentAt: null, nextAttemptAt: null },
 };
 
-export async function listOutbox(q: { page: number; pageSize: number; state?: OutboxState | undefined }): Promise<Paged<OutboxView>> {
+export async function listOutbox(q: PageQuery & { state?: OutboxState | undefined }): Promise<Paged<OutboxMailView>> {
   const { rows, count } = await OutboxMail.findAndCountAll({
     where: q.state ? STATE_WHERE[q.state] : {},
     order: [['id', 'DESC']],
@@ -62,7 +40,7 @@ export async function listOutbox(q: { page: number; pageSize: number; state?: Ou
   };
 }
 
-export async function listSinkMails(q: { page: number; pageSize: number }): Promise<Paged<SinkMailView>> {
+export async function listSinkMails(q: PageQuery): Promise<Paged<SinkMailView>> {
   const { rows, count } = await SinkMail.findAndCountAll({ order: [['id', 'DESC']], limit: q.pageSize, offset: offsetOf(q) });
   return {
     items: rows.map((m) => ({ id: String(m.id), from: m.mailFrom, to: m.rcptTo, subject: m.subject, text: m.textBody, receivedAt: m.receivedAt.toISOString() })),

@@ -5,24 +5,11 @@
 import { randomUUID } from 'node:crypto';
 import jwt from 'jsonwebtoken';
 import { Op } from 'sequelize';
+import type { PublicUser, SignedIn } from '../../shared/api/auth';
 import { AppError } from '../app-error';
 import type { Config } from '../config';
 import { AuditEvent, RevokedToken, User } from '../db/models';
 import { hashPassword, verifyPassword } from './passwords';
-
-export interface PublicUser {
-  id: string;
-  email: string;
-  name: string;
-  isSiteAdmin: boolean;
-}
-
-export interface SignedIn {
-  token: string;
-  tokenType: 'Bearer';
-  expiresAt: string;
-  user: PublicUser;
-}
 
 /** Claims we put in (and require from) an access token. */
 export interface AccessClaims {
@@ -30,6 +17,8 @@ export interface AccessClaims {
   jti: string;
   exp: number;
 }
+
+export type { PublicUser };
 
 export function publicUser(user: User): PublicUser {
   return { id: user.id, email: user.email, name: user.name, isSiteAdmin: user.isSiteAdmin };

@@ -6,12 +6,13 @@
 import { createRequire } from 'node:module';
 import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
+import { ERROR_STATUS, type ErrorCode } from '../../shared/api/errors';
 import { AppError } from '../app-error';
 import type { AngleUnit, ParsedTrace } from './bench-csv';
 
 export type ParseReply =
   | { id: number; ok: true; meta: Omit<ParsedTrace, 'series'>; seriesJson: string }
-  | { id: number; ok: false; error: { code: string; message: string; status: number; field: string | undefined } };
+  | { id: number; ok: false; error: { code: ErrorCode; message: string; field: string | undefined } };
 
 /** A parsed trace whose series is JSON text (for a jsonb column). */
 export type ParsedTraceJson = Omit<ParsedTrace, 'series'> & { seriesJson: string };
@@ -47,7 +48,7 @@ function startWorker(): Worker {
     if (!p) return;
     pending.delete(reply.id);
     if (reply.ok) p.resolve({ ...reply.meta, seriesJson: reply.seriesJson });
-    else p.reject(new AppError(reply.error.code, reply.error.message, reply.error.status, reply.error.field));
+    else p.reject(new AppError(reply.error.code, reply.error.message, ERROR_STATUS[reply.error.code], reply.error.field));
   });
   w.on('error', (error: Error) => failAll(error));
   w.on('exit', () => failAll(new Error('the CSV parser thread stopped')));

@@ -17,8 +17,8 @@ port.on('message', (message: { id: number; text: string; unit: AngleUnit | undef
     reply = { id: message.id, ok: true, meta, seriesJson: JSON.stringify(series) };
   } catch (error: unknown) {
     reply = error instanceof AppError
-      ? { id: message.id, ok: false, error: { code: error.code, message: error.message, status: error.status, field: error.field } }
-      : { id: message.id, ok: false, error: { code: 'bad_csv', message: error instanceof Error ? error.message : String(error), status: 422, field: 'file' } };
+      ? { id: message.id, ok: false, error: { code: error.code, message: error.message, field: error.field } }
+      : { id: message.id, ok: false, error: { code: 'bad_csv', message: error instanceof Error ? error.message : String(error), field: 'file' } };
   }
   port.postMessage(reply);
 });

@@ -4,34 +4,17 @@
  */
 import type { Sequelize } from 'sequelize';
 import { AppError } from '../app-error';
-import { BenchTrace, User, type TraceSeries } from '../db/models';
-import type { CaseAccess } from '../middleware/case-access';
-import { offsetOf, type Paged } from '../middleware/paging';
-import type { AngleUnit } from './bench-csv';
+import type { AngleUnit, TraceDetail, TraceSummary } from '../../shared/api';
+import { BenchTrace, User } from '../db/models';
 import { parseTraceCsvOffThread } from './bench-csv-off-thread';
-import { audit, personRef, type Actor, type PersonRef } from './case-service';
-
-export interface TraceView {
-  id: string;
-  label: string;
-  fileName: string;
-  sizeBytes: number;
-  rows: number;
-  columns: string[];
-  angleUnit: AngleUnit;
-  duration: number;
-  createdAt: string;
-  author: PersonRef | null;
-}
-
-export interface TraceDetail extends TraceView {
-  series: TraceSeries;
-}
+import type { Actor, CaseAccess } from './case-access';
+import { audit, personRef } from './case-service';
+import { offsetOf, paged, type PageQuery, type Paged } from './paging';
 
 const withAuthor = { model: User, as: 'author', attributes: ['id', 'name'] };
 const META = ['id', 'caseId', 'label', 'fileName', 'sizeBytes', 'rows', 'columns', 'angleUnit', 'duration', 'createdAt', 'authorId'];
 
-function traceView(t: BenchTrace): TraceView {
+function traceSummary(t: BenchTrace): TraceSummary {
   return {
     id: t.id,
     label: t.label,
@@ -64,7 +47,7 @@ export async function uploadTrace(
   access: CaseAccess,
   file: { originalName: string; text: string; sizeBytes: number },
   input: { label?: string | undefined; angleUnit?: AngleUnit | undefined },
-): Promise<TraceView> {
+): Promise<TraceSummary> {
   const parsed = await parseTraceCsvOffThread(file.text, input.angleUnit);
   const fileName = cutName(file.originalName, MAX_FILE_NAME_LENGTH);
   return sequelize.transaction(async (transaction) => {
@@ -90,11 +73,11 @@ export async function uploadTrace(
       transaction,
     });
     await audit(transaction, actor.id, access.labId, 'bench_trace.uploaded', access.caseId, { traceId: trace.id, fileName: trace.fileName, rows: trace.rows });
-    return { ...traceView(trace), author: { id: actor.id, name: actor.name } };
+    return { ...traceSummary(trace), author: { id: actor.id, name: actor.name } };
   });
 }
 
-export async function listTraces(caseId: string, page: { page: number; pageSize: number }): Promise<Paged<TraceView>> {
+export async function listTraces(caseId: string, page: PageQuery): Promise<Paged<TraceSummary>> {
   const { rows, count } = await BenchTrace.findAndCountAll({
     where: { caseId },
     attributes: META,
@@ -103,7 +86,7 @@ export async function listTraces(caseId: string, page: { page: number; pageSize:
     limit: page.pageSize,
     offset: offsetOf(page),
   });
-  return { items: rows.map(traceView), total: count, page: page.page, pageSize: page.pageSize };
+  return paged(rows.map(traceSummary), count, page);
 }
 
 async function findTrace(caseId: string, traceId: string, attributes?: string[]): Promise<BenchTrace> {
@@ -114,7 +97,7 @@ async function findTrace(caseId: string, traceId: string, attributes?: string[])
 
 export async function traceDetail(caseId: string, traceId: string): Promise<TraceDetail> {
   const trace = await findTrace(caseId, traceId, [...META, 'series']);
-  return { ...traceView(trace), series: trace.series };
+  return { ...traceSummary(trace), series: trace.series };
 }
 
 export async function traceCsv(caseId: string, traceId: string): Promise<{ fileName: string; csv: string }> {

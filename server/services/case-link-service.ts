@@ -3,42 +3,15 @@
  * once when the link is made; only its SHA-256 is stored. A link stops working when it expires or is revoked
  * (410), and no route accepts a link token for writing.
  */
-import { randomBytes } from 'node:crypto';
 import type { Sequelize } from 'sequelize';
+import type { CreatedLink, LinkView, PersonRef, PublicCaseView } from '../../shared/api';
 import { AppError } from '../app-error';
 import type { Config } from '../config';
 import { CaseLink, CaseRecord, Lab, Revision, User } from '../db/models';
-import type { CaseAccess } from '../middleware/case-access';
-import { offsetOf, type Paged } from '../middleware/paging';
-import { audit, findRevision, revisionDetail, type Actor, type PersonRef, type RevisionDetail } from './case-service';
-import { hashToken } from './lab-service';
-
-export const MAX_LINK_DAYS = 365;
-
-export interface CreatedLink {
-  id: string;
-  token: string;
-  url: string;
-  revision: number;
-  expiresAt: string;
-}
-
-export interface LinkView {
-  id: string;
-  revision: number;
-  expiresAt: string;
-  revokedAt: string | null;
-  state: 'active' | 'expired' | 'revoked';
-  createdBy: PersonRef | null;
-  createdAt: string;
-}
-
-export interface PublicCaseView {
-  caseTitle: string;
-  labName: string;
-  revision: RevisionDetail;
-  expiresAt: string;
-}
+import type { Actor, CaseAccess } from './case-access';
+import { audit, findRevision, revisionDetail } from './case-service';
+import { offsetOf, paged, type PageQuery, type Paged } from './paging';
+import { hashToken, newToken } from './tokens';
 
 function linkState(link: CaseLink, now = new Date()): LinkView['state'] {
   if (link.revokedAt) return 'revoked';
@@ -66,7 +39,7 @@ export async function createLink(
 ): Promise<CreatedLink> {
   return sequelize.transaction(async (transaction) => {
     const revision = await findRevision(access.caseId, input.revision, transaction);
-    const token = randomBytes(32).toString('base64url');
+    const token = newToken();
     const link = await CaseLink.create(
       {
         caseId: access.caseId,
@@ -88,7 +61,7 @@ export async function createLink(
   });
 }
 
-export async function listLinks(caseId: string, page: { page: number; pageSize: number }): Promise<Paged<LinkView>> {
+export async function listLinks(caseId: string, page: PageQuery): Promise<Paged<LinkView>> {
   const { rows, count } = await CaseLink.findAndCountAll({
     where: { caseId },
     include: [{ model: Revision, as: 'revision', attributes: ['number'] }],
@@ -99,7 +72,7 @@ export async function listLinks(caseId: string, page: { page: number; pageSize: 
   const ids = [...new Set(rows.map((l) => l.createdById).filter((id): id is string => id !== null))];
   const users = ids.length ? await User.findAll({ where: { id: ids }, attributes: ['id', 'name'] }) : [];
   const creators = new Map(users.map((u) => [u.id, { id: u.id, name: u.name }]));
-  return { items: rows.map((l) => linkView(l, l.revision?.number ?? 0, creators)), total: count, page: page.page, pageSize: page.pageSize };
+  return paged(rows.map((l) => linkView(l, l.revision?.number ?? 0, creators)), count, page);
 }
 
 export async function revokeLink(sequelize: Sequelize, actor: Actor, access: CaseAccess, linkId: string): Promise<LinkView> {

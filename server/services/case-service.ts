@@ -20,94 +20,13 @@ import {
   type LabRole,
   type RecheckState,
 } from '../db/models';
-import type { CaseAccess } from '../middleware/case-access';
-import { offsetOf, type Paged } from '../middleware/paging';
+import type {
+  AuditEntry, CaseDetail, CaseListItem, CaseSort, CommentView, PersonRef, RecheckView, RevisionDetail, RevisionSummary, RunView, StoreRunBody,
+} from '../../shared/api';
+import type { Actor, CaseAccess } from './case-access';
+import { offsetOf, paged, type PageQuery, type Paged } from './paging';
 
-export interface Actor {
-  id: string;
-  name: string;
-}
-
-export interface PersonRef {
-  id: string;
-  name: string;
-}
-
-export interface CaseListItem {
-  id: string;
-  title: string;
-  tags: string[];
-  labId: string;
-  latestRevision: number;
-  recheckState: RecheckState;
-  author: PersonRef | null;
-  createdAt: string;
-  updatedAt: string;
-  archived: boolean;
-}
-
-export interface RevisionSummary {
-  number: number;
-  paramsDigest: string;
-  note: string;
-  author: PersonRef | null;
-  createdAt: string;
-  recheckState: RecheckState;
-}
-
-export interface CaseDetail extends Omit<CaseListItem, 'labId'> {
-  lab: { id: string; name: string };
-  myRole: LabRole;
-  revisions: RevisionSummary[];
-}
-
-export interface RunView {
-  id: string;
-  kind: string;
-  settings: Record<string, unknown>;
-  summary: Record<string, unknown>;
-  resultDigest: string;
-  engineVersion: string;
-  author: PersonRef | null;
-  createdAt: string;
-}
-
-export interface RecheckView {
-  id: string;
-  reviewer: PersonRef | null;
-  state: 'confirmed' | 'disputed';
-  digestMatch: boolean;
-  comparisons: unknown[];
-  comment: string;
-  createdAt: string;
-}
-
-export interface CommentView {
-  id: string;
-  body: string;
-  author: PersonRef | null;
-  createdAt: string;
-}
-
-export interface RecheckRequestView {
-  requestedBy: PersonRef | null;
-  reviewer: PersonRef | null;
-  message: string | null;
-  requestedAt: string;
-}
-
-export interface RevisionDetail extends RevisionSummary {
-  caseId: string;
-  caseTitle: string;
-  params: CaseParams;
-  schemaVersion: number;
-  recheckRequest: RecheckRequestView | null;
-  runs: RunView[];
-  rechecks: RecheckView[];
-  comments?: CommentView[];
-}
-
-export type CaseSort = '-updated' | 'updated' | 'title' | '-title';
+export type { Actor };
 
 export interface CaseQuery {
   search?: string | undefined;
@@ -211,7 +130,7 @@ export async function listCases(labId: string, q: CaseQuery): Promise<Paged<Case
     limit: q.pageSize,
     offset: offsetOf(q),
   });
-  return { items: rows.map(listItem), total: count, page: q.page, pageSize: q.pageSize };
+  return paged(rows.map(listItem), count, q);
 }
 
 export async function caseDetail(caseId: string, myRole: LabRole, transaction?: Transaction): Promise<CaseDetail> {
@@ -424,27 +343,16 @@ export async function saveRevision(
 
 function staleRevision(base: number, latest: number): AppError {
   return new AppError(
-    'stale-revision',
+    'stale_revision',
     `This case moved on: you edited r${base} but the latest is r${latest}. Nothing was saved; open r${latest}, reapply your changes and save again.`,
     409,
     'baseRevision',
   );
 }
 
-/** Shape of a stored run as the client sends it (the shared RunRecord). */
-export interface RunInput {
-  kind: string;
-  params: unknown;
-  settings: Record<string, unknown>;
-  summary: Record<string, number | string | boolean | null>;
-  resultDigest: string;
-  engineVersion: string;
-  caseDigest?: string | undefined;
-}
-
-export async function storeRun(sequelize: Sequelize, actor: Actor, access: CaseAccess, number: number, input: RunInput): Promise<RunView> {
+export async function storeRun(sequelize: Sequelize, actor: Actor, access: CaseAccess, number: number, input: StoreRunBody): Promise<RunView> {
   if (input.settings['kind'] !== input.kind) {
-    throw new AppError('invalid_field', 'settings.kind must equal kind.', 422, 'settings.kind');
+    throw new AppError('settings_kind_mismatch', 'settings.kind must equal kind.', 422, 'settings.kind');
   }
   const { digest } = validParams(input.params);
   return sequelize.transaction(async (transaction) => {
@@ -472,11 +380,16 @@ export async function storeRun(sequelize: Sequelize, actor: Actor, access: CaseA
   });
 }
 
-export async function listComments(caseId: string, number: number): Promise<CommentView[]> {
+export async function listComments(caseId: string, number: number, page: PageQuery): Promise<Paged<CommentView>> {
   const revision = await findRevision(caseId, number);
-  const comments = await Comment.findAll({ where: { revisionId: revision.id }, order: [['createdAt', 'ASC'], ['id', 'ASC']] });
-  const authors = await people(comments.map((c) => c.authorId));
-  return comments.map((c) => commentView(c, authors));
+  const { rows, count } = await Comment.findAndCountAll({
+    where: { revisionId: revision.id },
+    order: [['createdAt', 'ASC'], ['id', 'ASC']],
+    limit: page.pageSize,
+    offset: offsetOf(page),
+  });
+  const authors = await people(rows.map((c) => c.authorId));
+  return paged(rows.map((c) => commentView(c, authors)), count, page);
 }
 
 export async function addComment(sequelize: Sequelize, actor: Actor, access: CaseAccess, number: number, body: string): Promise<CommentView> {
@@ -488,15 +401,7 @@ export async function addComment(sequelize: Sequelize, actor: Actor, access: Cas
   });
 }
 
-export interface AuditView {
-  id: string;
-  action: string;
-  actor: PersonRef | null;
-  details: Record<string, unknown>;
-  createdAt: string;
-}
-
-export async function caseAudit(caseId: string, page: { page: number; pageSize: number }): Promise<Paged<AuditView>> {
+export async function caseAudit(caseId: string, page: PageQuery): Promise<Paged<AuditEntry>> {
   const { rows, count } = await AuditEvent.findAndCountAll({
     where: { details: { caseId } },
     order: [['id', 'DESC']],
@@ -504,16 +409,12 @@ export async function caseAudit(caseId: string, page: { page: number; pageSize: 
     offset: offsetOf(page),
   });
   const actors = await people(rows.map((e) => e.actorId));
-  return {
-    items: rows.map((e) => ({
-      id: String(e.id),
-      action: e.action,
-      actor: e.actorId ? (actors.get(e.actorId) ?? null) : null,
-      details: e.details,
-      createdAt: e.createdAt.toISOString(),
-    })),
-    total: count,
-    page: page.page,
-    pageSize: page.pageSize,
-  };
+  const items = rows.map((e) => ({
+    id: String(e.id),
+    action: e.action,
+    actor: e.actorId ? (actors.get(e.actorId) ?? null) : null,
+    details: e.details,
+    createdAt: e.createdAt.toISOString(),
+  }));
+  return paged(items, count, page);
 }

@@ -3,52 +3,19 @@
  * A lab always keeps at least one owner. An invitation and its mail are written in one transaction: the mail goes
  * through the outbox, and only the token's hash stays in `invitations`.
  */
-import { createHash, randomBytes } from 'node:crypto';
 import { Op, type Sequelize, type Transaction } from 'sequelize';
+import type { AddMemberResult, Invitation as InvitationView, LabRole, LabSummary, Member } from '../../shared/api';
 import { AppError } from '../app-error';
 import type { Config } from '../config';
-import { AuditEvent, Invitation, Lab, Membership, User, type LabRole } from '../db/models';
+import { AuditEvent, Invitation, Lab, Membership, User } from '../db/models';
+import type { Actor } from './case-access';
+import { offsetOf, paged, type PageQuery, type Paged } from './paging';
 import { hashPassword } from './passwords';
 import { normaliseEmail } from './auth-service';
 import { enqueueMail } from './outbox-service';
+import { hashToken, newToken } from './tokens';
 
-export interface LabSummary {
-  id: string;
-  name: string;
-  role: LabRole;
-}
-
-export interface MemberView {
-  userId: string;
-  email: string;
-  name: string;
-  role: LabRole;
-  joinedAt: string;
-}
-
-export interface InvitationView {
-  id: string;
-  labId: string;
-  email: string;
-  role: LabRole;
-  invitedAt: string;
-  expiresAt: string;
-}
-
-/** Who is acting: their id for the audit trail and their name for the mail. */
-export interface Actor {
-  id: string;
-  name: string;
-}
-
-export interface Page<T> {
-  items: T[];
-  total: number;
-  limit: number;
-  offset: number;
-}
-
-function memberView(m: Membership): MemberView {
+function memberView(m: Membership): Member {
   if (!m.user) throw new Error('membership loaded without its user');
   return { userId: m.userId, email: m.user.email, name: m.user.name, role: m.role, joinedAt: m.createdAt.toISOString() };
 }
@@ -57,36 +24,28 @@ function invitationView(i: Invitation): InvitationView {
   return { id: i.id, labId: i.labId, email: i.email, role: i.role, invitedAt: i.createdAt.toISOString(), expiresAt: i.expiresAt.toISOString() };
 }
 
-export function hashToken(token: string): string {
-  return createHash('sha256').update(token).digest('hex');
-}
-
-export async function labsOf(userId: string, limit: number, offset: number): Promise<Page<LabSummary>> {
+export async function labsOf(userId: string, q: PageQuery): Promise<Paged<LabSummary>> {
   const { rows, count } = await Membership.findAndCountAll({
     where: { userId },
     include: [{ model: Lab, as: 'lab' }],
     order: [[{ model: Lab, as: 'lab' }, 'name', 'ASC']],
-    limit,
-    offset,
+    limit: q.pageSize,
+    offset: offsetOf(q),
   });
   const items = rows.map((m) => ({ id: m.labId, name: m.lab?.name ?? '', role: m.role }));
-  return { items, total: count, limit, offset };
+  return paged(items, count, q);
 }
 
-export async function membersOf(labId: string, limit: number, offset: number): Promise<Page<MemberView>> {
+export async function membersOf(labId: string, q: PageQuery): Promise<Paged<Member>> {
   const { rows, count } = await Membership.findAndCountAll({
     where: { labId },
     include: [{ model: User, as: 'user' }],
     order: [[{ model: User, as: 'user' }, 'name', 'ASC']],
-    limit,
-    offset,
+    limit: q.pageSize,
+    offset: offsetOf(q),
   });
-  return { items: rows.map(memberView), total: count, limit, offset };
+  return paged(rows.map(memberView), count, q);
 }
-
-export type AddResult =
-  | { kind: 'member'; member: MemberView }
-  | { kind: 'invitation'; invitation: InvitationView; queued: true };
 
 /**
  * Adds an existing account to the lab, or invites an unknown address: the invitation (token hash only) and an
@@ -100,7 +59,7 @@ export async function addMember(
   rawEmail: string,
   role: LabRole,
   config: Pick<Config, 'publicUrl' | 'invitationTtlHours'>,
-): Promise<AddResult> {
+): Promise<AddMemberResult> {
   const email = normaliseEmail(rawEmail);
   return sequelize.transaction(async (transaction) => {
     const user = await User.findOne({ where: { email }, transaction });
@@ -112,7 +71,7 @@ export async function addMember(
       await AuditEvent.create({ actorId: actor.id, labId, action: 'member.added', details: { userId: user.id, role } }, { transaction });
       return { kind: 'member', member: memberView(membership) };
     }
-    const token = randomBytes(32).toString('base64url');
+    const token = newToken();
     const invitation = await Invitation.create(
       { labId, email, role, tokenHash: hashToken(token), expiresAt: new Date(Date.now() + config.invitationTtlHours * 3_600_000), invitedById: actor.id },
       { transaction },
@@ -132,14 +91,14 @@ export async function addMember(
 }
 
 /** Invitations of the lab that are neither accepted nor expired, newest first. */
-export async function pendingInvitationsOf(labId: string, limit: number, offset: number): Promise<Page<InvitationView>> {
+export async function pendingInvitationsOf(labId: string, q: PageQuery): Promise<Paged<InvitationView>> {
   const { rows, count } = await Invitation.findAndCountAll({
     where: { labId, acceptedAt: null, expiresAt: { [Op.gt]: new Date() } },
     order: [['createdAt', 'DESC'], ['id', 'ASC']],
-    limit,
-    offset,
+    limit: q.pageSize,
+    offset: offsetOf(q),
   });
-  return { items: rows.map(invitationView), total: count, limit, offset };
+  return paged(rows.map(invitationView), count, q);
 }
 
 /** Withdraws a pending invitation: the row goes, so its token no longer accepts. */
@@ -170,7 +129,7 @@ function ensureOwnerRemains(members: Membership[], target: Membership, newRole: 
   }
 }
 
-export async function changeRole(sequelize: Sequelize, actorId: string, labId: string, userId: string, role: LabRole): Promise<MemberView> {
+export async function changeRole(sequelize: Sequelize, actorId: string, labId: string, userId: string, role: LabRole): Promise<Member> {
   return sequelize.transaction(async (transaction) => {
     const members = await lockedMembers(labId, transaction);
     const target = members.find((m) => m.userId === userId);

@@ -7,29 +7,10 @@ import type { Sequelize, Transaction } from 'sequelize';
 import { AppError } from '../app-error';
 import type { Config } from '../config';
 import { CaseRecord, Membership, Recheck, Revision, Run, User, type RecheckState } from '../db/models';
-import type { CaseAccess } from '../middleware/case-access';
-import { audit, findRevision, recheckView, revisionDetail, type Actor, type RecheckView, type RevisionDetail } from './case-service';
+import type { RecheckBody, RecheckView, RevisionDetail } from '../../shared/api';
+import type { Actor, CaseAccess } from './case-access';
+import { audit, findRevision, recheckView, revisionDetail } from './case-service';
 import { enqueueMail } from './outbox-service';
-
-export interface ComparedNumberInput {
-  name: string;
-  stored: number | string | boolean | null;
-  rerun: number | string | boolean | null;
-  tolerance: number | null;
-  match: boolean;
-}
-
-export interface ComparisonInput {
-  runId: string;
-  digestMatch: boolean;
-  numbers: ComparedNumberInput[];
-}
-
-export interface RecheckInput {
-  verdict: 'confirmed' | 'disputed';
-  comment: string;
-  comparisons: ComparisonInput[];
-}
 
 function escapeHtml(text: string): string {
   return text.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);
@@ -97,7 +78,7 @@ export async function recordRecheck(
   actor: Actor,
   access: CaseAccess,
   number: number,
-  input: RecheckInput,
+  input: RecheckBody,
 ): Promise<RecheckView> {
   return sequelize.transaction(async (transaction) => {
     const revision = await findRevision(access.caseId, number, transaction);

@@ -6,7 +6,9 @@ import { Lab } from '../db/models';
 import { caseReportDocument } from '../report/case-report';
 import { renderPdf } from '../report/render-pdf';
 import { readLink } from './case-link-service';
-import { revisionDetail, type RevisionDetail } from './case-service';
+import type { RevisionDetail } from '../../shared/api';
+import type { CaseParams } from '../../shared/case';
+import { revisionDetail } from './case-service';
 
 export interface CaseReport {
   fileName: string;
@@ -27,7 +29,9 @@ export function reportFileName(title: string, revision: number): string {
 }
 
 async function render(caseTitle: string, labName: string, revision: RevisionDetail): Promise<CaseReport> {
-  const doc = caseReportDocument({ caseTitle, labName, revision, results: new Map(), generatedAt: new Date() });
+  // Stored parameters passed the case schema when they were saved (validParams).
+  const stored = { ...revision, params: revision.params as CaseParams };
+  const doc = caseReportDocument({ caseTitle, labName, revision: stored, results: new Map(), generatedAt: new Date() });
   return { fileName: reportFileName(caseTitle, revision.number), pdf: await renderPdf(doc) };
 }
 

@@ -151,7 +151,7 @@ describe('revisions', () => {
     expect(r2.body).toMatchObject({ number: 2, note: 'stronger drive', paramsDigest: caseDigest(p2), recheckState: 'draft' });
     const stale = await as('owner').post(`/api/cases/${id}/revisions`, { baseRevision: 1, params: quickCase((p) => (p.drive.amplitude = 0.02)) });
     expect(stale.status).toBe(409);
-    expect(errorOf(stale)).toMatchObject({ code: 'stale-revision', message: expect.stringMatching(/latest is r2/) });
+    expect(errorOf(stale)).toMatchObject({ code: 'stale_revision', message: expect.stringMatching(/latest is r2/) });
     expect(await Revision.count({ where: { caseId: id } })).toBe(2);
     const detail = await as('viewer').get(`/api/cases/${id}`);
     expect(detail.body.latestRevision).toBe(2);
@@ -164,7 +164,7 @@ describe('revisions', () => {
       as('analyst').post(`/api/cases/${id}/revisions`, { baseRevision: 1, params: quickCase((p) => (p.drive.amplitude = amplitude)) });
     const results = await Promise.all([save(0.011), save(0.013)]);
     expect(results.map((r) => r.status).sort()).toEqual([201, 409]);
-    expect(errorOf(results.find((r) => r.status === 409) ?? results[0]).code).toBe('stale-revision');
+    expect(errorOf(results.find((r) => r.status === 409) ?? results[0]).code).toBe('stale_revision');
     expect(await Revision.count({ where: { caseId: id } })).toBe(2);
     const winner = results.find((r) => r.status === 201);
     const stored = await Revision.findOne({ where: { caseId: id, number: 2 } });
@@ -242,7 +242,7 @@ describe('runs', () => {
     expect(errorOf(badSummary).field).toBe('summary.outcome');
     const kindClash = await as('analyst').post(`/api/cases/${id}/revisions/1/runs`, { ...record, kind: 'sweep' });
     expect(kindClash.status).toBe(422);
-    expect(errorOf(kindClash).field).toBe('settings.kind');
+    expect(errorOf(kindClash)).toMatchObject({ code: 'settings_kind_mismatch', field: 'settings.kind' });
     const noRev = await as('analyst').post(`/api/cases/${id}/revisions/5/runs`, record);
     expect(noRev.status).toBe(404);
   });

@@ -5,7 +5,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { AuditEvent, Invitation, Membership, OutboxMail, SinkMail, type Lab, type LabRole, type User } from '../../server/db/models';
 import { createLogger } from '../../server/logger';
 import { startMailSink, type MailSink } from '../../server/scripts/mail-sink';
-import { addMember, hashToken } from '../../server/services/lab-service';
+import { addMember } from '../../server/services/lab-service';
+import { hashToken } from '../../server/services/tokens';
 import { createMailer } from '../../server/services/mailer';
 import { startOutboxSender } from '../../server/services/outbox-service';
 import { createLab, createUser, errorOf, startApi, tokenFor, uniqueEmail, type TestApi } from './support';
@@ -68,16 +69,16 @@ describe('GET /api/labs', () => {
   it('lists only my labs with my role', async () => {
     const res = await as('reviewer').get('/api/labs');
     expect(res.status).toBe(200);
-    expect(res.body).toMatchObject({ total: 1, limit: 100, offset: 0 });
+    expect(res.body).toMatchObject({ total: 1, page: 1, pageSize: 20 });
     expect(res.body.items).toEqual([{ id: lab.id, name: lab.name, role: 'reviewer' }]);
     const outsider = await as('outsider').get('/api/labs');
     expect(outsider.body).toMatchObject({ items: [], total: 0 });
   });
 
   it('refuses a bad page size with the field named', async () => {
-    const res = await as('owner').get('/api/labs?limit=0');
+    const res = await as('owner').get('/api/labs?pageSize=0');
     expect(res.status).toBe(400);
-    expect(errorOf(res)).toMatchObject({ code: 'invalid_field', field: 'limit' });
+    expect(errorOf(res)).toMatchObject({ code: 'invalid_field', field: 'pageSize' });
   });
 });
 

@@ -67,7 +67,7 @@ describe('demo seed of the case library', () => {
 
   it('has one active case link that opens with the demo token', async () => {
     expect(await CaseLink.count()).toBe(1);
-    const app = createApp({ config: testConfig({ DATABASE_URL: url }), sequelize, serveClient: false });
+    const app = createApp({ config: testConfig({ DATABASE_URL: url }), sequelize, serveClient: false, checkResponses: true });
     const res = await request(app).get(`/api/links/${DEMO_LINK_TOKEN}`);
     expect(res.status).toBe(200);
     expect(res.body).toMatchObject({ caseTitle: 'Bench rig: motor and crank', labName: DEMO_LAB_NAME, revision: { number: 2, recheckState: 'confirmed' } });

@@ -39,8 +39,8 @@ export function testConfig(overrides: Record<string, string> = {}): Config {
 export function startApi(options: { env?: Record<string, string> } = {}): TestApi {
   const config = testConfig(options.env);
   const sequelize = createSequelize(config.databaseUrl, { poolMax: 4 });
-  const app = createApp({ config, sequelize, serveClient: false });
-  const appWith = (env: Record<string, string>) => createApp({ config: testConfig({ ...options.env, ...env }), sequelize, serveClient: false });
+  const app = createApp({ config, sequelize, serveClient: false, checkResponses: true });
+  const appWith = (env: Record<string, string>) => createApp({ config: testConfig({ ...options.env, ...env }), sequelize, serveClient: false, checkResponses: true });
   return { app, config, sequelize, appWith, close: () => sequelize.close() };
 }
 

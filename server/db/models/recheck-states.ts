@@ -1,3 +1,2 @@
-/** Recheck states of a revision, in the order a review moves through them. */
-export const RECHECK_STATES = ['draft', 'awaiting-recheck', 'confirmed', 'disputed'] as const;
-export type RecheckState = (typeof RECHECK_STATES)[number];
+/** Recheck states of a revision, in the order a review moves through them (the API contract owns the list). */
+export { RECHECK_STATES, type RecheckState } from '../../../shared/api/common';

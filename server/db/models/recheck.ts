@@ -1,3 +1,4 @@
+import type { RunComparison } from '../../../shared/api/cases';
 import {
   DataTypes,
   Model,
@@ -17,7 +18,8 @@ export class Recheck extends Model<InferAttributes<Recheck>, InferCreationAttrib
   declare state: 'confirmed' | 'disputed';
   /** every compared run's result digest matched */
   declare digestMatch: boolean;
-  declare comparisons: unknown[];
+  /** as the reviewer sent them, checked by recheckBodySchema */
+  declare comparisons: RunComparison[];
   declare comment: string;
   declare createdAt: CreationOptional<Date>;
   declare reviewer?: NonAttribute<User | null>;

@@ -1,3 +1,2 @@
-/** Roles a lab member can hold, strongest first. */
-export const LAB_ROLES = ['owner', 'analyst', 'reviewer', 'viewer'] as const;
-export type LabRole = (typeof LAB_ROLES)[number];
+/** Roles a lab member can hold, strongest first (the API contract owns the list). */
+export { LAB_ROLES, type LabRole } from '../../../shared/api/common';

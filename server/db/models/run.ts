@@ -1,3 +1,4 @@
+import type { RunView } from '../../../shared/api/cases';
 import {
   DataTypes,
   Model,
@@ -18,8 +19,8 @@ export class Run extends Model<InferAttributes<Run>, InferCreationAttributes<Run
   declare id: CreationOptional<string>;
   declare revisionId: string;
   declare kind: string;
-  declare settings: Record<string, unknown>;
-  declare summary: Record<string, unknown>;
+  declare settings: RunView['settings'];
+  declare summary: RunView['summary'];
   declare resultDigest: string;
   declare engineVersion: string;
   declare authorId: string | null;

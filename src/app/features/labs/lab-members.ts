@@ -84,7 +84,7 @@ export class LabMembers {
 
   list(labId: string): Observable<LabMember[]> {
     return this.http
-      .get<unknown>(`/api/labs/${encodeURIComponent(labId)}/members`, { params: { limit: MEMBER_PAGE_SIZE } })
+      .get<unknown>(`/api/labs/${encodeURIComponent(labId)}/members`, { params: { pageSize: MEMBER_PAGE_SIZE } })
       .pipe(map(parseMembers));
   }
 
@@ -110,7 +110,7 @@ export class LabMembers {
   /** Pending invitations (not accepted, not expired), newest first. Owners only. */
   invitations(labId: string): Observable<LabInvitation[]> {
     return this.http
-      .get<unknown>(`/api/labs/${encodeURIComponent(labId)}/invitations`, { params: { limit: MEMBER_PAGE_SIZE } })
+      .get<unknown>(`/api/labs/${encodeURIComponent(labId)}/invitations`, { params: { pageSize: MEMBER_PAGE_SIZE } })
       .pipe(map(parseInvitations));
   }
 
