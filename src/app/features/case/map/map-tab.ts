@@ -6,15 +6,16 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 
-import { defaultChartGrid } from '../../../../../shared/engine/chart';
+import { defaultChartGrid, type StabilityChart } from '../../../../../shared/engine/chart';
 import { defaultBasinGrid } from '../../../../../shared/engine/sweep';
 import { Plot, type PlotCsv, type PlotSpec } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
 import { OUTCOME_COLORS, OUTCOME_LABELS, formatIn, formatNumber } from '../format';
-import { toDisplay, unitLabelOf } from '../rig/rig-form';
+import { toDisplay, unitLabelOf, type DisplayUnits } from '../rig/rig-form';
+import {
+  MULTIPLIER_CLIP, STABILITY_COLORS, STABILITY_LEGEND, stabilityColorbar, stabilityColorscale, stabilityContour, stabilityLevel,
+} from './stability-scale';
 
-/** Multipliers above this are drawn in the darkest red (the hover still shows the true value). */
-const MULTIPLIER_CLIP = 2;
 const OUTCOMES = Object.keys(OUTCOME_LABELS);
 
 /** Ticks 1, 2, 5 x 10^k inside [lo, hi], written in full (Plotly's own log ticks abbreviate 20 as "2"). */
@@ -41,6 +42,65 @@ function outcomeColorscale(): Array<[number, string]> {
   return scale;
 }
 
+/** The stability chart's Plotly traces, layout and CSV in display units. */
+export function stabilityChartPlot(c: StabilityChart, units: DisplayUnits): { data: PlotSpec[]; layout: PlotSpec; csv: PlotCsv; caseText: string } {
+  const fUnit = unitLabelOf('frequency', units);
+  const aUnit = unitLabelOf('length', units);
+  const x = Array.from(c.xValues, (v) => toDisplay(v, 'frequency', units));
+  const y = Array.from(c.yValues, (v) => toDisplay(v, 'length', units));
+  const nx = x.length;
+  const z: number[][] = [];
+  const real: number[][] = [];
+  for (let j = 0; j < y.length; j++) {
+    const row: number[] = [];
+    const raw: number[] = [];
+    for (let i = 0; i < nx; i++) {
+      const v = c.maxMultiplier[j * nx + i];
+      raw.push(Number.isFinite(v) ? v : Number.MAX_VALUE);
+      row.push(stabilityLevel(v));
+    }
+    z.push(row);
+    real.push(raw);
+  }
+  const data: PlotSpec[] = [
+    {
+      type: 'heatmap', x, y, z, customdata: real, zmin: 0, zmax: MULTIPLIER_CLIP, name: 'largest |μ|',
+      colorscale: stabilityColorscale(), colorbar: stabilityColorbar(), showlegend: false,
+      hovertemplate: `f %{x:.4g} ${fUnit}<br>a %{y:.4g} ${aUnit}<br>largest |μ| %{customdata:.5g}<extra></extra>`,
+    },
+    stabilityContour(x, y, z),
+  ];
+  if (c.averagedLowerLimit) {
+    data.push({
+      type: 'scatter', mode: 'lines', name: 'averaged lower limit',
+      x: Array.from(c.averagedLowerLimit.frequency, (v) => toDisplay(v, 'frequency', units)),
+      y: Array.from(c.averagedLowerLimit.amplitude, (v) => toDisplay(v, 'length', units)),
+      line: { color: STABILITY_COLORS.contour, dash: 'dash', width: 2 },
+    });
+  }
+  data.push({
+    type: 'scatter', mode: 'markers', name: 'this case',
+    x: [toDisplay(c.caseMark.x, 'frequency', units)], y: [toDisplay(c.caseMark.y, 'length', units)],
+    // White with a dark rim: it shows on both hues of the scale.
+    marker: { symbol: 'star', size: 16, color: '#ffffff', line: { color: STABILITY_COLORS.contour, width: 2 } },
+    hovertemplate: `this case<br>largest |μ| ${c.caseMark.maxMultiplier.toPrecision(5)}<extra></extra>`,
+  });
+  const axis = (scale: 'linear' | 'log' | undefined, values: number[]): PlotSpec =>
+    scale === 'log' ? { type: 'log', ...logTicks(values[0], values[values.length - 1]) } : { type: 'linear' };
+  const layout: PlotSpec = {
+    xaxis: { title: { text: `drive frequency (${fUnit})` }, ...axis(c.grid.x.scale, x) },
+    yaxis: { title: { text: `drive amplitude (${aUnit})` }, ...axis(c.grid.y.scale, y) },
+    margin: { l: 64, r: 16, t: 40, b: 52 },
+  };
+  const rows: Array<Array<number | string>> = [];
+  for (let j = 0; j < y.length; j++) for (let i = 0; i < nx; i++) rows.push([x[i], y[j], c.maxMultiplier[j * nx + i]]);
+  const csv: PlotCsv = {
+    columns: [{ header: 'drive frequency', unit: fUnit }, { header: 'drive amplitude', unit: aUnit }, { header: 'largest |multiplier|' }],
+    rows,
+  };
+  return { data, layout, csv, caseText: `${formatIn(c.caseMark.x, 'frequency', units)}, ${formatIn(c.caseMark.y, 'length', units)}` };
+}
+
 /** The Map tab: the stability chart over drive frequency and amplitude, and the basin map over start angle and rate. */
 @Component({
   selector: 'qp-map-tab',
@@ -60,67 +120,13 @@ export class MapTab {
   protected readonly basinStale = computed(() => this.workspace.isStale(this.basin()));
   protected readonly chartCount = signal(60);
   protected readonly basinCount = signal(11);
+  protected readonly chartLegend = STABILITY_LEGEND;
   protected readonly legend = OUTCOMES.map((o) => ({ key: o, label: OUTCOME_LABELS[o], color: OUTCOME_COLORS[o] }));
   protected readonly vertical = computed(() => Math.abs(Math.sin(this.workspace.draft().drive.direction)) < 1e-12);
 
   protected readonly chartPlot = computed(() => {
     const c = this.chart()?.value;
-    if (!c) return null;
-    const units = this.units();
-    const fUnit = unitLabelOf('frequency', units);
-    const aUnit = unitLabelOf('length', units);
-    const x = Array.from(c.xValues, (v) => toDisplay(v, 'frequency', units));
-    const y = Array.from(c.yValues, (v) => toDisplay(v, 'length', units));
-    const nx = x.length;
-    const z: number[][] = [];
-    const real: number[][] = [];
-    for (let j = 0; j < y.length; j++) {
-      const row: number[] = [];
-      const raw: number[] = [];
-      for (let i = 0; i < nx; i++) {
-        const v = c.maxMultiplier[j * nx + i];
-        raw.push(Number.isFinite(v) ? v : Number.MAX_VALUE);
-        row.push(Number.isFinite(v) ? Math.min(v, MULTIPLIER_CLIP) : MULTIPLIER_CLIP);
-      }
-      z.push(row);
-      real.push(raw);
-    }
-    const data: PlotSpec[] = [
-      {
-        type: 'heatmap', x, y, z, customdata: real, zmin: 0, zmax: MULTIPLIER_CLIP, name: 'largest |μ|',
-        colorscale: [[0, '#0b6e69'], [0.45, '#6fbfa8'], [0.499, '#cfeae2'], [0.5, '#f7d9d3'], [1, '#8f1d12']],
-        colorbar: { title: { text: 'largest |μ|' }, thickness: 12 },
-        hovertemplate: `f %{x:.4g} ${fUnit}<br>a %{y:.4g} ${aUnit}<br>largest |μ| %{customdata:.5g}<extra></extra>`,
-      },
-    ];
-    if (c.averagedLowerLimit) {
-      data.push({
-        type: 'scatter', mode: 'lines', name: 'averaged lower limit',
-        x: Array.from(c.averagedLowerLimit.frequency, (v) => toDisplay(v, 'frequency', units)),
-        y: Array.from(c.averagedLowerLimit.amplitude, (v) => toDisplay(v, 'length', units)),
-        line: { color: '#1f2937', dash: 'dash', width: 2 },
-      });
-    }
-    data.push({
-      type: 'scatter', mode: 'markers', name: 'this case',
-      x: [toDisplay(c.caseMark.x, 'frequency', units)], y: [toDisplay(c.caseMark.y, 'length', units)],
-      marker: { symbol: 'star', size: 16, color: '#f5b301', line: { color: '#1f2937', width: 1.5 } },
-      hovertemplate: `this case<br>largest |μ| ${c.caseMark.maxMultiplier.toPrecision(5)}<extra></extra>`,
-    });
-    const axis = (scale: 'linear' | 'log' | undefined, values: number[]): PlotSpec =>
-      scale === 'log' ? { type: 'log', ...logTicks(values[0], values[values.length - 1]) } : { type: 'linear' };
-    const layout: PlotSpec = {
-      xaxis: { title: { text: `drive frequency (${fUnit})` }, ...axis(c.grid.x.scale, x) },
-      yaxis: { title: { text: `drive amplitude (${aUnit})` }, ...axis(c.grid.y.scale, y) },
-      margin: { l: 64, r: 16, t: 40, b: 52 },
-    };
-    const rows: Array<Array<number | string>> = [];
-    for (let j = 0; j < y.length; j++) for (let i = 0; i < nx; i++) rows.push([x[i], y[j], c.maxMultiplier[j * nx + i]]);
-    const csv: PlotCsv = {
-      columns: [{ header: 'drive frequency', unit: fUnit }, { header: 'drive amplitude', unit: aUnit }, { header: 'largest |multiplier|' }],
-      rows,
-    };
-    return { data, layout, csv, caseText: `${formatIn(c.caseMark.x, 'frequency', units)}, ${formatIn(c.caseMark.y, 'length', units)}` };
+    return c ? stabilityChartPlot(c, this.units()) : null;
   });
 
   protected readonly basinPlot = computed(() => {
