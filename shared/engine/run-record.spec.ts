@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { setField, templateCase } from '../case';
 import {
-  compareSummaries, computeRun, digestView, makeRunRecord, parseRunRecord, recheckRun, resultDigest, type RunSettings,
+  compareSummaries, computeRun, digestView, makeRunRecord, parseRunRecord, recheckRun, resultDigest, type RunResult, type RunSettings,
 } from './run-record';
 
 describe('run records', () => {
@@ -15,6 +15,21 @@ describe('run records', () => {
     expect(a).toMatch(/^[0-9a-f]{64}$/);
     expect(b).toBe(a);
     expect(other).not.toBe(a);
+  });
+
+  it('leaves the thresholds\' bisection probes out of a sweep digest, so digests stored before them still match', () => {
+    const spec = { field: 'drive.amplitude', from: 0.002, to: 0.004, steps: 2 };
+    const sweepOf = (probes: { value: number; outcome: 'falls' | 'irregular' }[], value = 0.003): RunResult => ({
+      kind: 'sweep',
+      value: {
+        engineVersion: '1.0.0', field: spec.field, spec, values: Float64Array.from([0.002, 0.004]),
+        points: [],
+        thresholds: [{ kind: 'outcome', value, bracket: [0.0029, 0.0031], tolerance: 0.0002, below: 'falls', above: 'irregular', probes }],
+      },
+    });
+    const withProbes = resultDigest(sweepOf([{ value: 0.003, outcome: 'irregular' }]));
+    expect(resultDigest(sweepOf([]))).toBe(withProbes);
+    expect(resultDigest(sweepOf([], 0.00301))).not.toBe(withProbes);
   });
 
   it('rounds numbers to 9 significant digits and writes non-finite values as text', () => {

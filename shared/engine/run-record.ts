@@ -214,7 +214,12 @@ export function digestView(value: unknown, depth = 0): unknown {
  * step counts are included: they are deterministic for a given engine.
  */
 export function resultDigest(result: RunResult): string {
-  return valueDigest(digestView(result.value));
+  return valueDigest(digestView(result.kind === 'sweep' ? withoutProbes(result.value) : result.value));
+}
+
+/** A sweep without its thresholds' bisection probes, which postdate stored sweep digests and only show the working. */
+function withoutProbes(sweep: SweepResult): unknown {
+  return { ...sweep, thresholds: sweep.thresholds.map(({ probes: _probes, ...threshold }) => threshold) };
 }
 
 /** A run record for a computed result. */

@@ -55,6 +55,17 @@ describe('sweep', () => {
     expect(t.below).toBe('falls');
     expect(t.value).toBeGreaterThan(25);
     expect(t.value).toBeLessThan(35);
+    // Every evaluation is kept: each inside the first bracket, and the final bracket's ends are among them.
+    expect(t.probes.length).toBeGreaterThan(0);
+    for (const p of t.probes) {
+      expect(p.value).toBeGreaterThan(20);
+      expect(p.value).toBeLessThan(40);
+    }
+    const ends = [20, 40, ...t.probes.map((p) => p.value)];
+    expect(ends).toContain(t.bracket[0]);
+    expect(ends).toContain(t.bracket[1]);
+    const above = t.probes.find((p) => p.value === t.bracket[1]);
+    if (above) expect(above.outcome).toBe(t.above);
   }, 60_000);
 });
 

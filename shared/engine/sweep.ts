@@ -65,6 +65,13 @@ export interface ThresholdBracket {
   hiOutcome: MotionOutcome | null;
 }
 
+/** A value the bisection evaluated while locating a threshold, and what it found there. */
+export interface ThresholdProbe {
+  value: number;
+  /** Outcome (for 'multiplier': 'holds-upright' when |multiplier| < 1, 'falls' otherwise); null: invalid case. */
+  outcome: MotionOutcome | null;
+}
+
 export interface SweepThreshold {
   /** 'outcome': the motion outcome changes; 'multiplier': the upright's largest |multiplier| crosses 1. */
   kind: 'outcome' | 'multiplier';
@@ -76,6 +83,11 @@ export interface SweepThreshold {
   /** Outcome (or for 'multiplier': 'holds-upright' when < 1, 'falls' otherwise) on each side. */
   below: MotionOutcome | null;
   above: MotionOutcome | null;
+  /**
+   * The bisection's own evaluations in the order made: an outcome named in `below`/`above` may occur only here, not
+   * at any sweep point. Left out of the run's result digest (run-record.ts): they are the working behind `value`.
+   */
+  probes: ThresholdProbe[];
 }
 
 export interface SweepResult {
@@ -181,6 +193,7 @@ export function locateThreshold(
   let lo = bracket.lo;
   let hi = bracket.hi;
   let hiOutcome = bracket.hiOutcome;
+  const probes: ThresholdProbe[] = [];
   const evaluate = (x: number): MotionOutcome | null => {
     if (bracket.kind === 'outcome') return motionCell(params, [[spec.field, x]], shouldCancel).outcome;
     const c = variedCase(params, [[spec.field, x]]);
@@ -190,6 +203,7 @@ export function locateThreshold(
     if (shouldCancel?.()) throw new EngineCancelledError();
     const mid = spec.scale === 'log' && lo > 0 && hi > 0 ? Math.sqrt(lo * hi) : 0.5 * (lo + hi);
     const o = evaluate(mid);
+    probes.push({ value: mid, outcome: o });
     if (o === bracket.loOutcome) {
       lo = mid;
     } else {
@@ -204,6 +218,7 @@ export function locateThreshold(
     tolerance,
     below: lo < hi ? bracket.loOutcome : hiOutcome,
     above: lo < hi ? hiOutcome : bracket.loOutcome,
+    probes,
   };
 }
 
