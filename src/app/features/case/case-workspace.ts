@@ -63,6 +63,7 @@ export class CaseWorkspace {
   private readonly basinState = signal<Computed<CellMap> | null>(null);
   private readonly formTickState = signal(0);
   private readonly sweepPartialState = signal<readonly SweepPoint[]>([]);
+  private readonly sweepStepsState = signal(0);
 
   readonly form = new RigForm(templateCase(), DEFAULT_UNITS);
   readonly title = signal('New case');
@@ -102,6 +103,8 @@ export class CaseWorkspace {
   readonly sweep = this.sweepState.asReadonly();
   /** Points of the running sweep finished so far, in sweep order. */
   readonly sweepPartial = this.sweepPartialState.asReadonly();
+  /** How many points the running (or last) sweep has. */
+  readonly sweepSteps = this.sweepStepsState.asReadonly();
   readonly chart = this.chartState.asReadonly();
   readonly basin = this.basinState.asReadonly();
 
@@ -191,6 +194,7 @@ export class CaseWorkspace {
     const params = this.draftState();
     const settings: RunSettings = { kind: 'sweep', spec };
     this.sweepPartialState.set([]);
+    this.sweepStepsState.set(spec.steps);
     this.sweepJob.start(
       this.pool.sweep(params, spec),
       (value) => {

@@ -11,10 +11,11 @@ import { getField, setField, sweepableFieldsFor, type SweepableField } from '../
 import type { CaseParams } from '../../../../../shared/case/case-schema';
 import { averagedAnalysis, averagedLowerAmplitude, averagedLowerFrequency } from '../../../../../shared/engine/averaged';
 import type { SweepSpec } from '../../../../../shared/engine/sweep';
-import { Plot, type PlotCsv, type PlotSpec } from '../../../ui/plot/plot';
+import { Plot } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
-import { OUTCOME_COLORS, OUTCOME_LABELS, formatNumber } from '../format';
+import { OUTCOME_LABELS, formatNumber } from '../format';
 import { dimensionOfSiUnit, fromDisplay, toDisplay, unitLabelOf, type Dimension } from '../rig/rig-form';
+import { probesOnlySeenBisecting, sweepPlot } from './sweep-plot';
 import { SweepTable } from './sweep-table';
 
 /** Most points a sweep may have. */
@@ -128,6 +129,10 @@ export class SweepsTab {
         value: formatNumber(toDisplay(t.value, s.dimension, units), 6),
         change: `${t.below === null ? 'invalid' : OUTCOME_LABELS[t.below]} → ${t.above === null ? 'invalid' : OUTCOME_LABELS[t.above]}`,
         deviation: deviation === null ? '—' : `${deviation >= 0 ? '+' : '−'}${formatNumber(Math.abs(deviation), 3)} %`,
+        probes: probesOnlySeenBisecting(r.value.points, t).map((p) => ({
+          value: formatNumber(toDisplay(p.value, s.dimension, units), 6),
+          outcome: p.outcome === null ? 'invalid' : OUTCOME_LABELS[p.outcome],
+        })),
       };
     });
   });
@@ -137,65 +142,10 @@ export class SweepsTab {
     const s = this.shown();
     if (!r || !s) return null;
     const units = this.units();
-    const x = (v: number) => toDisplay(v, s.dimension, units);
-    const points = r.value.points;
-    const data: PlotSpec[] = [];
-    for (const outcome of Object.keys(OUTCOME_LABELS)) {
-      const mine = points.filter((p) => p.outcome === outcome);
-      if (mine.length === 0) continue;
-      data.push({
-        type: 'scatter',
-        mode: 'markers',
-        name: OUTCOME_LABELS[outcome],
-        x: mine.map((p) => x(p.value)),
-        y: mine.map((p) => p.slowFrequencyHz ?? 0),
-        marker: { size: 9, color: OUTCOME_COLORS[outcome] },
-        hovertemplate: `%{x:.5g} ${s.unit}<br>${OUTCOME_LABELS[outcome]}<br>slow %{y:.4g} Hz<extra></extra>`,
-      });
-    }
-    data.push({
-      type: 'scatter',
-      mode: 'lines',
-      name: 'largest |μ| of the upright',
-      x: points.map((p) => x(p.value)),
-      y: points.map((p) => (p.maxMultiplier !== null && Number.isFinite(p.maxMultiplier) ? p.maxMultiplier : null)),
-      yaxis: 'y2',
-      line: { color: '#7a8fa6', dash: 'dot' },
+    return sweepPlot(r.value.points, {
+      label: s.label, unit: s.unit, toX: (v) => toDisplay(v, s.dimension, units), logX: r.value.spec.scale === 'log',
+      thresholds: r.value.thresholds, averaged: s.averaged,
     });
-    const shapes: PlotSpec[] = r.value.thresholds.map((t) => ({
-      type: 'line', xref: 'x', yref: 'paper', x0: x(t.value), x1: x(t.value), y0: 0, y1: 1,
-      line: { color: t.kind === 'outcome' ? '#c0392b' : '#8e44ad', width: 2 },
-    }));
-    if (s.averaged !== null) {
-      shapes.push({
-        type: 'line', xref: 'x', yref: 'paper', x0: x(s.averaged), x1: x(s.averaged), y0: 0, y1: 1,
-        line: { color: '#0b6e69', width: 2, dash: 'dash' },
-      });
-    }
-    const annotations: PlotSpec[] = s.averaged === null ? [] : [
-      {
-        x: x(s.averaged), y: 0.98, xref: 'x', yref: 'paper', text: 'averaged limit', showarrow: false,
-        xanchor: 'left', yanchor: 'top', xshift: 4, font: { color: '#0b6e69' },
-      },
-    ];
-    const layout: PlotSpec = {
-      xaxis: { title: { text: `${s.label} (${s.unit || '1'})` }, type: r.value.spec.scale === 'log' ? 'log' : 'linear' },
-      yaxis: { title: { text: 'slow frequency (Hz)' }, rangemode: 'tozero' },
-      yaxis2: { title: { text: 'largest |μ| (1)' }, overlaying: 'y', side: 'right', showgrid: false },
-      margin: { l: 64, r: 64, t: 40, b: 52 },
-      shapes,
-      annotations,
-    };
-    const csv: PlotCsv = {
-      columns: [
-        { header: s.label, unit: s.unit || undefined },
-        { header: 'outcome' },
-        { header: 'slow frequency', unit: 'Hz' },
-        { header: 'largest |multiplier|' },
-      ],
-      rows: points.map((p) => [x(p.value), p.outcome ?? 'invalid', p.slowFrequencyHz, p.maxMultiplier]),
-    };
-    return { data, layout, csv };
   });
 
   /** The points of the running sweep finished so far, drawn while the rest are computed. */
@@ -205,24 +155,17 @@ export class SweepsTab {
     if (points.length === 0) return null;
     const dimension = this.dimension();
     const units = this.units();
-    const data: PlotSpec[] = Object.keys(OUTCOME_LABELS).map((outcome) => {
-      const mine = points.filter((p) => p.outcome === outcome);
-      return {
-        type: 'scatter', mode: 'markers', name: OUTCOME_LABELS[outcome],
-        x: mine.map((p) => toDisplay(p.value, dimension, units)),
-        y: mine.map((p) => p.slowFrequencyHz ?? 0),
-        marker: { size: 9, color: OUTCOME_COLORS[outcome] },
-      };
+    return sweepPlot(points, {
+      label: this.field().label, unit: this.unit(), toX: (v) => toDisplay(v, dimension, units), logX: this.scale() === 'log',
+      thresholds: [], averaged: null,
     });
-    const layout: PlotSpec = {
-      xaxis: { title: { text: `${this.field().label} (${this.unit() || '1'})` } },
-      yaxis: { title: { text: 'slow frequency (Hz)' }, rangemode: 'tozero' },
-    };
-    const csv: PlotCsv = {
-      columns: [{ header: this.field().label, unit: this.unit() || undefined }, { header: 'outcome' }, { header: 'slow frequency', unit: 'Hz' }],
-      rows: points.map((p) => [toDisplay(p.value, dimension, units), p.outcome ?? 'invalid', p.slowFrequencyHz]),
-    };
-    return { data, layout, csv };
+  });
+
+  /** Progress of the running sweep from one count, so the percentage and "N of M points" agree. */
+  protected readonly progress = computed(() => {
+    const total = this.workspace.sweepSteps();
+    const done = Math.min(this.workspace.sweepPartial().length, total);
+    return { done, total, percent: total > 0 ? Math.floor((100 * done) / total) : 0, refining: total > 0 && done === total };
   });
 
   /** The field whose default range was set last; a new field gets a new default range. */
