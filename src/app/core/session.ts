@@ -4,6 +4,9 @@ import { Observable, map, switchMap, tap } from 'rxjs';
 
 export type LabRole = 'owner' | 'analyst' | 'reviewer' | 'viewer';
 
+/** Roles that may create and save cases (the server enforces the same on every write). */
+export const CASE_WRITER_ROLES: readonly LabRole[] = ['analyst', 'owner'];
+
 export interface User {
   readonly id: string;
   readonly name: string;
@@ -52,6 +55,11 @@ export class Session {
     return session.memberships.find((m) => m.lab.id === session.currentLabId) ?? null;
   });
   readonly currentLab = computed(() => this.currentMembership()?.lab ?? null);
+  /** Whether the role in the current lab may create and save cases; hides controls only, the server decides. */
+  readonly canWriteCases = computed(() => {
+    const role = this.currentMembership()?.role;
+    return role !== undefined && CASE_WRITER_ROLES.includes(role);
+  });
 
   signIn(email: string, password: string): Observable<User> {
     return this.http.post<unknown>('/api/auth/sign-in', { email, password }).pipe(

@@ -63,8 +63,8 @@ export class Shell {
     const items: NavItem[] = [
       { label: 'Home', icon: 'home', link: '/', exact: true },
       { label: 'Case library', icon: 'library_books', link: '/library', exact: false },
-      { label: 'New case', icon: 'add_circle', link: '/cases/new', exact: false },
     ];
+    if (this.session.canWriteCases()) items.push({ label: 'New case', icon: 'add_circle', link: '/cases/new', exact: false });
     if (lab) items.push({ label: 'Lab members', icon: 'group', link: `/labs/${lab.id}`, exact: false });
     if (this.user()?.isSiteAdmin) items.push({ label: 'Mail', icon: 'mail', link: '/admin/mail', exact: false });
     return items;

@@ -3,17 +3,30 @@ import { provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
 import { Router, provideRouter } from '@angular/router';
 import { RouterTestingHarness } from '@angular/router/testing';
-import { firstValueFrom } from 'rxjs';
+import { firstValueFrom, map } from 'rxjs';
 
 import { templateCase } from '../../../../shared/case/templates';
 import { WorkerPool } from '../../../../shared/compute/worker-pool';
 import { ENGINE_POOL } from '../../core/compute/engine-pool';
+import { SESSION_STORAGE_KEY, type LabRole } from '../../core/session';
 import { CasePage } from './case-page';
 import { CASE_REPOSITORY } from './case-repository';
 import { CASE_TABS } from './case-tabs';
 import { CaseWorkspace } from './case-workspace';
 import { caseUrlMatcher } from './case.routes';
 import { LOCAL_CASES_KEY, LocalCaseRepository } from './local-case-repository';
+
+function signInAs(role: LabRole): void {
+  localStorage.setItem(
+    SESSION_STORAGE_KEY,
+    JSON.stringify({
+      token: 'jwt-1',
+      user: { id: 'u1', name: 'Me', email: 'me@example.org' },
+      memberships: [{ lab: { id: 'lab-1', name: 'Shaker Lab' }, role }],
+      currentLabId: 'lab-1',
+    }),
+  );
+}
 
 describe('CasePage', () => {
   let harness: RouterTestingHarness;
@@ -22,6 +35,7 @@ describe('CasePage', () => {
 
   beforeEach(async () => {
     localStorage.removeItem(LOCAL_CASES_KEY);
+    localStorage.removeItem(SESSION_STORAGE_KEY);
     TestBed.configureTestingModule({
       providers: [
         provideHttpClient(),
@@ -113,7 +127,7 @@ describe('CasePage', () => {
   it('saves a changed title with Save, without a new revision', async () => {
     await harness.navigateByUrl(`/cases/${caseId}/r/1/rig`, CasePage);
     await settle();
-    const input = host().querySelector<HTMLInputElement>('.title-field input');
+    const input = host().querySelector<HTMLTextAreaElement>('.title-field textarea');
     if (!input) throw new Error('the title of a writable case is editable');
     expect(input.value).toBe('Shared rig');
     input.value = 'Shared rig, long stroke';
@@ -133,5 +147,41 @@ describe('CasePage', () => {
     expect(workspace()?.opened()?.title).toBe('Shared rig, long stroke');
     expect(host().querySelector('[data-testid=revision]')?.textContent).toBe('r1');
     await vi.waitFor(() => expect(document.body.textContent).toContain('Title saved.'));
+  });
+
+  it('gives a role that cannot save no Save, no file loading and no editable field, and says so', async () => {
+    const open = repository.open.bind(repository);
+    vi.spyOn(repository, 'open').mockImplementation((id, rev) => open(id, rev).pipe(map((o) => ({ ...o, readOnly: true }))));
+    await harness.navigateByUrl(`/cases/${caseId}/r/1/rig`, CasePage);
+    await settle();
+    expect(host().querySelector('h1')?.textContent).toContain('Shared rig');
+    expect(host().querySelector('.title-field')).toBeNull();
+    expect(button('Save')).toBeNull();
+    expect(button('Load file')).toBeNull();
+    expect(host().querySelector('[data-testid=case-upload]')).toBeNull();
+    expect(host().querySelector('[data-testid=view-only]')?.textContent).toContain('view only');
+    expect(button('Case file')).not.toBeNull();
+    // The Rig form shows the values but takes no input, and offers no preset to fill it with.
+    const amplitude = host().querySelector<HTMLInputElement>('input[data-field="drive.amplitude"]');
+    expect(amplitude?.disabled).toBe(true);
+    expect(host().querySelector('[data-testid=preset-select]')).toBeNull();
+    expect(button('Fill the form')).toBeNull();
+  });
+
+  it('shows a viewer no new-case form, only the way to the library', async () => {
+    signInAs('viewer');
+    await harness.navigateByUrl('/cases/new', CasePage);
+    await settle();
+    expect(host().querySelector('[data-testid=cannot-create]')?.textContent).toContain('You are viewer in Shaker Lab');
+    expect(host().querySelector('input, textarea, mat-select')).toBeNull();
+    expect(button('Save')).toBeNull();
+  });
+
+  it('gives an analyst the new-case form', async () => {
+    signInAs('analyst');
+    await harness.navigateByUrl('/cases/new', CasePage);
+    await settle();
+    expect(host().querySelector('[data-testid=cannot-create]')).toBeNull();
+    expect(host().querySelector('.title-field textarea')).not.toBeNull();
   });
 });

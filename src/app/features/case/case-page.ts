@@ -8,9 +8,11 @@ import { MatInputModule } from '@angular/material/input';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { MatTabsModule } from '@angular/material/tabs';
 import { MatTooltipModule } from '@angular/material/tooltip';
+import { TextFieldModule } from '@angular/cdk/text-field';
 import { ActivatedRoute, Router, RouterLink, RouterLinkActive, RouterOutlet } from '@angular/router';
 import { EMPTY, catchError, switchMap, tap } from 'rxjs';
 
+import { Session } from '../../core/session';
 import { downloadText } from '../../ui/csv';
 import { caseFileJson, caseFileName, readCaseFile } from './case-file';
 import { CASE_TABS } from './case-tabs';
@@ -28,6 +30,7 @@ import { CaseWorkspace, messageOf } from './case-workspace';
     MatInputModule,
     MatTabsModule,
     MatTooltipModule,
+    TextFieldModule,
     RouterLink,
     RouterLinkActive,
     RouterOutlet,
@@ -43,8 +46,13 @@ export class CasePage {
   private readonly snackBar = inject(MatSnackBar);
   private readonly errorHandler = inject(ErrorHandler);
   protected readonly workspace = inject(CaseWorkspace);
+  private readonly session = inject(Session);
 
   protected readonly tabs = CASE_TABS;
+  /** A new case for someone whose role cannot save one: no form to fill in vain. */
+  protected readonly cannotCreate = computed(() => this.workspace.isNew() && !this.session.canWriteCases());
+  protected readonly labName = computed(() => this.session.currentLab()?.name ?? 'this lab');
+  protected readonly role = computed(() => this.session.currentMembership()?.role ?? null);
   protected readonly problem = signal<string | null>(null);
   /** The last Save was refused because a newer revision exists: the banner offers to open it. */
   protected readonly staleSave = signal(false);
@@ -112,6 +120,11 @@ export class CasePage {
         this.staleSave.set(error instanceof CaseRepositoryError && error.code === 'stale-revision');
       },
     });
+  }
+
+  /** Enter in the title saves nothing and adds no line break: the title is one line that wraps. */
+  protected keepOneLine(event: Event): void {
+    event.preventDefault();
   }
 
   protected downloadCase(): void {

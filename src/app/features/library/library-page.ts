@@ -77,10 +77,7 @@ export class LibraryPage {
   private readonly errorHandler = inject(ErrorHandler);
 
   protected readonly lab = this.session.currentLab;
-  protected readonly canEdit = computed(() => {
-    const role = this.session.currentMembership()?.role;
-    return role === 'analyst' || role === 'owner';
-  });
+  protected readonly canEdit = this.session.canWriteCases;
   protected readonly recheckStates = RECHECK_STATES.map((value) => ({ value, label: RECHECK_LABELS[value] }));
   protected readonly pageSizes = PAGE_SIZES;
   /** Phones keep the columns that decide what to open; tags, author and date need the width of a larger screen. */
