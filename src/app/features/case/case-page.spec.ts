@@ -28,7 +28,8 @@ function signInAs(role: LabRole): void {
   );
 }
 
-describe('CasePage', () => {
+// The first test loads the tab chunks; on a busy two-core machine that alone can pass the 5 s default.
+describe('CasePage', { timeout: 30_000 }, () => {
   let harness: RouterTestingHarness;
   let repository: LocalCaseRepository;
   let caseId: string;
