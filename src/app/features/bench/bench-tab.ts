@@ -20,12 +20,14 @@ import { CaseWorkspace } from '../case/case-workspace';
 import { formatNumber } from '../history/params-diff';
 import { LibraryApi } from '../library/library-api';
 import type { BenchTrace, BenchTraceSummary } from '../library/library-types';
+import { BenchFit } from './bench-fit';
+import { BenchOverlay } from './bench-overlay';
+import { MAX_PLOTTED_POINTS } from './plot-thinning';
 
 /** Largest file the server accepts; checked here too so a wrong file fails at once. */
 export const MAX_TRACE_BYTES = 2 * 1024 * 1024;
 
-/** Most points drawn per series; plenty for a screen-wide line. */
-export const MAX_PLOTTED_POINTS = 5000;
+export { MAX_PLOTTED_POINTS } from './plot-thinning';
 
 /** An upload refusal in words: the server names the line of the first bad row. */
 export function uploadProblem(error: unknown): string {
@@ -38,6 +40,8 @@ export function uploadProblem(error: unknown): string {
 @Component({
   selector: 'qp-bench-tab',
   imports: [
+    BenchFit,
+    BenchOverlay,
     DatePipe,
     MatButtonModule,
     MatFormFieldModule,
@@ -201,4 +205,17 @@ export class BenchTab {
   protected selectedTrace(): BenchTrace | null {
     return this.selected.value() ?? null;
   }
+
+  /** A pivot column that moves (more than a micrometre): a driven trace to overlay. */
+  protected readonly driven = computed(() => {
+    const pivot = this.selected.value()?.pivot;
+    if (!pivot || pivot.length === 0) return false;
+    let lo = Infinity;
+    let hi = -Infinity;
+    for (const p of pivot) {
+      lo = Math.min(lo, p);
+      hi = Math.max(hi, p);
+    }
+    return hi - lo > 1e-6;
+  });
 }

@@ -62,6 +62,7 @@ export class CaseWorkspace {
   private readonly chartState = signal<Computed<StabilityChart> | null>(null);
   private readonly basinState = signal<Computed<CellMap> | null>(null);
   private readonly formTickState = signal(0);
+  private readonly saveNoteState = signal('');
   private readonly sweepPartialState = signal<readonly SweepPoint[]>([]);
   private readonly sweepStepsState = signal(0);
 
@@ -82,6 +83,8 @@ export class CaseWorkspace {
   readonly formTick = this.formTickState.asReadonly();
   /** Runs computed this session and not yet saved. */
   readonly runs = this.runsState.asReadonly();
+  /** Note the next save carries unless it is given one (e.g. which bench trace fitted values came from). */
+  readonly saveNote = this.saveNoteState.asReadonly();
   readonly saving = this.savingState.asReadonly();
   readonly isNew = computed(() => this.openedState() === null);
   readonly readOnly = computed(() => this.openedState()?.readOnly ?? false);
@@ -157,6 +160,7 @@ export class CaseWorkspace {
 
   /** Replaces the whole case (preset, uploaded file, opened revision): fills the form and the draft. */
   applyParams(params: CaseParams): void {
+    this.saveNoteState.set('');
     this.form.setParams(params);
     this.draftState.set(params);
     this.issuesState.set([]);
@@ -164,6 +168,12 @@ export class CaseWorkspace {
     if (this.readOnly()) this.form.group.disable({ emitEvent: false });
     else this.form.group.enable({ emitEvent: false });
     this.formTickState.update((n) => n + 1);
+  }
+
+  /** Replaces the case with `params` and has the next save note why. */
+  applyParamsWithNote(params: CaseParams, note: string): void {
+    this.applyParams(params);
+    this.saveNoteState.set(note);
   }
 
   setUnits(units: DisplayUnits): void {
@@ -252,7 +262,8 @@ export class CaseWorkspace {
             }),
           )
         : of(opened);
-    const base$ = renamed$.pipe(switchMap((current) => this.saveParams(current, params, newRevision, note)));
+    const revisionNote = note || this.saveNoteState();
+    const base$ = renamed$.pipe(switchMap((current) => this.saveParams(current, params, newRevision, revisionNote)));
     this.savingState.set(true);
     return base$.pipe(
       switchMap((saved) => {
@@ -263,6 +274,7 @@ export class CaseWorkspace {
         return stored$.pipe(
           map((stored) => {
             this.runsState.update((runs) => runs.filter((r) => !pending.includes(r)));
+            if (newRevision) this.saveNoteState.set('');
             const view: OpenedCase = { ...saved, runs: [...saved.runs, ...stored] };
             this.openedState.set(view);
             return { saved: view, runsStored: stored.length, newRevision, renamed };
