@@ -2,7 +2,8 @@
  * The demo case library: invented cases built from the demo rigs, each with a few revisions and motion runs whose
  * summaries and digests come from really running the engine here, a confirmed and a disputed recheck (the
  * reviewer's side reruns the stored runs), comments, a bench trace (a decaying free swing computed by the engine
- * plus a little deterministic noise) and one active case link with a well-known token (local demo only, listed in
+ * plus a little deterministic noise; the teaching rod also has a free swing and a driven trace, and an r2 with the
+ * free swing's fit applied) and one active case link with a well-known token (local demo only, listed in
  * docs/database.md). Goes through the same services as the API, so audit events and outbox mails exist too.
  * Idempotent: a case whose title already exists in the demo lab is left alone.
  */
@@ -10,6 +11,10 @@ import type { Sequelize } from 'sequelize';
 import { DEMO_RIGS, demoRigCase, templateCase, type CaseParams } from '../../shared/case';
 import { computeRun, makeRunRecord, recheckRun, type RunRecord } from '../../shared/engine/run-record';
 import { config } from '../config';
+import { applyFit } from '../../shared/engine/apply-fit';
+import { fitFreeSwing } from '../../shared/engine/fit';
+import { syntheticTrace, traceCsv } from '../../shared/engine/synthetic-trace';
+import { parseTraceCsv } from '../services/bench-csv';
 import { uploadTrace } from '../services/bench-trace-service';
 import type { Actor, CaseAccess } from '../services/case-access';
 import { addComment, audit, createCase, revisionDetail, saveRevision, storeRun } from '../services/case-service';
@@ -29,6 +34,8 @@ interface DemoCase {
   recheck?: { verdict: 'confirmed' | 'disputed'; comment: string };
   comments?: Array<{ who: LabRole; body: string }>;
   benchTrace?: boolean;
+  /** a free swing and a driven trace, and a revision with the free swing's fit applied */
+  fittedTraces?: boolean;
   link?: boolean;
 }
 
@@ -93,6 +100,7 @@ function demoCases(): DemoCase[] {
       tags: ['teaching'],
       author: 'analyst',
       revisions: [{ params: teaching, note: 'The textbook case: 20 cm, 10 mm at 40 Hz.' }],
+      fittedTraces: true,
     },
   ];
 }
@@ -122,6 +130,36 @@ export function syntheticSwingCsv(base: CaseParams): string {
 
 function motionRecord(params: CaseParams): RunRecord {
   return makeRunRecord(params, { kind: 'motion' }, computeRun(params, { kind: 'motion' }));
+}
+
+const DEG = Math.PI / 180;
+
+/**
+ * Synthetic bench traces of a teaching rig whose real rod is a little longer and better damped than the case says
+ * (21.2 cm, zeta 0.008): a free swing read from a sensor zeroed 1.5 degrees off, and the rig held by its 40 Hz
+ * drive with the pivot position recorded. Both are computed by the engine with seeded noise.
+ */
+export function syntheticTeachingTraces(base: CaseParams): { swing: string; driven: string; swingLabel: string; drivenLabel: string } {
+  const real = variant(base, (p) => {
+    p.body = { kind: 'point-mass', length: 0.212, mass: 0.1 };
+    p.damping.viscousRatio = 0.008;
+  });
+  const swing = syntheticTrace(
+    variant(real, (p) => {
+      p.drive.amplitude = 0;
+      p.start = { angle: Math.PI + 25 * DEG, rate: 0 };
+    }),
+    { sampleRate: 200, duration: 20, noise: 0.05 * DEG, offset: 1.5 * DEG, fromHanging: true, seed: 20_261_202 },
+  );
+  const driven = syntheticTrace(variant(real, (p) => (p.start = { angle: 0.15, rate: 0 })), {
+    sampleRate: 2000, duration: 3, noise: 0.05 * DEG, seed: 20_261_203, pivotNoise: 2e-5,
+  });
+  return {
+    swing: traceCsv(swing, 'synthetic free swing of the teaching rod, computed by the Quiverpoint engine'),
+    driven: traceCsv(driven, 'synthetic driven run of the teaching rod at 40 Hz, computed by the Quiverpoint engine'),
+    swingLabel: 'Free swing (synthetic)',
+    drivenLabel: 'Driven at 40 Hz (synthetic)',
+  };
 }
 
 /** Adds the demo cases to the lab; returns how many cases it created. */
@@ -169,6 +207,20 @@ export async function seedLibrary(sequelize: Sequelize, labId: string): Promise<
     if (demo.benchTrace) {
       const text = syntheticSwingCsv(first.params);
       await uploadTrace(sequelize, author, access(demo.author), { originalName: 'bench-3-free-swing.csv', text, sizeBytes: Buffer.byteLength(text) }, { label: 'Bench 3 free swing (synthetic)' });
+    }
+    if (demo.fittedTraces) {
+      const traces = syntheticTeachingTraces(first.params);
+      const upload = (name: string, text: string, label: string) =>
+        uploadTrace(sequelize, author, access(demo.author), { originalName: name, text, sizeBytes: Buffer.byteLength(text) }, { label });
+      await upload('teaching-free-swing.csv', traces.swing, traces.swingLabel);
+      await upload('teaching-driven-40hz.csv', traces.driven, traces.drivenLabel);
+      const parsed = parseTraceCsv(traces.swing, undefined);
+      const latest = demo.revisions[demo.revisions.length - 1]?.params ?? first.params;
+      const fit = fitFreeSwing(parsed.series, { model: 'viscous', gravity: latest.gravity, frictionSmoothing: latest.damping.frictionSmoothing });
+      const applied = applyFit(latest, fit, traces.swingLabel);
+      await saveRevision(sequelize, author, access(demo.author), { baseRevision: number, params: applied.params, note: applied.note });
+      number++;
+      await storeRun(sequelize, author, access(demo.author), number, motionRecord(applied.params));
     }
     if (demo.link) {
       const revision = await Revision.findOne({ where: { caseId: detail.id, number } });

@@ -56,13 +56,30 @@ describe('demo seed of the case library', () => {
   });
 
   it('has a synthetic decaying swing as a bench trace', async () => {
-    const trace = await BenchTrace.findOne();
+    const trace = await BenchTrace.findOne({ where: { label: 'Bench 3 free swing (synthetic)' } });
     expect(trace).toMatchObject({ rows: 601, columns: ['time', 'angle'], angleUnit: 'deg' });
     expect(trace?.duration).toBeCloseTo(6, 9);
     const angle = trace?.series.angle ?? [];
     const swing = (from: number, to: number) => Math.max(...angle.slice(from, to).map((a) => Math.abs(a - Math.PI)));
     expect(swing(0, 100)).toBeGreaterThan(0.2);
     expect(swing(500, 601)).toBeLessThan(swing(0, 100));
+  });
+
+  it('has a free swing and a driven trace on the teaching rod, with the swing\'s fit applied in r2', async () => {
+    const teaching = await CaseRecord.findOne({ where: { title: 'Teaching rod: point mass on a sine drive' } });
+    const traces = await BenchTrace.findAll({ where: { caseId: teaching?.id ?? '' }, order: [['label', 'ASC']] });
+    expect(traces.map((t) => [t.label, t.columns])).toEqual([
+      ['Driven at 40 Hz (synthetic)', ['time', 'angle', 'pivot']],
+      ['Free swing (synthetic)', ['time', 'angle']],
+    ]);
+    const revisions = await Revision.findAll({ where: { caseId: teaching?.id ?? '' }, order: [['number', 'ASC']] });
+    expect(revisions).toHaveLength(2);
+    expect(revisions[1]?.note).toContain('"Free swing (synthetic)"');
+    const params = parseCase(revisions[1]?.params);
+    if (!params.ok || params.value.body.kind !== 'point-mass') throw new Error('fitted revision missing');
+    // the synthetic swing was made with a 21.2 cm rod and zeta 0.008
+    expect(Math.abs(params.value.body.length / 0.212 - 1)).toBeLessThan(2e-3);
+    expect(Math.abs(params.value.damping.viscousRatio / 0.008 - 1)).toBeLessThan(0.05);
   });
 
   it('has one active case link that opens with the demo token', async () => {

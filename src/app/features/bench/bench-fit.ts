@@ -14,7 +14,7 @@ import { formatIn, formatNumber } from '../case/format';
 import { PoolJob } from '../case/pool-job';
 import type { Dimension } from '../case/rig/rig-form';
 import type { BenchTrace } from '../library/library-types';
-import { applyFit } from './apply-fit';
+import { applyFit } from '../../../../shared/engine/apply-fit';
 import { MAX_PLOTTED_POINTS } from './plot-thinning';
 
 interface EstimateRow {

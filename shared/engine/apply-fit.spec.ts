@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { templateCase } from '../../../../shared/case/templates';
-import { parseCase } from '../../../../shared/case/validate';
-import type { FitResult } from '../../../../shared/engine/fit';
-import { bodyProperties } from '../../../../shared/engine/body';
+import { templateCase } from '../case/templates';
+import { parseCase } from '../case/validate';
+import type { FitResult } from './fit';
+import { bodyProperties } from './body';
 import { applyFit } from './apply-fit';
 
 function fit(model: FitResult['model'], extra: Partial<FitResult['fitted']> = {}): FitResult {

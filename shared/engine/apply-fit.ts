@@ -1,5 +1,5 @@
-import type { CaseParams } from '../../../../shared/case/case-schema';
-import type { FitResult } from '../../../../shared/engine/fit';
+import type { CaseParams } from '../case/case-schema';
+import type { FitResult } from './fit';
 
 /** What "Apply to the rig" changed, in words for the user, and the save note naming the trace. */
 export interface AppliedFit {
