@@ -2,10 +2,12 @@ import { HttpErrorResponse } from '@angular/common/http';
 import { DatePipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
 import { rxResource } from '@angular/core/rxjs-interop';
+import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 
 import { describeError } from '../../core/error-message';
+import { linkReportUrl } from '../history/case-report-download';
 import { flattenParams } from '../history/params-diff';
 import { StoredRunsTable } from '../history/stored-runs-table';
 import { LibraryApi } from '../library/library-api';
@@ -28,7 +30,7 @@ export function linkProblem(error: unknown): string {
  */
 @Component({
   selector: 'qp-visitor-page',
-  imports: [DatePipe, MatIconModule, MatProgressBarModule, RerunPanel, StoredRunsTable],
+  imports: [DatePipe, MatButtonModule, MatIconModule, MatProgressBarModule, RerunPanel, StoredRunsTable],
   templateUrl: './visitor-page.html',
   styleUrl: './visitor-page.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -45,5 +47,6 @@ export class VisitorPage {
     const error = this.link.error();
     return error ? linkProblem(error.cause ?? error) : null;
   });
+  protected readonly reportUrl = computed(() => linkReportUrl(this.token()));
   protected readonly params = computed(() => flattenParams(this.shared()?.revision.rawParams ?? null));
 }

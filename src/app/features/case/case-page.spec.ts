@@ -37,6 +37,7 @@ describe('CasePage', { timeout: 30_000 }, () => {
   beforeEach(async () => {
     localStorage.removeItem(LOCAL_CASES_KEY);
     localStorage.removeItem(SESSION_STORAGE_KEY);
+    for (const key of Object.keys(localStorage)) if (key.startsWith('qp.revisionNote.')) localStorage.removeItem(key);
     TestBed.configureTestingModule({
       providers: [
         provideHttpClient(),
@@ -86,6 +87,65 @@ describe('CasePage', { timeout: 30_000 }, () => {
     harness.detectChanges();
   }
 
+  /** The note the browser-local library stored with a revision. */
+  const storedNote = (revision: number): string | undefined => {
+    const library = JSON.parse(localStorage.getItem(LOCAL_CASES_KEY) ?? '{}') as Record<string, { revisions: Array<{ number: number; note: string }> }>;
+    return library[caseId]?.revisions.find((r) => r.number === revision)?.note;
+  };
+  const noteField = () => document.querySelector<HTMLTextAreaElement>('[data-testid=revision-note]');
+
+  /** Answers the revision note dialog: types `note` (unless null) and saves, or cancels. */
+  async function answerNote(note: string | null, action: 'Save' | 'Cancel' = 'Save'): Promise<void> {
+    await vi.waitFor(async () => {
+      await settle();
+      expect(noteField()).not.toBeNull();
+    });
+    const field = noteField();
+    if (field && note !== null) {
+      field.value = note;
+      field.dispatchEvent(new Event('input'));
+    }
+    await settle();
+    const buttons = [...document.querySelectorAll<HTMLButtonElement>('mat-dialog-actions button')];
+    buttons.find((b) => b.textContent?.trim() === action)?.click();
+    await vi.waitFor(async () => {
+      await settle();
+      expect(noteField()).toBeNull();
+    });
+  }
+
+  it('asks for a note before saving a new revision and stores it with the revision', async () => {
+    await harness.navigateByUrl(`/cases/${caseId}/r/1/rig`, CasePage);
+    await settle();
+    workspace()?.form.group.controls.drive.controls.amplitude.setValue(12);
+    button('Save')?.click();
+    await answerNote('Stroke 24 mm for the new crank');
+    await vi.waitFor(async () => {
+      await settle();
+      expect(TestBed.inject(Router).url).toBe(`/cases/${caseId}/r/2/rig`);
+    });
+    expect(storedNote(2)).toBe('Stroke 24 mm for the new crank');
+    expect(localStorage.getItem(`qp.revisionNote.${caseId}`)).toBeNull();
+  }, 15_000);
+
+  it('keeps the note of a cancelled save for the next Save and saves nothing meanwhile', async () => {
+    await harness.navigateByUrl(`/cases/${caseId}/r/1/rig`, CasePage);
+    await settle();
+    workspace()?.form.group.controls.drive.controls.amplitude.setValue(12);
+    button('Save')?.click();
+    await answerNote('Half-written note', 'Cancel');
+    expect((await firstValueFrom(repository.open(caseId))).latestRevision).toBe(1);
+
+    button('Save')?.click();
+    await vi.waitFor(async () => {
+      await settle();
+      expect(noteField()?.value).toBe('Half-written note');
+    });
+    await answerNote(null);
+    await vi.waitFor(async () => expect((await firstValueFrom(repository.open(caseId))).latestRevision).toBe(2));
+    expect(storedNote(2)).toBe('Half-written note');
+  }, 15_000);
+
   it('offers the latest revision after a stale save and opens it with one click', async () => {
     await harness.navigateByUrl(`/cases/${caseId}/r/1/rig`, CasePage);
     await settle();
@@ -95,6 +155,7 @@ describe('CasePage', { timeout: 30_000 }, () => {
 
     workspace()?.form.group.controls.drive.controls.amplitude.setValue(12);
     button('Save')?.click();
+    await answerNote('');
     await settle();
 
     const alert = host().querySelector('[role=alert]');
@@ -120,6 +181,7 @@ describe('CasePage', { timeout: 30_000 }, () => {
     localStorage.removeItem(LOCAL_CASES_KEY);
     workspace()?.form.group.controls.drive.controls.amplitude.setValue(12);
     button('Save')?.click();
+    await answerNote('');
     await settle();
     expect(host().querySelector('[role=alert]')?.textContent).toContain('That case does not exist in this browser.');
     expect(host().querySelector('[data-testid=open-latest]')).toBeNull();

@@ -2,6 +2,7 @@ import { ChangeDetectionStrategy, Component, ErrorHandler, computed, inject, sig
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { FormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
+import { MatDialog } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
@@ -10,7 +11,7 @@ import { MatTabsModule } from '@angular/material/tabs';
 import { MatTooltipModule } from '@angular/material/tooltip';
 import { TextFieldModule } from '@angular/cdk/text-field';
 import { ActivatedRoute, Router, RouterLink, RouterLinkActive, RouterOutlet } from '@angular/router';
-import { EMPTY, catchError, switchMap, tap } from 'rxjs';
+import { EMPTY, Observable, catchError, filter, of, switchMap, tap } from 'rxjs';
 
 import { Session } from '../../core/session';
 import { downloadText } from '../../ui/csv';
@@ -18,6 +19,7 @@ import { caseFileJson, caseFileName, readCaseFile } from './case-file';
 import { CASE_TABS } from './case-tabs';
 import { CaseRepositoryError } from './case-repository-error';
 import { CaseWorkspace, messageOf } from './case-workspace';
+import { RevisionNoteData, RevisionNoteDialog, revisionNoteDrafts } from './revision-note-dialog';
 
 /** The case page: toolbar (title, revision, Save, case file in and out) over the tab bar of the case's tabs. */
 @Component({
@@ -45,6 +47,7 @@ export class CasePage {
   private readonly router = inject(Router);
   private readonly snackBar = inject(MatSnackBar);
   private readonly errorHandler = inject(ErrorHandler);
+  private readonly dialog = inject(MatDialog);
   protected readonly workspace = inject(CaseWorkspace);
   private readonly session = inject(Session);
 
@@ -101,25 +104,42 @@ export class CasePage {
       .subscribe();
   }
 
+  /** Save: a new revision first asks for its note (optional); storing runs or a title alone does not. */
   protected save(): void {
     this.dismissProblem();
-    this.workspace.save().subscribe({
-      next: ({ saved, runsStored, newRevision, renamed }) => {
-        const runs = runsStored === 1 ? '1 run' : `${runsStored} runs`;
-        const what = newRevision
-          ? `Saved as r${saved.revision}`
-          : renamed && !runsStored
-            ? 'Title saved'
-            : `Stored with r${saved.revision}`;
-        this.snackBar.open(`${what}${runsStored ? ` with ${runs}` : ''}.`, 'OK', { duration: 5000 });
-        const tab = this.currentTab();
-        void this.router.navigate(['/cases', saved.caseId, 'r', saved.revision, tab]);
-      },
-      error: (error: unknown) => {
-        this.problem.set(messageOf(error));
-        this.staleSave.set(error instanceof CaseRepositoryError && error.code === 'stale-revision');
-      },
-    });
+    const opened = this.opened();
+    const caseKey = opened?.caseId ?? 'new';
+    const newRevision = opened === null || this.workspace.dirty();
+    const note$: Observable<string | undefined> = newRevision
+      ? this.dialog
+          .open<RevisionNoteDialog, RevisionNoteData, string>(RevisionNoteDialog, {
+            data: { caseKey, nextRevision: opened ? opened.latestRevision + 1 : 1 },
+          })
+          .afterClosed()
+      : of('');
+    note$
+      .pipe(
+        filter((note): note is string => note !== undefined),
+        switchMap((note) => this.workspace.save(note)),
+      )
+      .subscribe({
+        next: ({ saved, runsStored, newRevision, renamed }) => {
+          if (newRevision) revisionNoteDrafts.clear(caseKey);
+          const runs = runsStored === 1 ? '1 run' : `${runsStored} runs`;
+          const what = newRevision
+            ? `Saved as r${saved.revision}`
+            : renamed && !runsStored
+              ? 'Title saved'
+              : `Stored with r${saved.revision}`;
+          this.snackBar.open(`${what}${runsStored ? ` with ${runs}` : ''}.`, 'OK', { duration: 5000 });
+          const tab = this.currentTab();
+          void this.router.navigate(['/cases', saved.caseId, 'r', saved.revision, tab]);
+        },
+        error: (error: unknown) => {
+          this.problem.set(messageOf(error));
+          this.staleSave.set(error instanceof CaseRepositoryError && error.code === 'stale-revision');
+        },
+      });
   }
 
   /** Enter in the title saves nothing and adds no line break: the title is one line that wraps. */

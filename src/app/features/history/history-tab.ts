@@ -23,6 +23,7 @@ import { LibraryApi } from '../library/library-api';
 import { ComparisonTable } from '../recheck/comparison-table';
 import { RecheckChip } from '../recheck/recheck-chip';
 import { RecheckRequestData, RecheckRequestDialog } from '../recheck/recheck-request-dialog';
+import { CaseReportDownload } from './case-report-download';
 import { diffParams } from './params-diff';
 import { StoredRunsTable } from './stored-runs-table';
 
@@ -65,6 +66,7 @@ export class HistoryTab {
   private readonly snackBar = inject(MatSnackBar);
   private readonly clipboard = inject(Clipboard);
   private readonly errorHandler = inject(ErrorHandler);
+  private readonly reports = inject(CaseReportDownload);
 
   protected readonly key = computed(() => {
     const opened = this.workspace.opened();
@@ -127,6 +129,7 @@ export class HistoryTab {
     return error ? describeError(error.cause ?? error) : null;
   });
 
+  protected readonly reportBusy = signal(false);
   protected readonly commentText = signal('');
   protected readonly posting = signal(false);
 
@@ -150,6 +153,19 @@ export class HistoryTab {
     const copied = this.clipboard.copy(revisionUrl(key.caseId, key.revision));
     this.snackBar.open(copied ? `Link to r${key.revision} copied. Lab members can open it after signing in.` : 'This browser refused to copy.', 'OK', {
       duration: 5000,
+    });
+  }
+
+  protected downloadReport(): void {
+    const key = this.key();
+    if (!key) return;
+    this.reportBusy.set(true);
+    this.reports.download(key.caseId, key.revision).subscribe({
+      next: () => this.reportBusy.set(false),
+      error: (error: unknown) => {
+        this.reportBusy.set(false);
+        this.errorHandler.handleError(error);
+      },
     });
   }
 
