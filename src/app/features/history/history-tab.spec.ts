@@ -11,11 +11,18 @@ import { HistoryTab } from './history-tab';
 const R1 = templateCase();
 const R2 = { ...R1, drive: { ...R1.drive, amplitude: 0.012 }, damping: { ...R1.damping, viscousRatio: 0.02 } };
 
+function run(kind: string, summary: object): object {
+  return { id: `${kind}-run`, kind, settings: { kind }, summary, resultDigest: 'a'.repeat(64), engineVersion: '1.0.0', author: null, createdAt: '2026-11-30T10:00:00.000Z' };
+}
+
+/** Stored runs per revision number (none unless a test sets them). */
+let runsOf: Record<number, object[]> = {};
+
 function revision(number: number, params: object): object {
   return {
     caseId: 'c1', caseTitle: 'Teaching rod', number, params, schemaVersion: 1, paramsDigest: `${number}`.repeat(64), note: `note ${number}`,
     author: { id: 'u2', name: 'Ada Analyst' }, createdAt: '2026-11-30T10:00:00.000Z', recheckState: 'draft', recheckRequest: null,
-    runs: [], rechecks: [],
+    runs: runsOf[number] ?? [], rechecks: [],
   };
 }
 
@@ -53,7 +60,10 @@ describe('HistoryTab', () => {
     await fixture.whenStable();
   }
 
-  afterEach(() => backend.verify());
+  afterEach(() => {
+    backend.verify();
+    runsOf = {};
+  });
 
   function diffRows(): string[][] {
     return Array.from(host.querySelectorAll('.diff-table tbody tr'), (tr) =>
@@ -90,5 +100,41 @@ describe('HistoryTab', () => {
     await open('reviewer');
     expect(host.querySelector('.ask-recheck')).toBeNull();
     expect(host.querySelector('.open-recheck')?.getAttribute('href')).toBe('/cases/c1/r/2/recheck');
+  });
+
+  it('compares the stored results of both revisions with arrows and percentages', async () => {
+    runsOf = {
+      1: [run('motion', { outcome: 'falls', slowFrequencyHz: null, maxDeviation: 2 }), run('margins', { uprightHolds: false, marginPercent: -4, amplitudeLower: 0.0104, amplitudeUpper: 0.09, frequencyLower: 41.6, frequencyUpper: null })],
+      2: [run('motion', { outcome: 'holds-upright', slowFrequencyHz: 0.9, maxDeviation: 0.04 }), run('margins', { uprightHolds: true, marginPercent: 15.2, amplitudeLower: 0.0104, amplitudeUpper: 0.09, frequencyLower: 34.7, frequencyUpper: null })],
+    };
+    await open('viewer');
+    expect(host.querySelector('.results-summary')?.textContent).toContain('6 results differ between the stored runs of r1 and r2');
+    const rows = Array.from(host.querySelectorAll('.results-diff tbody tr'), (tr) =>
+      Array.from(tr.querySelectorAll('th, td'), (cell) => (cell.textContent ?? '').replace('(changed)', '').replace(/\s+/g, ' ').trim()),
+    );
+    expect(rows).toContainEqual(['Motion Outcome', 'falls', 'holds upright', '≠ changed']);
+    expect(rows).toContainEqual(['Floquet margins Margin of the upright', '−4 %', '+15.2 %', '↑ +19.2 points']);
+    expect(rows).toContainEqual(['Floquet margins Lower frequency limit', '41.6 Hz', '34.7 Hz', '↓ −16.6 %']);
+    expect(rows).toContainEqual(['Floquet margins Lower amplitude limit', '10.4 mm', '10.4 mm', '=']);
+    expect(host.querySelectorAll('.results-diff tr.changed').length).toBe(6);
+  });
+
+  it('downloads the case report of the open revision', async () => {
+    await open('viewer');
+    const createObjectURL = vi.fn(() => 'blob:report');
+    Object.assign(URL, { createObjectURL, revokeObjectURL: vi.fn() });
+    const clicked: string[] = [];
+    const click = vi.spyOn(HTMLAnchorElement.prototype, 'click').mockImplementation(function (this: HTMLAnchorElement) {
+      clicked.push(this.download);
+    });
+    const button = Array.from(host.querySelectorAll<HTMLButtonElement>('button')).find((b) => b.textContent?.includes('Case report (PDF)'));
+    button?.click();
+    fixture.detectChanges();
+    backend
+      .expectOne('/api/cases/c1/revisions/2/report.pdf')
+      .flush(new Blob(['%PDF-1.7'], { type: 'application/pdf' }), { headers: { 'Content-Disposition': 'attachment; filename=teaching-rod-r2-report.pdf' } });
+    expect(clicked).toEqual(['teaching-rod-r2-report.pdf']);
+    expect(createObjectURL).toHaveBeenCalledTimes(1);
+    click.mockRestore();
   });
 });

@@ -25,6 +25,7 @@ import { RecheckChip } from '../recheck/recheck-chip';
 import { RecheckRequestData, RecheckRequestDialog } from '../recheck/recheck-request-dialog';
 import { CaseReportDownload } from './case-report-download';
 import { diffParams } from './params-diff';
+import { resultsDiff } from './results-diff';
 import { StoredRunsTable } from './stored-runs-table';
 
 /** The URL of one revision, for lab members (it needs signing in). */
@@ -120,6 +121,11 @@ export class HistoryTab {
     return diffParams(this.left.value().rawParams, this.right.value().rawParams);
   });
   protected readonly changedCount = computed(() => this.diffRows().filter((r) => r.changed).length);
+  protected readonly resultRows = computed(() => {
+    if (!this.left.hasValue() || !this.right.hasValue()) return [];
+    return resultsDiff(this.left.value().runs, this.right.value().runs);
+  });
+  protected readonly changedResults = computed(() => this.resultRows().filter((r) => r.changed).length);
   protected readonly shownDiffRows = computed(() =>
     this.onlyChanged() ? this.diffRows().filter((r) => r.changed) : this.diffRows(),
   );
