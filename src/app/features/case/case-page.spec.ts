@@ -126,7 +126,7 @@ describe('CasePage', { timeout: 30_000 }, () => {
     });
     expect(storedNote(2)).toBe('Stroke 24 mm for the new crank');
     expect(localStorage.getItem(`qp.revisionNote.${caseId}`)).toBeNull();
-  }, 15_000);
+  });
 
   it('keeps the note of a cancelled save for the next Save and saves nothing meanwhile', async () => {
     await harness.navigateByUrl(`/cases/${caseId}/r/1/rig`, CasePage);
@@ -144,7 +144,7 @@ describe('CasePage', { timeout: 30_000 }, () => {
     await answerNote(null);
     await vi.waitFor(async () => expect((await firstValueFrom(repository.open(caseId))).latestRevision).toBe(2));
     expect(storedNote(2)).toBe('Half-written note');
-  }, 15_000);
+  });
 
   it('offers the latest revision after a stale save and opens it with one click', async () => {
     await harness.navigateByUrl(`/cases/${caseId}/r/1/rig`, CasePage);
