@@ -113,7 +113,7 @@ export class CasePage {
     const note$: Observable<string | undefined> = newRevision
       ? this.dialog
           .open<RevisionNoteDialog, RevisionNoteData, string>(RevisionNoteDialog, {
-            data: { caseKey, nextRevision: opened ? opened.latestRevision + 1 : 1 },
+            data: { caseKey, nextRevision: opened ? opened.latestRevision + 1 : 1, suggested: this.workspace.saveNote() },
           })
           .afterClosed()
       : of('');

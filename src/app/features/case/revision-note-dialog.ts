@@ -42,6 +42,8 @@ export interface RevisionNoteData {
   readonly caseKey: string;
   /** The number the revision will get, when known. */
   readonly nextRevision: number | null;
+  /** A note the page proposes (e.g. after applying a bench fit), used when none is being written. */
+  readonly suggested?: string;
 }
 
 /** Asks for a short, optional note before a new revision is saved; closes with the note, or undefined on Cancel. */
@@ -85,7 +87,7 @@ export class RevisionNoteDialog {
   private readonly ref = inject<MatDialogRef<RevisionNoteDialog, string>>(MatDialogRef);
 
   protected readonly max = REVISION_NOTE_MAX;
-  protected readonly note = signal(revisionNoteDrafts.read(this.data.caseKey));
+  protected readonly note = signal(revisionNoteDrafts.read(this.data.caseKey) || (this.data.suggested ?? ''));
 
   protected edit(text: string): void {
     this.note.set(text);
