@@ -7,7 +7,7 @@ export interface ParsedArgs {
 }
 
 /** Options that take no value. */
-const FLAGS = new Set(['csv', 'record', 'log', 'linear', 'help']);
+const FLAGS = new Set(['csv', 'record', 'log', 'linear', 'help', 'version']);
 
 export class UsageError extends Error {}
 
@@ -16,7 +16,9 @@ export function parseArgs(argv: readonly string[]): ParsedArgs {
   const options = new Map<string, string | true>();
   for (let i = 0; i < argv.length; i++) {
     const arg = argv[i];
-    if (arg.startsWith('--')) {
+    if (arg === '-h') {
+      options.set('help', true);
+    } else if (arg.startsWith('--')) {
       const eq = arg.indexOf('=');
       const name = eq > 0 ? arg.slice(2, eq) : arg.slice(2);
       if (eq > 0) {

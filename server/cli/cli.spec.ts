@@ -5,6 +5,8 @@ import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { demoRigCase, parseCase, templateCase } from '../../shared/case';
 import { mathieuA, mathieuB } from '../../shared/engine/mathieu';
+import { MAX_SWEEP_STEPS } from '../../shared/engine/run-kinds';
+import { ENGINE_VERSION } from '../../shared/engine/version';
 
 const root = join(__dirname, '..', '..');
 const dir = mkdtempSync(join(tmpdir(), 'qp-cli-'));
@@ -123,5 +125,36 @@ describe('cli', () => {
     const unknown = cli('frobnicate', path);
     expect(unknown.code).toBe(2);
     expect(readFileSync(path, 'utf8')).toContain('-0.2');
+  }, 60_000);
+
+  it('prints usage on --help, -h and help with exit 0, and on no command with exit 2', () => {
+    for (const args of [['--help'], ['-h'], ['help'], ['sweep', '--help']]) {
+      const r = cli(...args);
+      expect(r.code, args.join(' ')).toBe(0);
+      expect(r.stdout).toMatch(/^usage: npm run cli -- <command>/);
+      expect(r.stdout).toContain('--version');
+    }
+    const none = cli();
+    expect(none.code).toBe(2);
+    expect(none.stdout).toBe('');
+    expect(none.stderr).toMatch(/a command is required/);
+  }, 60_000);
+
+  it('prints the package and engine versions on --version with exit 0', () => {
+    const pkg = JSON.parse(readFileSync(join(root, 'package.json'), 'utf8')) as { version: string };
+    const r = cli('--version');
+    expect(r.code).toBe(0);
+    expect(r.stdout).toBe(`quiverpoint ${pkg.version} (engine ${ENGINE_VERSION})\n`);
+  }, 60_000);
+
+  it('refuses sweep settings beyond the registry limits, naming the option (exit 2)', () => {
+    const path = shortTemplate(1);
+    const steps = cli('sweep', path, '--field', 'drive.amplitude', '--from', '0.001', '--to', '0.01', '--steps', String(MAX_SWEEP_STEPS + 1));
+    expect(steps.code).toBe(2);
+    expect(steps.stderr).toContain(`--steps: must be at most ${MAX_SWEEP_STEPS}`);
+    const field = cli('sweep', path, '--field', 'body.rodLength', '--from', '0.1', '--to', '0.2', '--steps', '3');
+    expect(field.code).toBe(2);
+    expect(field.stderr).toContain('--field: this case has no field body.rodLength');
+    expect(steps.stdout + field.stdout).toBe('');
   }, 60_000);
 });

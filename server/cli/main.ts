@@ -6,15 +6,20 @@
  */
 import { readFileSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
+import { join } from 'node:path';
 import { lastValueFrom, tap, type Observable } from 'rxjs';
-import { DEMO_RIGS, getField, parseCase, templateCase, type CaseParams } from '../../shared/case';
-import { createNodeEnginePool } from '../../shared/compute/node-pool';
-import type { PoolEvent } from '../../shared/compute/worker-pool';
-import { defaultChartGrid, type Grid2 } from '../../shared/engine/chart';
+import { DEMO_RIGS, parseCase, templateCase, type CaseParams } from '../../shared/case';
+import type { PoolEvent, WorkerPool } from '../../shared/compute/worker-pool';
+import { defaultChartGrid } from '../../shared/engine/chart';
+import { makeRunRecord, parseRunRecord, recheckRun } from '../../shared/engine/run-record';
 import {
-  computeRun, makeRunRecord, parseRunRecord, recheckRun, type RunResult, type RunSettings,
-} from '../../shared/engine/run-record';
+  computeRun, isRunKind, MAX_CHART_COUNT, MAX_MAP_COUNT, MAX_SWEEP_STEPS, parseRunSettingsFor, runKind,
+  type RunKind, type RunResult, type RunSettings, type RunSettingsOf,
+} from '../../shared/engine/run-kinds';
 import { defaultBasinGrid } from '../../shared/engine/sweep';
+import { ENGINE_VERSION } from '../../shared/engine/version';
+import { createEnginePool } from '../compute/engine-pool';
+import { repoRoot } from '../paths';
 import { fitOutput, fitRequest, TraceInputError } from './fit-command';
 import { countOption, flag, numberOption, parseArgs, stringOption, UsageError, type ParsedArgs } from './args';
 import { toCsv, toJson } from './output';
@@ -32,7 +37,12 @@ const USAGE = `usage: npm run cli -- <command> [options]
   check   <run.json>                       rerun a stored run record and compare digest and summary
   template [--demo <id>]                   print a complete valid case (or a demo rig)
 
-  common: --csv (CSV instead of JSON), --record (print only the run record), --workers N (default: cores)`;
+  help, --help, -h                         print this help
+  --version                                print the Quiverpoint and engine versions
+
+  common: --csv (CSV instead of JSON), --record (print only the run record), --workers N (default: cores)
+  limits: sweep --steps <= ${MAX_SWEEP_STEPS}; chart --n <= ${MAX_CHART_COUNT}; map and basin --n <= ${MAX_MAP_COUNT}
+  exit:   0 done, 1 recheck mismatch, 2 bad input, 3 engine failure`;
 
 class InputError extends Error {}
 
@@ -82,9 +92,9 @@ function workerCount(args: ParsedArgs): number {
 
 /** Runs a pool job with a progress bar and returns its result; the pool is always disposed. */
 async function onPool<T, P>(
-  args: ParsedArgs, label: string, job: (pool: ReturnType<typeof createNodeEnginePool>) => Observable<PoolEvent<T, P>>,
+  args: ParsedArgs, label: string, job: (pool: WorkerPool) => Observable<PoolEvent<T, P>>,
 ): Promise<T> {
-  const pool = createNodeEnginePool(workerCount(args));
+  const pool = createEnginePool(workerCount(args));
   const bar = progressBar(label);
   try {
     const last = await lastValueFrom(job(pool).pipe(tap((e) => { if (e.type === 'progress') bar.update(e.fraction); })));
@@ -96,19 +106,16 @@ async function onPool<T, P>(
   }
 }
 
-function chartGrid(args: ParsedArgs, params: CaseParams): Grid2 {
-  // Oblique drives take the general path (Newton per cell, a few ms each): a coarser default grid.
-  const vertical = Math.abs(Math.sin(params.drive.direction)) < 1e-12;
-  const n = countOption(args, 'n', vertical ? 200 : 40, 1000);
-  const def = defaultChartGrid(params, n);
-  const scale = flag(args, 'linear') ? 'linear' : 'log';
-  const grid: Grid2 = {
-    x: { ...def.x, from: numberOption(args, 'freq-from', def.x.from), to: numberOption(args, 'freq-to', def.x.to), scale },
-    y: { ...def.y, from: numberOption(args, 'amp-from', def.y.from), to: numberOption(args, 'amp-to', def.y.to), scale },
-  };
-  if (!(grid.x.from > 0 && grid.x.to > grid.x.from)) throw new UsageError('--freq-from must be > 0 and below --freq-to');
-  if (!(grid.y.from > 0 && grid.y.to > grid.y.from)) throw new UsageError('--amp-from must be > 0 and below --amp-to');
-  return grid;
+/**
+ * Computes a run: kinds that split into several tasks on a pool of worker threads, the others in this thread. Both
+ * drive the registry's job for the kind, so the numbers are the same.
+ */
+async function compute(args: ParsedArgs, params: CaseParams, settings: RunSettings): Promise<RunResult> {
+  if (runKind(settings.kind).chunked) return onPool(args, settings.kind, (pool) => pool.run(params, settings));
+  const bar = progressBar(settings.kind);
+  const result = computeRun(params, settings, { onProgress: (f) => bar.update(f) });
+  bar.done();
+  return result;
 }
 
 function requireOption(args: ParsedArgs, name: string): string {
@@ -117,84 +124,101 @@ function requireOption(args: ParsedArgs, name: string): string {
   return v;
 }
 
-function checkField(params: CaseParams, field: string): void {
-  try {
-    getField(params, field);
-  } catch (error: unknown) {
-    throw new UsageError(error instanceof Error ? error.message : String(error));
-  }
-}
-
-/** Computes the run a command asks for. */
-async function runCommand(command: string, args: ParsedArgs, params: CaseParams): Promise<{ settings: RunSettings; result: RunResult }> {
-  switch (command) {
-    case 'motion': {
-      const settings: RunSettings = { kind: 'motion' };
-      const bar = progressBar('motion');
-      const result = computeRun(params, settings, { onProgress: (f) => bar.update(f) });
-      bar.done();
-      return { settings, result };
-    }
-    case 'margins': {
-      const settings: RunSettings = { kind: 'margins', relTolerance: numberOption(args, 'tolerance', 1e-6) };
-      return { settings, result: computeRun(params, settings) };
-    }
-    case 'sweep': {
-      const field = requireOption(args, 'field');
-      checkField(params, field);
-      const spec = {
-        field,
-        from: numberOption(args, 'from', NaN),
-        to: numberOption(args, 'to', NaN),
-        steps: countOption(args, 'steps', 11, 10_000),
-        scale: flag(args, 'log') ? ('log' as const) : ('linear' as const),
-        tolerance: args.options.has('tolerance') ? numberOption(args, 'tolerance', 0) : undefined,
-      };
-      if (!Number.isFinite(spec.from) || !Number.isFinite(spec.to)) throw new UsageError('--from and --to are required numbers');
-      if (spec.steps < 2) throw new UsageError('--steps must be at least 2');
-      const value = await onPool(args, 'sweep', (pool) => pool.sweep(params, spec));
-      return { settings: { kind: 'sweep', spec }, result: { kind: 'sweep', value } };
-    }
-    case 'chart': {
-      const grid = chartGrid(args, params);
-      const value = await onPool(args, 'chart', (pool) => pool.chart(params, grid));
-      return { settings: { kind: 'chart', grid }, result: { kind: 'chart', value } };
-    }
-    case 'map': {
-      const n = countOption(args, 'n', 9, 500);
-      const grid: Grid2 = {
+/** Settings from the command's options, per kind; the registry's schema checks them afterwards. */
+const SETTINGS_FROM_ARGS: { readonly [K in RunKind]: (args: ParsedArgs, params: CaseParams) => RunSettingsOf<K> } = {
+  motion: () => ({ kind: 'motion' }),
+  margins: (args) => ({ kind: 'margins', relTolerance: numberOption(args, 'tolerance', 1e-6) }),
+  sweep: (args) => ({
+    kind: 'sweep',
+    spec: {
+      field: requireOption(args, 'field'),
+      from: numberOption(args, 'from', NaN),
+      to: numberOption(args, 'to', NaN),
+      steps: numberOption(args, 'steps', 11),
+      scale: flag(args, 'log') ? 'log' : 'linear',
+      ...(args.options.has('tolerance') ? { tolerance: numberOption(args, 'tolerance', 0) } : {}),
+    },
+  }),
+  chart: (args, params) => {
+    // Oblique drives take the general path (Newton per cell, a few ms each): a coarser default grid.
+    const vertical = Math.abs(Math.sin(params.drive.direction)) < 1e-12;
+    const def = defaultChartGrid(params, numberOption(args, 'n', vertical ? 200 : 40));
+    const scale = flag(args, 'linear') ? 'linear' : 'log';
+    return {
+      kind: 'chart',
+      grid: {
+        x: { ...def.x, from: numberOption(args, 'freq-from', def.x.from), to: numberOption(args, 'freq-to', def.x.to), scale },
+        y: { ...def.y, from: numberOption(args, 'amp-from', def.y.from), to: numberOption(args, 'amp-to', def.y.to), scale },
+      },
+    };
+  },
+  map: (args) => {
+    const n = numberOption(args, 'n', 9);
+    return {
+      kind: 'map',
+      grid: {
         x: { field: requireOption(args, 'x-field'), from: numberOption(args, 'x-from', NaN), to: numberOption(args, 'x-to', NaN), count: n },
         y: { field: requireOption(args, 'y-field'), from: numberOption(args, 'y-from', NaN), to: numberOption(args, 'y-to', NaN), count: n },
-      };
-      checkField(params, grid.x.field);
-      checkField(params, grid.y.field);
-      if (![grid.x.from, grid.x.to, grid.y.from, grid.y.to].every(Number.isFinite)) {
-        throw new UsageError('--x-from, --x-to, --y-from and --y-to are required numbers');
-      }
-      const value = await onPool(args, 'map', (pool) => pool.outcomeMap(params, grid));
-      return { settings: { kind: 'map', grid }, result: { kind: 'map', value } };
-    }
-    case 'basin': {
-      const def = defaultBasinGrid(params, countOption(args, 'n', 11, 500));
-      const grid: Grid2 = {
-        x: { ...def.x, from: numberOption(args, 'angle-from', def.x.from), to: numberOption(args, 'angle-to', def.x.to) },
-        y: { ...def.y, from: numberOption(args, 'rate-from', def.y.from), to: numberOption(args, 'rate-to', def.y.to) },
-      };
-      const value = await onPool(args, 'basin', (pool) => pool.basin(params, grid));
-      return { settings: { kind: 'basin', grid }, result: { kind: 'basin', value } };
-    }
-    default:
-      throw new UsageError(`unknown command "${command}"`);
-  }
+      },
+    };
+  },
+  basin: (args, params) => {
+    const def = defaultBasinGrid(params, numberOption(args, 'n', 11));
+    return {
+      kind: 'basin',
+      grid: {
+        x: { field: 'start.angle', from: numberOption(args, 'angle-from', def.x.from), to: numberOption(args, 'angle-to', def.x.to), count: def.x.count },
+        y: { field: 'start.rate', from: numberOption(args, 'rate-from', def.y.from), to: numberOption(args, 'rate-to', def.y.to), count: def.y.count },
+      },
+    };
+  },
+};
+
+/** Per kind, the option behind each settings field, so an error names what the user typed. */
+const OPTION_OF_FIELD: { readonly [K in RunKind]: Readonly<Record<string, string>> } = {
+  motion: {},
+  margins: { relTolerance: '--tolerance' },
+  sweep: { 'spec.field': '--field', 'spec.from': '--from', 'spec.to': '--to', 'spec.steps': '--steps', 'spec.tolerance': '--tolerance' },
+  chart: {
+    'grid.x.from': '--freq-from', 'grid.x.to': '--freq-to', 'grid.y.from': '--amp-from', 'grid.y.to': '--amp-to',
+    'grid.x.count': '--n', 'grid.y.count': '--n',
+  },
+  map: {
+    'grid.x.field': '--x-field', 'grid.x.from': '--x-from', 'grid.x.to': '--x-to', 'grid.y.field': '--y-field',
+    'grid.y.from': '--y-from', 'grid.y.to': '--y-to', 'grid.x.count': '--n', 'grid.y.count': '--n',
+  },
+  basin: {
+    'grid.x.from': '--angle-from', 'grid.x.to': '--angle-to', 'grid.y.from': '--rate-from', 'grid.y.to': '--rate-to',
+    'grid.x.count': '--n', 'grid.y.count': '--n',
+  },
+};
+
+/** The settings a command asks for, checked by the registry's schema for the kind. */
+function settingsFor(kind: RunKind, args: ParsedArgs, params: CaseParams): RunSettings {
+  const checked = parseRunSettingsFor(params, SETTINGS_FROM_ARGS[kind](args, params));
+  if (!checked.ok) throw new UsageError(`${OPTION_OF_FIELD[kind][checked.field] ?? checked.field}: ${checked.message}`);
+  return checked.value;
+}
+
+/** "quiverpoint 0.1.0 (engine 1.0.0)" */
+function versionLine(): string {
+  const pkg: unknown = JSON.parse(readFileSync(join(repoRoot(), 'package.json'), 'utf8'));
+  const version = typeof pkg === 'object' && pkg !== null && 'version' in pkg ? String(pkg.version) : 'unknown';
+  return `quiverpoint ${version} (engine ${ENGINE_VERSION})`;
 }
 
 async function main(argv: readonly string[]): Promise<number> {
   const args = parseArgs(argv);
   const command = args.command;
-  if (!command || flag(args, 'help') || command === 'help') {
+  if (flag(args, 'help') || command === 'help') {
     process.stdout.write(`${USAGE}\n`);
-    return command ? 0 : 2;
+    return 0;
   }
+  if (flag(args, 'version')) {
+    process.stdout.write(`${versionLine()}\n`);
+    return 0;
+  }
+  if (!command) throw new UsageError('a command is required');
   if (command === 'template') {
     const id = stringOption(args, 'demo');
     const rig = id === undefined ? undefined : DEMO_RIGS.find((d) => d.id === id);
@@ -227,8 +251,10 @@ async function main(argv: readonly string[]): Promise<number> {
     process.stdout.write(fitOutput(args, fit));
     return 0;
   }
+  if (!isRunKind(command)) throw new UsageError(`unknown command "${command}"`);
   const params = readCase(args.positional[0]);
-  const { settings, result } = await runCommand(command, args, params);
+  const settings = settingsFor(command, args, params);
+  const result = await compute(args, params, settings);
   const record = makeRunRecord(params, settings, result);
   if (flag(args, 'csv')) process.stdout.write(toCsv(result));
   else if (flag(args, 'record')) process.stdout.write(`${toJson(record)}\n`);

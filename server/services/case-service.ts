@@ -7,6 +7,7 @@
  */
 import { Op, UniqueConstraintError, col, fn, where, type Sequelize, type Transaction, type WhereOptions } from 'sequelize';
 import { caseDigest, canonicalJson, parseCase, type CaseParams } from '../../shared/case';
+import { parseRunSettingsFor } from '../../shared/engine/run-kinds';
 import { AppError } from '../app-error';
 import {
   AuditEvent,
@@ -351,10 +352,12 @@ function staleRevision(base: number, latest: number): AppError {
 }
 
 export async function storeRun(sequelize: Sequelize, actor: Actor, access: CaseAccess, number: number, input: StoreRunBody): Promise<RunView> {
-  if (input.settings['kind'] !== input.kind) {
+  if (input.settings.kind !== input.kind) {
     throw new AppError('settings_kind_mismatch', 'settings.kind must equal kind.', 422, 'settings.kind');
   }
-  const { digest } = validParams(input.params);
+  const { params, digest } = validParams(input.params);
+  const fit = parseRunSettingsFor(params, input.settings);
+  if (!fit.ok) throw new AppError('settings_not_for_case', `settings.${fit.field}: ${fit.message}.`, 422, `settings.${fit.field}`);
   return sequelize.transaction(async (transaction) => {
     const revision = await findRevision(access.caseId, number, transaction);
     if (digest !== revision.paramsDigest) {

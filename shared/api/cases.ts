@@ -1,6 +1,6 @@
 /** Cases, their append-only revisions, runs, comments, rechecks and audit trail. */
 import { z } from 'zod';
-import { RUN_KINDS, type RunKind } from '../engine/run-record';
+import { RUN_KINDS, runSettingsSchema, type RunKind } from '../engine/run-kinds';
 import {
   hex64Schema, idSchema, instantSchema, labRoleSchema, pageQuerySchema, personRefSchema, recheckStateSchema, scalarSchema, serialIdSchema,
 } from './common';
@@ -30,7 +30,8 @@ export const saveRevisionBodySchema = z.object({ baseRevision: z.number().int().
 export const storeRunBodySchema = z.object({
   kind: z.enum(RUN_KINDS as [RunKind, ...RunKind[]]),
   params,
-  settings: z.looseObject({ kind: z.string() }),
+  /** The run registry's strict settings for the kind (bounds, no unknown keys). */
+  settings: runSettingsSchema,
   summary: z.record(z.string(), scalarSchema),
   resultDigest: hex64Schema,
   engineVersion: z.string().min(1).max(64),

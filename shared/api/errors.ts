@@ -53,6 +53,7 @@ export const ERROR_STATUS = {
   invalid_params: 422,
   params_mismatch: 422,
   settings_kind_mismatch: 422,
+  settings_not_for_case: 422,
   reviewer_not_eligible: 422,
   run_not_found: 422,
   verdict_contradicts_numbers: 422,

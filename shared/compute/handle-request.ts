@@ -3,15 +3,9 @@
  * case, calls the engine, reports progress and answers with exactly one result, error or cancelled message.
  */
 import { parseCase } from '../case/validate';
-import { stabilityChartRows } from '../engine/chart';
-import { fitFreeSwing } from '../engine/fit';
-import { floquetAnalysis } from '../engine/floquet';
-import { EngineCancelledError, simulateMotion } from '../engine/motion';
-import { basinMapRows, outcomeMapRows, sweepPoints, sweepThresholds } from '../engine/sweep';
-import { overlayDrivenTrace } from '../engine/trace-drive';
-import {
-  isEngineRequest, resultTransferables, type EngineRequest, type EngineResponse, type EngineResult,
-} from './protocol';
+import { computeTask, type TaskResult } from '../engine/engine-task';
+import { EngineCancelledError } from '../engine/motion';
+import { isEngineRequest, resultTransferables, type EngineRequest, type EngineResponse } from './protocol';
 
 /** Sends a response; `transfer` lists buffers to move instead of copy. */
 export type PostResponse = (response: EngineResponse, transfer: ArrayBuffer[]) => void;
@@ -39,10 +33,6 @@ export function handleEngineRequest(message: unknown, post: PostResponse, should
   };
   try {
     const result = compute(message, onProgress, shouldCancel);
-    if (result === null) {
-      post({ type: 'cancelled', id }, []);
-      return;
-    }
     post({ type: 'result', id, result }, resultTransferables(result));
   } catch (error: unknown) {
     if (error instanceof EngineCancelledError) {
@@ -53,48 +43,12 @@ export function handleEngineRequest(message: unknown, post: PostResponse, should
   }
 }
 
-function compute(
-  request: EngineRequest, onProgress: (fraction: number) => void, shouldCancel?: () => boolean,
-): EngineResult | null {
+function compute(request: EngineRequest, onProgress: (fraction: number) => void, shouldCancel?: () => boolean): TaskResult {
   const hooks = { onProgress, shouldCancel };
-  if (request.type === 'fit') {
-    const { trace, model, gravity, frictionSmoothing } = request;
-    return { kind: 'fit', fit: fitFreeSwing(trace, { model, gravity, frictionSmoothing, ...hooks }) };
-  }
+  if (request.type === 'fit') return computeTask(request, hooks);
   const parsed = parseCase(request.params);
   if (!parsed.ok) {
     throw new Error(`invalid case: ${parsed.issues.map((i) => `${i.field || '(case)'}: ${i.message}`).join('; ')}`);
   }
-  const params = parsed.value;
-  switch (request.type) {
-    case 'overlay': {
-      const { trace, partAngle, holdLimit } = request;
-      return { kind: 'overlay', overlay: overlayDrivenTrace(params, trace, { partAngle, holdLimit, ...hooks }) };
-    }
-    case 'motion':
-      return { kind: 'motion', motion: simulateMotion(params, hooks) };
-    case 'margins':
-      return { kind: 'margins', analysis: floquetAnalysis(params, { relTolerance: request.relTolerance }) };
-    case 'sweep-chunk': {
-      const part = request.part;
-      if (part.kind === 'points') {
-        return { kind: 'sweep-points', points: sweepPoints(params, request.spec, part.from, part.to, hooks) };
-      }
-      return { kind: 'sweep-thresholds', thresholds: sweepThresholds(params, request.spec, part.brackets, hooks) };
-    }
-    case 'chart-chunk': {
-      const { values, cancelled } = stabilityChartRows(params, request.grid, request.rowFrom, request.rowTo, onProgress, shouldCancel);
-      return cancelled ? null : { kind: 'chart-rows', rowFrom: request.rowFrom, rowTo: request.rowTo, values };
-    }
-    case 'basin-chunk':
-      return {
-        kind: 'basin-rows', rowFrom: request.rowFrom, rowTo: request.rowTo,
-        cells: basinMapRows(params, request.grid, request.rowFrom, request.rowTo, hooks),
-      };
-    case 'map-chunk':
-      return {
-        kind: 'map-rows', rowFrom: request.rowFrom, rowTo: request.rowTo,
-        cells: outcomeMapRows(params, request.grid, request.rowFrom, request.rowTo, hooks),
-      };
-  }
+  return computeTask({ ...request, params: parsed.value }, hooks);
 }

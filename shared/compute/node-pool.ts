@@ -1,27 +1,24 @@
 /**
- * Node side of the engine worker pool: a worker_threads adapter to `WorkerLike` and a pool factory for the server
- * and the CLI. The only Node-specific file in shared/ (browser and worker builds exclude it).
+ * Node side of the engine worker pool: a worker_threads adapter to `WorkerLike` and a pool factory. The only
+ * Node-specific file in shared/ (browser and worker builds exclude it). The thread script is the caller's: the
+ * server and the CLI pass server/compute/engine-thread (see server/compute/engine-pool.ts).
  *
- * Under tsx or Vitest (development, tests, CLI) the thread entry is TypeScript: the thread first registers tsx's
- * CommonJS loader (`tsx/cjs/api`; a `--import tsx` in the thread's execArgv does not reach worker threads on
- * Node 20), then requires the entry. The compiled server runs the `.js` entry next to this file's compiled output.
+ * A TypeScript entry (under tsx or Vitest) first registers tsx's CommonJS loader in the thread (`tsx/cjs/api`; a
+ * `--import tsx` in the thread's execArgv does not reach worker threads on Node 20), then requires the entry. A
+ * `.js` entry (the compiled server) runs as it is.
  */
 import { createRequire } from 'node:module';
 import { availableParallelism } from 'node:os';
-import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
 import type { EngineRequest, EngineResponse } from './protocol';
 import { isEngineResponse } from './protocol';
 import { WorkerPool, type WorkerLike } from './worker-pool';
 
-/** Path of the engine thread entry, .ts under tsx and .js when compiled. */
-export function engineThreadEntry(): string {
-  const ext = __filename.endsWith('.ts') ? '.ts' : '.js';
-  return join(__dirname, '..', '..', 'server', 'compute', `engine-thread${ext}`);
-}
-
-/** A worker_threads Worker running the engine, seen as a `WorkerLike`. */
-export function createNodeEngineWorker(entry: string = engineThreadEntry()): WorkerLike {
+/**
+ * A worker_threads Worker running the engine, seen as a `WorkerLike`.
+ * @param entry absolute path of the thread script (.ts or .js) that answers engine requests
+ */
+export function createNodeEngineWorker(entry: string): WorkerLike {
   let worker: Worker;
   if (entry.endsWith('.ts')) {
     const tsxApi = createRequire(__filename).resolve('tsx/cjs/api');
@@ -48,7 +45,7 @@ export function createNodeEngineWorker(entry: string = engineThreadEntry()): Wor
   return like;
 }
 
-/** A pool of engine threads, one per core unless told otherwise (at least 1). */
-export function createNodeEnginePool(size: number = availableParallelism()): WorkerPool {
-  return new WorkerPool(() => createNodeEngineWorker(), size);
+/** A pool of engine threads running `entry`, one per core unless told otherwise (at least 1). */
+export function createNodeEnginePool(entry: string, size: number = availableParallelism()): WorkerPool {
+  return new WorkerPool(() => createNodeEngineWorker(entry), size);
 }

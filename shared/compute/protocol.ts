@@ -6,111 +6,18 @@
  * time and answers with any number of `progress` messages and then exactly one of `result`, `error` or
  * `cancelled`.
  */
-import type { CaseParams } from '../case/case-schema';
-import type { Grid2 } from '../engine/chart';
-import type { FitModel, FitResult } from '../engine/fit';
-import type { OverlayResult } from '../engine/trace-drive';
-import type { FloquetAnalysis } from '../engine/floquet';
-import type { MotionResult } from '../engine/motion';
-import type { BasinCell, MapCell, SweepPoint, SweepSpec, SweepThreshold, ThresholdBracket } from '../engine/sweep';
+import { ENGINE_TASK_TYPES, type EngineTask, type FitTask, type OverlayTask, type TaskResult } from '../engine/engine-task';
 
-/** Simulate the motion of one case. */
-export interface MotionRequest {
-  type: 'motion';
-  id: string;
-  params: CaseParams;
-}
+type WithId<T> = T extends unknown ? T & { id: string } : never;
 
-/** Floquet analysis: upright multipliers, periodic motions, drive limits and margins. */
-export interface MarginsRequest {
-  type: 'margins';
-  id: string;
-  params: CaseParams;
-  relTolerance?: number;
-}
+/** One engine task (shared/engine/engine-task.ts) with the id its replies carry. */
+export type EngineRequest = WithId<EngineTask>;
 
-/** Part of a 1-D sweep: the points with index in [from, to), or the thresholds inside the given brackets. */
-export interface SweepChunkRequest {
-  type: 'sweep-chunk';
-  id: string;
-  params: CaseParams;
-  spec: SweepSpec;
-  part: { kind: 'points'; from: number; to: number } | { kind: 'thresholds'; brackets: ThresholdBracket[] };
-}
-
-/** Rows [rowFrom, rowTo) of a stability chart. */
-export interface ChartChunkRequest {
-  type: 'chart-chunk';
-  id: string;
-  params: CaseParams;
-  grid: Grid2;
-  rowFrom: number;
-  rowTo: number;
-}
-
-/** Rows [rowFrom, rowTo) of a basin map (start angle along x, start rate along y). */
-export interface BasinChunkRequest {
-  type: 'basin-chunk';
-  id: string;
-  params: CaseParams;
-  grid: Grid2;
-  rowFrom: number;
-  rowTo: number;
-}
-
-/** Rows [rowFrom, rowTo) of an outcome map over two case fields. */
-export interface MapChunkRequest {
-  type: 'map-chunk';
-  id: string;
-  params: CaseParams;
-  grid: Grid2;
-  rowFrom: number;
-  rowTo: number;
-}
-
-/** Fit a free swing (times s, angles rad from any fixed zero); no case needed. */
-export interface FitRequest {
-  type: 'fit';
-  id: string;
-  trace: { time: number[]; angle: number[] };
-  model: FitModel;
-  gravity?: number;
-  frictionSmoothing?: number;
-}
-
-/** Measured against simulated motion of a driven trace (angles rad from the upright, pivot m). */
-export interface OverlayRequest {
-  type: 'overlay';
-  id: string;
-  params: CaseParams;
-  trace: { time: number[]; angle: number[]; pivot: number[] };
-  partAngle?: number;
-  holdLimit?: number;
-}
-
-export type EngineRequest =
-  | FitRequest
-  | OverlayRequest
-  | MotionRequest
-  | MarginsRequest
-  | SweepChunkRequest
-  | ChartChunkRequest
-  | BasinChunkRequest
-  | MapChunkRequest;
-
-export type EngineRequestType = EngineRequest['type'];
+export type FitRequest = FitTask & { id: string };
+export type OverlayRequest = OverlayTask & { id: string };
 
 /** Result payloads, one per request type. */
-export type EngineResult =
-  | { kind: 'motion'; motion: MotionResult }
-  | { kind: 'margins'; analysis: FloquetAnalysis }
-  | { kind: 'sweep-points'; points: SweepPoint[] }
-  | { kind: 'sweep-thresholds'; thresholds: SweepThreshold[] }
-  | { kind: 'chart-rows'; rowFrom: number; rowTo: number; values: Float64Array }
-  | { kind: 'basin-rows'; rowFrom: number; rowTo: number; cells: BasinCell[] }
-  | { kind: 'map-rows'; rowFrom: number; rowTo: number; cells: MapCell[] }
-  | { kind: 'fit'; fit: FitResult }
-  | { kind: 'overlay'; overlay: OverlayResult };
+export type EngineResult = TaskResult;
 
 export interface ProgressResponse {
   type: 'progress';
@@ -142,12 +49,11 @@ function isRecord(value: unknown): value is Record<string, unknown> {
   return typeof value === 'object' && value !== null;
 }
 
-const REQUEST_TYPES: readonly string[] = ['fit', 'overlay', 'motion', 'margins', 'sweep-chunk', 'chart-chunk', 'basin-chunk', 'map-chunk'];
 const RESPONSE_TYPES: readonly string[] = ['progress', 'result', 'error', 'cancelled'];
 
 /** Shape check of an incoming request (the case itself is validated by the handler). */
 export function isEngineRequest(value: unknown): value is EngineRequest {
-  return isRecord(value) && typeof value['id'] === 'string' && REQUEST_TYPES.includes(String(value['type']));
+  return isRecord(value) && typeof value['id'] === 'string' && (ENGINE_TASK_TYPES as readonly string[]).includes(String(value['type']));
 }
 
 /** Shape check of an incoming response. */

@@ -1,10 +1,8 @@
 import { lastValueFrom, toArray, type Observable } from 'rxjs';
-import { afterAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { templateCase, type CaseParams } from '../case';
-import { defaultChartGrid, stabilityChart, type Grid2 } from '../engine/chart';
-import { sweep } from '../engine/sweep';
+import { computeRun } from '../engine/run-kinds';
 import { handleEngineRequest } from './handle-request';
-import { createNodeEngineWorker } from './node-pool';
 import type { EngineResponse } from './protocol';
 import { fromWebWorker, WorkerPool, type PoolEvent, type WebWorkerHandle, type WorkerLike } from './worker-pool';
 
@@ -47,77 +45,6 @@ async function collect<T, P>(job: Observable<PoolEvent<T, P>>): Promise<{ value:
   return { value: last.value, progress, partials };
 }
 
-describe('WorkerPool over worker_threads', () => {
-  let threads = 0;
-  let terminated = 0;
-  const pool = new WorkerPool(() => {
-    threads++;
-    const w = createNodeEngineWorker();
-    const terminate = w.terminate;
-    w.terminate = () => {
-      terminated++;
-      terminate();
-    };
-    return w;
-  }, 2);
-  afterAll(() => pool.dispose());
-
-  it('gives the same chart as a single-thread run, with monotone progress ending at 1', async () => {
-    const c = templateCase();
-    const grid = defaultChartGrid(c, 40);
-    const { value, progress, partials } = await collect(pool.chart(c, grid));
-    const single = stabilityChart(c, grid);
-    expect(Array.from(value.maxMultiplier)).toEqual(Array.from(single.maxMultiplier));
-    // Partial row blocks cover every row once and carry the final numbers.
-    const rebuilt = new Float64Array(value.maxMultiplier.length);
-    let rows = 0;
-    for (const p of partials) {
-      rebuilt.set(p.values, p.rowFrom * grid.x.count);
-      rows += p.rowTo - p.rowFrom;
-    }
-    expect(rows).toBe(grid.y.count);
-    expect(Array.from(rebuilt)).toEqual(Array.from(value.maxMultiplier));
-    expect(progress.length).toBeGreaterThan(2);
-    for (let i = 1; i < progress.length; i++) expect(progress[i]).toBeGreaterThan(progress[i - 1]);
-    expect(progress[progress.length - 1]).toBe(1);
-  }, 60_000);
-
-  it('stops work when unsubscribed: busy threads are terminated and nothing is emitted after', async () => {
-    const c = shortCase();
-    const grid: Grid2 = {
-      x: { field: 'drive.frequency', from: 20, to: 60, count: 12 },
-      y: { field: 'drive.amplitude', from: 0.005, to: 0.02, count: 12 },
-    };
-    const before = terminated;
-    const seen: string[] = [];
-    await new Promise<void>((resolve) => {
-      const sub = pool.outcomeMap(c, grid).subscribe({
-        next: (e) => {
-          seen.push(e.type);
-          if (e.type === 'progress') {
-            sub.unsubscribe();
-            resolve();
-          }
-        },
-      });
-    });
-    const countAtCancel = seen.length;
-    await new Promise((r) => setTimeout(r, 300));
-    expect(seen.length).toBe(countAtCancel);
-    expect(seen).not.toContain('result');
-    expect(terminated).toBeGreaterThan(before);
-    // The pool replaces the terminated threads and keeps working.
-    const { value } = await collect(pool.margins(templateCase()));
-    expect(value.uprightHolds).toBe(true);
-    expect(threads).toBeGreaterThan(2);
-  }, 60_000);
-
-  it('reports an invalid case as an error naming the field', async () => {
-    const bad = { ...templateCase(), body: { kind: 'point-mass' as const, length: -1, mass: 1 } };
-    await expect(lastValueFrom(pool.margins(bad))).rejects.toThrow(/body\.length/);
-  }, 60_000);
-});
-
 describe('WorkerPool determinism', () => {
   it('gives identical sweeps on 1 and 3 workers, equal to the single-thread sweep', async () => {
     const c = shortCase();
@@ -130,7 +57,9 @@ describe('WorkerPool determinism', () => {
       results.push(value);
       pool.dispose();
     }
-    const single = sweep(c, spec);
+    const run = computeRun(c, { kind: 'sweep', spec });
+    if (run.kind !== 'sweep') throw new Error(`unexpected ${run.kind} run`);
+    const single = run.value;
     for (const r of results) {
       expect(r.points).toEqual(single.points);
       expect(r.thresholds).toEqual(single.thresholds);

@@ -10,18 +10,19 @@
  */
 import { Observable } from 'rxjs';
 import type { CaseParams } from '../case/case-schema';
-import { assembleChart, type Grid2, type StabilityChart } from '../engine/chart';
+import type { Grid2, StabilityChart } from '../engine/chart';
+import type { EngineTask, FitTask, OverlayTask, TaskResult } from '../engine/engine-task';
 import type { FitResult } from '../engine/fit';
 import type { FloquetAnalysis } from '../engine/floquet';
 import type { MotionResult } from '../engine/motion';
 import type { OverlayResult } from '../engine/trace-drive';
-import {
-  assembleCellMap, assembleSweep, thresholdBrackets, sweepValues, type BasinCell, type CellMap, type MapCell,
-  type SweepPoint, type SweepResult, type SweepSpec, type SweepThreshold,
-} from '../engine/sweep';
-import {
-  isEngineResponse, type EngineRequest, type EngineResponse, type EngineResult, type FitRequest, type OverlayRequest,
-} from './protocol';
+import type { RunJob } from '../engine/run-job';
+import { expectResult } from '../engine/run-job';
+import { runJob, runKind, type RowsPartial, type RunKind, type RunPartialOf, type RunResult, type RunSettings, type RunSettingsOf, type RunValueOf } from '../engine/run-kinds';
+import type { BasinCell, CellMap, MapCell, SweepPoint, SweepResult, SweepSpec } from '../engine/sweep';
+import { isEngineResponse, type EngineRequest, type EngineResponse, type EngineResult } from './protocol';
+
+export type { RowsPartial } from '../engine/run-kinds';
 
 /** The part of a Worker the pool uses; Web Workers fit as they are, worker_threads through an adapter. */
 export interface WorkerLike {
@@ -76,22 +77,6 @@ export type PoolEvent<T, P = never> =
   | { type: 'result'; value: T }
   | ([P] extends [never] ? never : { type: 'partial'; value: P });
 
-/** Partial results of chunked jobs. */
-export interface RowsPartial<V> {
-  rowFrom: number;
-  rowTo: number;
-  values: V;
-}
-
-type DistributiveOmit<T, K extends PropertyKey> = T extends unknown ? Omit<T, K> : never;
-/** A request before the pool gives it an id. */
-export type RequestBody = DistributiveOmit<EngineRequest, 'id'>;
-
-/** Rows per chunk of charts and maps, points per chunk of sweeps: fixed so the split never depends on the pool. */
-export const CHART_ROWS_PER_CHUNK = 8;
-export const MAP_ROWS_PER_CHUNK = 1;
-export const SWEEP_POINTS_PER_CHUNK = 2;
-
 interface Task {
   jobId: number;
   id: string;
@@ -112,7 +97,7 @@ class JobCancelled extends Error {}
 interface JobContext {
   /** Runs the requests on the pool; progress of the whole call spans [spanFrom, spanTo] of the job. */
   runAll(
-    requests: RequestBody[], spanFrom: number, spanTo: number, onChunk?: (result: EngineResult) => void,
+    requests: EngineTask[], spanFrom: number, spanTo: number, onChunk?: (result: EngineResult) => void,
   ): Promise<EngineResult[]>;
 }
 
@@ -137,123 +122,51 @@ export class WorkerPool {
     return this.slots.length;
   }
 
-  /** Simulated motion of one case. */
-  motion(params: CaseParams): Observable<PoolEvent<MotionResult>> {
-    return this.job(async (ctx) => {
-      const [r] = await ctx.runAll([{ type: 'motion', params }], 0, 1);
-      if (r.kind !== 'motion') throw new Error(`unexpected ${r.kind} result`);
-      return r.motion;
-    });
+  /** A run of any kind, computed by the registry's job for it; partial results are not reported. */
+  run(params: CaseParams, settings: RunSettings): Observable<PoolEvent<RunResult>> {
+    return this.runJob<RunResult, never>(runJob(params, settings), () => undefined);
   }
 
   /** Free-swing fit of a bench trace. */
-  fit(request: Omit<FitRequest, 'id' | 'type'>): Observable<PoolEvent<FitResult>> {
-    return this.job(async (ctx) => {
-      const [r] = await ctx.runAll([{ type: 'fit', ...request }], 0, 1);
-      if (r.kind !== 'fit') throw new Error(`unexpected ${r.kind} result`);
-      return r.fit;
-    });
+  fit(request: Omit<FitTask, 'type'>): Observable<PoolEvent<FitResult>> {
+    return this.runJob<FitResult, never>(oneTask({ type: 'fit', ...request }, (r) => expectResult(r, 'fit').fit), () => undefined);
   }
 
   /** Driven bench trace against the case's simulation with the drive read from the pivot column. */
-  overlay(request: Omit<OverlayRequest, 'id' | 'type'>): Observable<PoolEvent<OverlayResult>> {
-    return this.job(async (ctx) => {
-      const [r] = await ctx.runAll([{ type: 'overlay', ...request }], 0, 1);
-      if (r.kind !== 'overlay') throw new Error(`unexpected ${r.kind} result`);
-      return r.overlay;
-    });
+  overlay(request: Omit<OverlayTask, 'type'>): Observable<PoolEvent<OverlayResult>> {
+    return this.runJob<OverlayResult, never>(
+      oneTask({ type: 'overlay', ...request }, (r) => expectResult(r, 'overlay').overlay), () => undefined,
+    );
+  }
+
+  /** Simulated motion of one case. */
+  motion(params: CaseParams): Observable<PoolEvent<MotionResult>> {
+    return this.runKind('motion', params, { kind: 'motion' });
   }
 
   /** Floquet analysis with drive limits and margins. */
-  margins(params: CaseParams, relTolerance?: number): Observable<PoolEvent<FloquetAnalysis>> {
-    return this.job(async (ctx) => {
-      const [r] = await ctx.runAll([{ type: 'margins', params, relTolerance }], 0, 1);
-      if (r.kind !== 'margins') throw new Error(`unexpected ${r.kind} result`);
-      return r.analysis;
-    });
+  margins(params: CaseParams, relTolerance = 1e-6): Observable<PoolEvent<FloquetAnalysis>> {
+    return this.runKind('margins', params, { kind: 'margins', relTolerance });
   }
 
   /** Stability chart, split into row ranges. */
   chart(params: CaseParams, grid: Grid2): Observable<PoolEvent<StabilityChart, RowsPartial<Float64Array>>> {
-    return this.job<StabilityChart, RowsPartial<Float64Array>>(async (ctx, partial) => {
-      const requests: RequestBody[] = rowRanges(grid.y.count, CHART_ROWS_PER_CHUNK).map(([rowFrom, rowTo]) => ({
-        type: 'chart-chunk', params, grid, rowFrom, rowTo,
-      }));
-      const parts = await ctx.runAll(requests, 0, 1, (p) => {
-        if (p.kind === 'chart-rows') partial({ rowFrom: p.rowFrom, rowTo: p.rowTo, values: p.values.slice() });
-      });
-      const values = new Float64Array(grid.x.count * grid.y.count);
-      for (const p of parts) {
-        if (p.kind !== 'chart-rows') throw new Error(`unexpected ${p.kind} result`);
-        values.set(p.values, p.rowFrom * grid.x.count);
-      }
-      return assembleChart(params, grid, values);
-    });
+    return this.runKind('chart', params, { kind: 'chart', grid });
   }
 
   /** 1-D sweep: points in chunks, then each threshold between differing outcomes by bisection. */
   sweep(params: CaseParams, spec: SweepSpec): Observable<PoolEvent<SweepResult, SweepPoint[]>> {
-    return this.job<SweepResult, SweepPoint[]>(async (ctx, partial) => {
-      const values = sweepValues(spec);
-      const requests: RequestBody[] = rowRanges(values.length, SWEEP_POINTS_PER_CHUNK).map(([from, to]) => ({
-        type: 'sweep-chunk', params, spec, part: { kind: 'points', from, to },
-      }));
-      const pointParts = await ctx.runAll(requests, 0, 0.7, (p) => {
-        if (p.kind === 'sweep-points') partial(p.points);
-      });
-      const points: SweepPoint[] = [];
-      for (const p of pointParts) {
-        if (p.kind !== 'sweep-points') throw new Error(`unexpected ${p.kind} result`);
-        points.push(...p.points);
-      }
-      const brackets = thresholdBrackets(points);
-      const thresholdParts = await ctx.runAll(
-        brackets.map((b) => ({ type: 'sweep-chunk', params, spec, part: { kind: 'thresholds', brackets: [b] } })),
-        0.7, 1,
-      );
-      const thresholds: SweepThreshold[] = [];
-      for (const p of thresholdParts) {
-        if (p.kind !== 'sweep-thresholds') throw new Error(`unexpected ${p.kind} result`);
-        thresholds.push(...p.thresholds);
-      }
-      return assembleSweep(spec, points, thresholds);
-    });
+    return this.runKind('sweep', params, { kind: 'sweep', spec });
   }
 
   /** Outcome map over two case fields. */
   outcomeMap(params: CaseParams, grid: Grid2): Observable<PoolEvent<CellMap, RowsPartial<MapCell[]>>> {
-    return this.job<CellMap, RowsPartial<MapCell[]>>(async (ctx, partial) => {
-      const requests: RequestBody[] = rowRanges(grid.y.count, MAP_ROWS_PER_CHUNK).map(([rowFrom, rowTo]) => ({
-        type: 'map-chunk', params, grid, rowFrom, rowTo,
-      }));
-      const cells: MapCell[] = [];
-      const rows = await ctx.runAll(requests, 0, 1, (p) => {
-        if (p.kind === 'map-rows') partial({ rowFrom: p.rowFrom, rowTo: p.rowTo, values: p.cells });
-      });
-      for (const p of rows) {
-        if (p.kind !== 'map-rows') throw new Error(`unexpected ${p.kind} result`);
-        cells.push(...p.cells);
-      }
-      return assembleCellMap(grid, cells);
-    });
+    return this.runKind('map', params, { kind: 'map', grid });
   }
 
   /** Basin map over start angle (x) and start rate (y). */
   basin(params: CaseParams, grid: Grid2): Observable<PoolEvent<CellMap, RowsPartial<BasinCell[]>>> {
-    return this.job<CellMap, RowsPartial<BasinCell[]>>(async (ctx, partial) => {
-      const requests: RequestBody[] = rowRanges(grid.y.count, MAP_ROWS_PER_CHUNK).map(([rowFrom, rowTo]) => ({
-        type: 'basin-chunk', params, grid, rowFrom, rowTo,
-      }));
-      const cells: BasinCell[] = [];
-      const rows = await ctx.runAll(requests, 0, 1, (p) => {
-        if (p.kind === 'basin-rows') partial({ rowFrom: p.rowFrom, rowTo: p.rowTo, values: p.cells });
-      });
-      for (const p of rows) {
-        if (p.kind !== 'basin-rows') throw new Error(`unexpected ${p.kind} result`);
-        cells.push(...p.cells);
-      }
-      return assembleCellMap(grid, cells);
-    });
+    return this.runKind('basin', params, { kind: 'basin', grid });
   }
 
   /** Terminates every worker; later jobs fail. */
@@ -267,6 +180,29 @@ export class WorkerPool {
       slot.task = null;
       task?.reject(new Error('worker pool disposed'));
     }
+  }
+
+  private runKind<K extends RunKind>(
+    kind: K, params: CaseParams, settings: RunSettingsOf<K>,
+  ): Observable<PoolEvent<RunValueOf<K>, RunPartialOf<K>>> {
+    const def = runKind(kind);
+    return this.runJob(def.job(params, settings), (r) => def.partial(r));
+  }
+
+  /** Drives a job: each stage's tasks go to idle workers, its results back into the job. */
+  private runJob<T, P>(job: RunJob<T>, partialOf: (result: TaskResult) => P | undefined): Observable<PoolEvent<T, P>> {
+    return this.job<T, P>(async (ctx, partial) => {
+      let step = job.next();
+      while (!step.done) {
+        const [from, to] = step.value.span;
+        const results = await ctx.runAll(step.value.tasks, from, to, (r) => {
+          const p = partialOf(r);
+          if (p !== undefined) partial(p);
+        });
+        step = job.next(results);
+      }
+      return step.value;
+    });
   }
 
   private job<T, P = never>(
@@ -418,9 +354,8 @@ export class WorkerPool {
   }
 }
 
-/** [from, to) ranges of `size` covering 0..count. */
-export function rowRanges(count: number, size: number): Array<[number, number]> {
-  const out: Array<[number, number]> = [];
-  for (let from = 0; from < count; from += size) out.push([from, Math.min(count, from + size)]);
-  return out;
+/** A job of one task. */
+function* oneTask<T>(task: EngineTask, read: (result: TaskResult) => T): RunJob<T> {
+  const [r] = yield { tasks: [task], span: [0, 1] };
+  return read(r);
 }

@@ -10,38 +10,14 @@
 import type { CaseParams } from '../case/case-schema';
 import { caseDigest, valueDigest } from '../case/canonical';
 import { parseCase } from '../case/validate';
-import { defaultChartGrid, stabilityChart, type Grid2, type StabilityChart } from './chart';
-import { floquetAnalysis, MULTIPLIER_UNIT_TOLERANCE, type FloquetAnalysis } from './floquet';
-import { simulateMotion, type MotionHooks, type MotionResult } from './motion';
-import {
-  assembleSweep, basinMap, defaultBasinGrid, outcomeMap, sweepPoints, sweepThresholds, thresholdBrackets,
-  type CellMap, type MapCell, type SweepResult, type SweepSpec,
-} from './sweep';
+import type { MotionHooks } from './motion';
+import type { SweepResult } from './sweep';
+import { computeRun, isRunKind, parseRunSettings, RUN_KINDS, summariseRun, type RunKind, type RunResult, type RunSettings, type RunSummary } from './run-kinds';
 import { ENGINE_VERSION } from './version';
 
-export type RunKind = 'motion' | 'margins' | 'sweep' | 'chart' | 'map' | 'basin';
-
-export const RUN_KINDS: readonly RunKind[] = ['motion', 'margins', 'sweep', 'chart', 'map', 'basin'];
-
-/** Settings per kind. */
-export type RunSettings =
-  | { kind: 'motion' }
-  | { kind: 'margins'; relTolerance: number }
-  | { kind: 'sweep'; spec: SweepSpec }
-  | { kind: 'chart'; grid: Grid2 }
-  | { kind: 'map'; grid: Grid2 }
-  | { kind: 'basin'; grid: Grid2 };
-
-export type RunResult =
-  | { kind: 'motion'; value: MotionResult }
-  | { kind: 'margins'; value: FloquetAnalysis }
-  | { kind: 'sweep'; value: SweepResult }
-  | { kind: 'chart'; value: StabilityChart }
-  | { kind: 'map'; value: CellMap }
-  | { kind: 'basin'; value: CellMap };
-
-/** Flat headline numbers of a run (and a few words). */
-export type RunSummary = Record<string, number | string | boolean | null>;
+// The registry (run-kinds.ts) owns the kinds, their settings and how they are computed; records are built on it.
+export { computeRun, defaultRunSettings, RUN_KINDS, summariseRun } from './run-kinds';
+export type { RunKind, RunResult, RunSettings, RunSummary } from './run-kinds';
 
 export interface RunRecord {
   kind: RunKind;
@@ -60,138 +36,6 @@ export const DIGEST_SIGNIFICANT_DIGITS = 9;
 export const SUMMARY_REL_TOLERANCE = 1e-6;
 /** Absolute floor of that comparison (numbers that should be zero). */
 export const SUMMARY_ABS_TOLERANCE = 1e-12;
-
-/** Default settings of a kind for a case. */
-export function defaultRunSettings(kind: RunKind, params: CaseParams): RunSettings {
-  switch (kind) {
-    case 'motion':
-      return { kind };
-    case 'margins':
-      return { kind, relTolerance: 1e-6 };
-    case 'sweep': {
-      const a = params.drive.amplitude;
-      return { kind, spec: { field: 'drive.amplitude', from: a / 4, to: a * 2, steps: 15 } };
-    }
-    case 'chart':
-      return { kind, grid: defaultChartGrid(params, 100) };
-    case 'map': {
-      const f = params.drive.frequency;
-      const a = params.drive.amplitude;
-      return {
-        kind,
-        grid: {
-          x: { field: 'drive.frequency', from: f / 2, to: 2 * f, count: 9 },
-          y: { field: 'drive.amplitude', from: a / 2, to: 2 * a, count: 9 },
-        },
-      };
-    }
-    case 'basin':
-      return { kind, grid: defaultBasinGrid(params, 11) };
-  }
-}
-
-/** Computes a run in this thread (the CLI and the server's recheck; the UI uses the worker pool). */
-export function computeRun(params: CaseParams, settings: RunSettings, hooks: MotionHooks = {}): RunResult {
-  switch (settings.kind) {
-    case 'motion':
-      return { kind: 'motion', value: simulateMotion(params, hooks) };
-    case 'margins':
-      return { kind: 'margins', value: floquetAnalysis(params, { relTolerance: settings.relTolerance }) };
-    case 'sweep': {
-      const spec = settings.spec;
-      const points = sweepPoints(params, spec, 0, spec.steps, {
-        shouldCancel: hooks.shouldCancel,
-        onProgress: (f) => hooks.onProgress?.(0.7 * f),
-      });
-      const thresholds = sweepThresholds(params, spec, thresholdBrackets(points), {
-        shouldCancel: hooks.shouldCancel,
-        onProgress: (f) => hooks.onProgress?.(0.7 + 0.3 * f),
-      });
-      return { kind: 'sweep', value: assembleSweep(spec, points, thresholds) };
-    }
-    case 'chart':
-      return { kind: 'chart', value: stabilityChart(params, settings.grid, hooks.onProgress) };
-    case 'map':
-      return { kind: 'map', value: outcomeMap(params, settings.grid, hooks) };
-    case 'basin':
-      return { kind: 'basin', value: basinMap(params, settings.grid, hooks) };
-  }
-}
-
-function countOutcomes(cells: readonly MapCell[]): RunSummary {
-  const summary: RunSummary = { cells: cells.length };
-  for (const o of ['holds-upright', 'settles-tilted', 'falls', 'tumbles', 'irregular', 'invalid']) summary[`count.${o}`] = 0;
-  for (const c of cells) {
-    const key = `count.${c.outcome ?? 'invalid'}`;
-    summary[key] = Number(summary[key]) + 1;
-  }
-  return summary;
-}
-
-/** Headline numbers of a run result. */
-export function summariseRun(result: RunResult): RunSummary {
-  switch (result.kind) {
-    case 'motion': {
-      const m = result.value;
-      return {
-        outcome: m.outcome,
-        status: m.status,
-        finalTheta: m.summary.finalTheta,
-        finalRate: m.summary.finalRate,
-        maxDeviation: m.outcomeNumbers.maxDeviation,
-        meanAngle: m.outcomeNumbers.meanAngle,
-        slowFrequencyHz: m.outcomeNumbers.slowFrequencyHz,
-        peakPivotAccelerationG: m.summary.peakPivotAccelerationG,
-        peakPivotForce: m.summary.peakPivotForce,
-        rhsEvaluations: m.rhsEvaluations,
-      };
-    }
-    case 'margins': {
-      const f = result.value;
-      return {
-        uprightHolds: f.uprightHolds,
-        uprightMaxMultiplier: f.upright ? f.upright.maxMultiplier : null,
-        amplitudeLower: f.amplitudeLimits.lower,
-        amplitudeUpper: f.amplitudeLimits.upper,
-        frequencyLower: f.frequencyLimits.lower,
-        frequencyUpper: f.frequencyLimits.upper,
-        marginPercent: f.marginPercent,
-        periodicMotions: f.periodicMotions.length,
-      };
-    }
-    case 'sweep': {
-      const s = result.value;
-      const summary: RunSummary = { field: s.field, points: s.points.length, thresholds: s.thresholds.length };
-      s.points.forEach((p, i) => {
-        summary[`point.${i}.outcome`] = p.outcome;
-        summary[`point.${i}.maxMultiplier`] = p.maxMultiplier;
-      });
-      s.thresholds.forEach((t, i) => {
-        summary[`threshold.${i}.kind`] = t.kind;
-        summary[`threshold.${i}.value`] = t.value;
-      });
-      return summary;
-    }
-    case 'chart': {
-      const c = result.value;
-      let holding = 0;
-      let least = Infinity;
-      for (const v of c.maxMultiplier) {
-        if (v < 1 + MULTIPLIER_UNIT_TOLERANCE) holding++;
-        least = Math.min(least, v);
-      }
-      return {
-        cells: c.maxMultiplier.length,
-        holdingCells: holding,
-        leastMultiplier: least,
-        caseMaxMultiplier: c.caseMark.maxMultiplier,
-      };
-    }
-    case 'map':
-    case 'basin':
-      return countOutcomes(result.value.cells);
-  }
-}
 
 /** Copy of a JSON-like value with numbers rounded for the digest; typed arrays become arrays. */
 export function digestView(value: unknown, depth = 0): unknown {
@@ -285,13 +129,10 @@ export function compareSummaries(stored: RunSummary, rerun: RunSummary, relToler
 export function parseRunRecord(input: unknown): { ok: true; value: RunRecord } | { ok: false; field: string; message: string } {
   if (typeof input !== 'object' || input === null) return { ok: false, field: '', message: 'a run record must be an object' };
   const r = input as Record<string, unknown>;
-  if (typeof r['kind'] !== 'string' || !RUN_KINDS.includes(r['kind'] as RunKind)) {
-    return { ok: false, field: 'kind', message: `must be one of ${RUN_KINDS.join(', ')}` };
-  }
-  const settings = r['settings'];
-  if (typeof settings !== 'object' || settings === null || (settings as Record<string, unknown>)['kind'] !== r['kind']) {
-    return { ok: false, field: 'settings.kind', message: 'settings must be an object whose kind equals the record kind' };
-  }
+  if (!isRunKind(r['kind'])) return { ok: false, field: 'kind', message: `must be one of ${RUN_KINDS.join(', ')}` };
+  const settings = parseRunSettings(r['settings']);
+  if (!settings.ok) return { ok: false, field: `settings${settings.field ? `.${settings.field}` : ''}`, message: settings.message };
+  if (settings.value.kind !== r['kind']) return { ok: false, field: 'settings.kind', message: 'must equal the record kind' };
   if (typeof r['summary'] !== 'object' || r['summary'] === null) return { ok: false, field: 'summary', message: 'must be an object' };
   if (typeof r['resultDigest'] !== 'string') return { ok: false, field: 'resultDigest', message: 'must be a hex string' };
   if (typeof r['engineVersion'] !== 'string') return { ok: false, field: 'engineVersion', message: 'must be a string' };
@@ -300,7 +141,7 @@ export function parseRunRecord(input: unknown): { ok: true; value: RunRecord } |
     const first = parsed.issues[0];
     return { ok: false, field: `params${first.field ? `.${first.field}` : ''}`, message: first.message };
   }
-  return { ok: true, value: { ...(input as RunRecord), params: parsed.value } };
+  return { ok: true, value: { ...(input as RunRecord), settings: settings.value, params: parsed.value } };
 }
 
 /**

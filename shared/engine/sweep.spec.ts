@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { templateCase, type CaseParams } from '../case';
 import { driveLimits } from './floquet';
-import { basinMapRows, locateThreshold, outcomeMapRows, sweep, sweepPoints, sweepValues } from './sweep';
+import { computeRun } from './run-kinds';
+import { basinMapRows, locateThreshold, outcomeMapRows, sweepPoints, sweepValues, type SweepResult } from './sweep';
 import type { Grid2 } from './chart';
 
 function shortCase(duration = 3): CaseParams {
@@ -13,7 +14,9 @@ describe('sweep', () => {
   it('finds the upright lost below a drive frequency, at the Floquet lower limit within the stated tolerance', () => {
     const c = shortCase();
     const spec = { field: 'drive.frequency', from: 20, to: 60, steps: 5, tolerance: 0.05 };
-    const r = sweep(c, spec);
+    const run = computeRun(c, { kind: 'sweep', spec });
+    if (run.kind !== 'sweep') throw new Error(`unexpected ${run.kind} run`);
+    const r: SweepResult = run.value;
     expect(r.points.map((p) => p.outcome)).toEqual(['falls', 'falls', 'holds-upright', 'holds-upright', 'holds-upright']);
     const mult = r.thresholds.filter((t) => t.kind === 'multiplier');
     expect(mult.length).toBe(1);

@@ -247,19 +247,6 @@ export function assembleSweep(
   };
 }
 
-/** The whole sweep in one thread (the worker pool splits it instead). */
-export function sweep(params: CaseParams, spec: SweepSpec, hooks: ChunkHooks = {}): SweepResult {
-  const points = sweepPoints(params, spec, 0, spec.steps, {
-    shouldCancel: hooks.shouldCancel,
-    onProgress: (f) => hooks.onProgress?.(0.7 * f),
-  });
-  const thresholds = sweepThresholds(params, spec, thresholdBrackets(points), {
-    shouldCancel: hooks.shouldCancel,
-    onProgress: (f) => hooks.onProgress?.(0.7 + 0.3 * f),
-  });
-  return assembleSweep(spec, points, thresholds);
-}
-
 /** Outcome-map cells for rows [rowFrom, rowTo) of a grid over two case fields, row-major. */
 export function outcomeMapRows(params: CaseParams, grid: Grid2, rowFrom: number, rowTo: number, hooks: ChunkHooks = {}): MapCell[] {
   const xs = axisValues(grid.x);
@@ -288,16 +275,6 @@ export interface CellMap {
 /** A map from its cells (computed in one piece or assembled from row chunks in order). */
 export function assembleCellMap(grid: Grid2, cells: MapCell[]): CellMap {
   return { engineVersion: ENGINE_VERSION, grid, xValues: axisValues(grid.x), yValues: axisValues(grid.y), cells };
-}
-
-/** The whole outcome map in one thread. */
-export function outcomeMap(params: CaseParams, grid: Grid2, hooks: ChunkHooks = {}): CellMap {
-  return assembleCellMap(grid, outcomeMapRows(params, grid, 0, grid.y.count, hooks));
-}
-
-/** The whole basin map in one thread. */
-export function basinMap(params: CaseParams, grid: Grid2 = defaultBasinGrid(params), hooks: ChunkHooks = {}): CellMap {
-  return assembleCellMap(grid, basinMapRows(params, grid, 0, grid.y.count, hooks));
 }
 
 /** The default basin grid: start angle over the whole circle (x) by start rate within +-2 sqrt(g/L) (y). */

@@ -246,6 +246,32 @@ describe('runs', () => {
     const noRev = await as('analyst').post(`/api/cases/${id}/revisions/5/runs`, record);
     expect(noRev.status).toBe(404);
   });
+
+  it('refuses run settings the run registry does not accept, naming the field and the reason, and stores nothing', async () => {
+    const params = quickCase();
+    const id = await createCaseVia(api.app, fx.tokens.analyst, fx.lab.id, { title: 'Settings', params });
+    const record = motionRun(params);
+    const sweep = (spec: Record<string, unknown>) => ({
+      ...record, kind: 'sweep', settings: { kind: 'sweep', spec: { field: 'drive.amplitude', from: 0.001, to: 0.01, steps: 5, ...spec } },
+    });
+    const post = (body: unknown) => as('analyst').post(`/api/cases/${id}/revisions/1/runs`, body);
+    const unknownKey = await post({ ...record, settings: { kind: 'motion', depth: [[[]]] } });
+    expect(unknownKey.status).toBe(400);
+    expect(errorOf(unknownKey)).toMatchObject({ code: 'invalid_field', field: 'settings' });
+    expect(errorOf(unknownKey).message).toMatch(/depth/);
+    const huge = await post(sweep({ steps: 1_000_000 }));
+    expect(huge.status).toBe(400);
+    expect(errorOf(huge)).toMatchObject({ code: 'invalid_field', field: 'settings.spec.steps' });
+    expect(errorOf(huge).message).toMatch(/at most 1000/);
+    const nested = await post(sweep({ extra: true }));
+    expect(errorOf(nested).field).toBe('settings.spec');
+    const absent = await post(sweep({ field: 'body.rodLength', from: 0.1, to: 0.2 }));
+    expect(absent.status).toBe(422);
+    expect(errorOf(absent)).toMatchObject({ code: 'settings_not_for_case', field: 'settings.spec.field' });
+    expect(errorOf(absent).message).toMatch(/no field body\.rodLength/);
+    const revision = await Revision.findOne({ where: { caseId: id, number: 1 } });
+    expect(await Run.count({ where: { revisionId: revision?.id ?? '' } })).toBe(0);
+  });
 });
 
 describe('duplicate, rename, comments and audit', () => {

@@ -2,7 +2,7 @@
 // warmed pool of 2 worker threads, in cells per second.
 import { lastValueFrom } from 'rxjs';
 import { templateCase } from '../../shared/case';
-import { createNodeEnginePool } from '../../shared/compute/node-pool';
+import { createEnginePool } from '../../server/compute/engine-pool';
 import { defaultChartGrid, stabilityChart } from '../../shared/engine/chart';
 
 export interface ChartBenchFigures {
@@ -22,7 +22,7 @@ export async function run(): Promise<ChartBenchFigures> {
   const t0 = performance.now();
   const single = stabilityChart(params, grid);
   const singleThreadMs = performance.now() - t0;
-  const pool = createNodeEnginePool(2);
+  const pool = createEnginePool(2);
   let twoWorkersMs: number;
   try {
     await lastValueFrom(pool.chart(params, defaultChartGrid(params, 40)));

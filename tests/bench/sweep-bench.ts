@@ -4,7 +4,7 @@
 // Much shorter points (5 s) are dominated by per-message overhead and scale poorly; that is why points go in chunks.
 import { lastValueFrom } from 'rxjs';
 import { templateCase, type CaseParams } from '../../shared/case';
-import { createNodeEnginePool } from '../../shared/compute/node-pool';
+import { createEnginePool } from '../../server/compute/engine-pool';
 import type { SweepSpec } from '../../shared/engine/sweep';
 
 export interface SweepBenchFigures {
@@ -20,7 +20,7 @@ function benchCase(): CaseParams {
 }
 
 async function pointsPerSecond(workers: number, params: CaseParams, spec: SweepSpec): Promise<number> {
-  const pool = createNodeEnginePool(workers);
+  const pool = createEnginePool(workers);
   try {
     await lastValueFrom(pool.sweep(params, { ...spec, steps: 2 * workers }));
     // Best of three: a shared 2-core machine has noisy neighbours, and the best run is the one they disturbed least.

@@ -1,0 +1,147 @@
+/**
+ * Engine tasks: the units of work a run is split into. A worker (browser Web Worker or Node worker_threads) computes
+ * one task per request, and a run computed in this thread computes the same tasks one after another, so both give
+ * identical numbers. Every task is independent of the others: its numbers do not depend on how tasks are spread over
+ * workers.
+ */
+import type { CaseParams } from '../case/case-schema';
+import { stabilityChartRows, type Grid2 } from './chart';
+import { fitFreeSwing, type FitModel, type FitResult } from './fit';
+import { floquetAnalysis, type FloquetAnalysis } from './floquet';
+import { EngineCancelledError, simulateMotion, type MotionResult } from './motion';
+import { overlayDrivenTrace, type OverlayResult } from './trace-drive';
+import {
+  basinMapRows, outcomeMapRows, sweepPoints, sweepThresholds,
+  type BasinCell, type ChunkHooks, type MapCell, type SweepPoint, type SweepSpec, type SweepThreshold, type ThresholdBracket,
+} from './sweep';
+
+/** Simulate the motion of one case. */
+export interface MotionTask {
+  type: 'motion';
+  params: CaseParams;
+}
+
+/** Floquet analysis: upright multipliers, periodic motions, drive limits and margins. */
+export interface MarginsTask {
+  type: 'margins';
+  params: CaseParams;
+  relTolerance?: number;
+}
+
+/** Part of a 1-D sweep: the points with index in [from, to), or the thresholds inside the given brackets. */
+export interface SweepChunkTask {
+  type: 'sweep-chunk';
+  params: CaseParams;
+  spec: SweepSpec;
+  part: { kind: 'points'; from: number; to: number } | { kind: 'thresholds'; brackets: ThresholdBracket[] };
+}
+
+/** Rows [rowFrom, rowTo) of a stability chart. */
+export interface ChartChunkTask {
+  type: 'chart-chunk';
+  params: CaseParams;
+  grid: Grid2;
+  rowFrom: number;
+  rowTo: number;
+}
+
+/** Rows [rowFrom, rowTo) of a basin map (start angle along x, start rate along y). */
+export interface BasinChunkTask {
+  type: 'basin-chunk';
+  params: CaseParams;
+  grid: Grid2;
+  rowFrom: number;
+  rowTo: number;
+}
+
+/** Rows [rowFrom, rowTo) of an outcome map over two case fields. */
+export interface MapChunkTask {
+  type: 'map-chunk';
+  params: CaseParams;
+  grid: Grid2;
+  rowFrom: number;
+  rowTo: number;
+}
+
+/** Fit a free swing (times s, angles rad from any fixed zero); no case needed. */
+export interface FitTask {
+  type: 'fit';
+  trace: { time: number[]; angle: number[] };
+  model: FitModel;
+  gravity?: number;
+  frictionSmoothing?: number;
+}
+
+/** Measured against simulated motion of a driven trace (angles rad from the upright, pivot m). */
+export interface OverlayTask {
+  type: 'overlay';
+  params: CaseParams;
+  trace: { time: number[]; angle: number[]; pivot: number[] };
+  partAngle?: number;
+  holdLimit?: number;
+}
+
+export type EngineTask =
+  | FitTask | OverlayTask | MotionTask | MarginsTask | SweepChunkTask | ChartChunkTask | BasinChunkTask | MapChunkTask;
+
+export type EngineTaskType = EngineTask['type'];
+
+export const ENGINE_TASK_TYPES: readonly EngineTaskType[] = [
+  'fit', 'overlay', 'motion', 'margins', 'sweep-chunk', 'chart-chunk', 'basin-chunk', 'map-chunk',
+];
+
+/** Result payloads, one per task type. */
+export type TaskResult =
+  | { kind: 'motion'; motion: MotionResult }
+  | { kind: 'margins'; analysis: FloquetAnalysis }
+  | { kind: 'sweep-points'; points: SweepPoint[] }
+  | { kind: 'sweep-thresholds'; thresholds: SweepThreshold[] }
+  | { kind: 'chart-rows'; rowFrom: number; rowTo: number; values: Float64Array }
+  | { kind: 'basin-rows'; rowFrom: number; rowTo: number; cells: BasinCell[] }
+  | { kind: 'map-rows'; rowFrom: number; rowTo: number; cells: MapCell[] }
+  | { kind: 'fit'; fit: FitResult }
+  | { kind: 'overlay'; overlay: OverlayResult };
+
+/**
+ * Computes one task (its case already validated). Throws EngineCancelledError when `shouldCancel` turns true, and
+ * whatever the engine throws for an impossible case.
+ */
+export function computeTask(task: EngineTask, hooks: ChunkHooks = {}): TaskResult {
+  if (task.type === 'fit') {
+    const { trace, model, gravity, frictionSmoothing } = task;
+    return { kind: 'fit', fit: fitFreeSwing(trace, { model, gravity, frictionSmoothing, ...hooks }) };
+  }
+  const params = task.params;
+  switch (task.type) {
+    case 'overlay': {
+      const { trace, partAngle, holdLimit } = task;
+      return { kind: 'overlay', overlay: overlayDrivenTrace(params, trace, { partAngle, holdLimit, ...hooks }) };
+    }
+    case 'motion':
+      return { kind: 'motion', motion: simulateMotion(params, hooks) };
+    case 'margins':
+      return { kind: 'margins', analysis: floquetAnalysis(params, { relTolerance: task.relTolerance }) };
+    case 'sweep-chunk': {
+      const part = task.part;
+      if (part.kind === 'points') {
+        return { kind: 'sweep-points', points: sweepPoints(params, task.spec, part.from, part.to, hooks) };
+      }
+      return { kind: 'sweep-thresholds', thresholds: sweepThresholds(params, task.spec, part.brackets, hooks) };
+    }
+    case 'chart-chunk': {
+      const { values, cancelled } = stabilityChartRows(params, task.grid, task.rowFrom, task.rowTo, hooks.onProgress, hooks.shouldCancel);
+      if (cancelled) throw new EngineCancelledError();
+      return { kind: 'chart-rows', rowFrom: task.rowFrom, rowTo: task.rowTo, values };
+    }
+    case 'basin-chunk':
+      return {
+        kind: 'basin-rows', rowFrom: task.rowFrom, rowTo: task.rowTo,
+        cells: basinMapRows(params, task.grid, task.rowFrom, task.rowTo, hooks),
+      };
+    case 'map-chunk':
+      return {
+        kind: 'map-rows', rowFrom: task.rowFrom, rowTo: task.rowTo,
+        cells: outcomeMapRows(params, task.grid, task.rowFrom, task.rowTo, hooks),
+      };
+  }
+}

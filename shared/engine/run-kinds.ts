@@ -1,0 +1,405 @@
+/**
+ * The run registry: everything the code knows per run kind, in one table. For each kind: the settings schema (the
+ * one check of settings from a form, the CLI, the API or a stored record; strict, with bounds), default settings for
+ * a case, the job that computes it (split into engine tasks, driven in this thread or by the worker pool), the
+ * partial results a live plot can show while the job runs, and the flat summary stored with the run.
+ *
+ * Adding a kind: add its settings schema and types here, its tasks to engine-task.ts when it needs new ones, and an
+ * entry in RUN_KIND_REGISTRY; the compiler then points at every place that must know it (see docs/engine.md).
+ */
+import { z } from 'zod';
+import type { CaseParams } from '../case/case-schema';
+import { SWEEPABLE_FIELDS, sweepableFieldsFor } from '../case/case-fields';
+import { assembleChart, defaultChartGrid, type StabilityChart } from './chart';
+import type { TaskResult } from './engine-task';
+import { MULTIPLIER_UNIT_TOLERANCE, type FloquetAnalysis } from './floquet';
+import type { MotionResult } from './motion';
+import { expectResult, rowRanges, runJobInThread, type RunJob } from './run-job';
+import {
+  assembleCellMap, assembleSweep, defaultBasinGrid, thresholdBrackets,
+  type CellMap, type ChunkHooks, type MapCell, type SweepPoint, type SweepResult,
+} from './sweep';
+
+/** Most points of a 1-D sweep (each point is a full motion run plus an upright Floquet analysis). */
+export const MAX_SWEEP_STEPS = 1000;
+/** Most samples per axis of a stability chart (1000 x 1000 cells at most). */
+export const MAX_CHART_COUNT = 1000;
+/** Most samples per axis of an outcome or basin map (each cell is a full motion run). */
+export const MAX_MAP_COUNT = 500;
+
+/** Rows per task of charts and maps, points per task of sweeps: fixed, so the split never depends on the pool. */
+export const CHART_ROWS_PER_CHUNK = 8;
+export const MAP_ROWS_PER_CHUNK = 1;
+export const SWEEP_POINTS_PER_CHUNK = 2;
+
+const SWEEPABLE_PATHS = SWEEPABLE_FIELDS.map((f) => f.path);
+const fieldPath = z.string().refine((p) => SWEEPABLE_PATHS.includes(p), {
+  message: `must be one of ${SWEEPABLE_PATHS.join(', ')}`,
+});
+const scale = z.enum(['linear', 'log']);
+const limit = z.number({ message: 'must be a finite number' });
+
+const positiveWhenLog = (v: { from: number; to: number; scale?: 'linear' | 'log' | undefined }): boolean =>
+  v.scale !== 'log' || (v.from > 0 && v.to > 0);
+const logMessage = { message: 'a log scale needs limits above zero', path: ['from'] };
+
+/** A field that must be this one (typed string, so a basin grid is a plain Grid2). */
+function onlyField(path: string) {
+  return z.string().refine((p) => p === path, { message: `must be ${path}` });
+}
+
+function axisSchema<F extends z.ZodType<string>>(field: F, maxCount: number) {
+  return z
+    .strictObject({
+      field,
+      from: limit,
+      to: limit,
+      count: z.int({ message: 'must be a whole number' }).min(1, { message: 'must be at least 1' })
+        .max(maxCount, { message: `must be at most ${maxCount}` }),
+      scale: scale.optional(),
+    })
+    .refine(positiveWhenLog, logMessage);
+}
+
+function gridSchema(maxCount: number) {
+  return z
+    .strictObject({ x: axisSchema(fieldPath, maxCount), y: axisSchema(fieldPath, maxCount) })
+    .refine((g) => g.x.field !== g.y.field, { message: 'must differ from x.field', path: ['y', 'field'] });
+}
+
+/** A 1-D sweep of one case field (shared/engine/sweep.ts SweepSpec). */
+export const sweepSpecSchema = z
+  .strictObject({
+    field: fieldPath,
+    from: limit,
+    to: limit,
+    steps: z.int({ message: 'must be a whole number' }).min(2, { message: 'must be at least 2' })
+      .max(MAX_SWEEP_STEPS, { message: `must be at most ${MAX_SWEEP_STEPS}` }),
+    scale: scale.optional(),
+    tolerance: z.number().positive({ message: 'must be above zero' }).optional(),
+  })
+  .refine((s) => s.from !== s.to, { message: 'must differ from from', path: ['to'] })
+  .refine(positiveWhenLog, logMessage);
+
+export const motionSettingsSchema = z.strictObject({ kind: z.literal('motion') });
+export const marginsSettingsSchema = z.strictObject({
+  kind: z.literal('margins'),
+  relTolerance: z.number().min(1e-14, { message: 'must be at least 1e-14' }).max(0.1, { message: 'must be at most 0.1' }),
+});
+export const sweepSettingsSchema = z.strictObject({ kind: z.literal('sweep'), spec: sweepSpecSchema });
+export const chartSettingsSchema = z.strictObject({ kind: z.literal('chart'), grid: gridSchema(MAX_CHART_COUNT) });
+export const mapSettingsSchema = z.strictObject({ kind: z.literal('map'), grid: gridSchema(MAX_MAP_COUNT) });
+export const basinSettingsSchema = z.strictObject({
+  kind: z.literal('basin'),
+  grid: z.strictObject({
+    x: axisSchema(onlyField('start.angle'), MAX_MAP_COUNT),
+    y: axisSchema(onlyField('start.rate'), MAX_MAP_COUNT),
+  }),
+});
+
+export type MotionSettings = z.infer<typeof motionSettingsSchema>;
+export type MarginsSettings = z.infer<typeof marginsSettingsSchema>;
+export type SweepSettings = z.infer<typeof sweepSettingsSchema>;
+export type ChartSettings = z.infer<typeof chartSettingsSchema>;
+export type MapSettings = z.infer<typeof mapSettingsSchema>;
+export type BasinSettings = z.infer<typeof basinSettingsSchema>;
+
+/** A finished row range of a chunked chart or map, for plots that fill in while the job runs. */
+export interface RowsPartial<V> {
+  rowFrom: number;
+  rowTo: number;
+  values: V;
+}
+
+/** Per kind: its settings, its result value and what its job reports as partial results. */
+export interface RunKindTypes {
+  motion: { settings: MotionSettings; value: MotionResult; partial: never };
+  margins: { settings: MarginsSettings; value: FloquetAnalysis; partial: never };
+  sweep: { settings: SweepSettings; value: SweepResult; partial: SweepPoint[] };
+  chart: { settings: ChartSettings; value: StabilityChart; partial: RowsPartial<Float64Array> };
+  map: { settings: MapSettings; value: CellMap; partial: RowsPartial<MapCell[]> };
+  basin: { settings: BasinSettings; value: CellMap; partial: RowsPartial<MapCell[]> };
+}
+
+export type RunKind = keyof RunKindTypes;
+export type RunSettingsOf<K extends RunKind> = RunKindTypes[K]['settings'];
+export type RunValueOf<K extends RunKind> = RunKindTypes[K]['value'];
+export type RunPartialOf<K extends RunKind> = RunKindTypes[K]['partial'];
+
+/** Settings of any kind, discriminated by `kind`. */
+export type RunSettings = { [K in RunKind]: RunSettingsOf<K> }[RunKind];
+/** A computed result of any kind. */
+export type RunResult = { [K in RunKind]: { kind: K; value: RunValueOf<K> } }[RunKind];
+
+/** Flat headline numbers of a run (and a few words). */
+export type RunSummary = Record<string, number | string | boolean | null>;
+
+/** What the code knows about one run kind. */
+export interface RunKindDef<K extends RunKind> {
+  /** Strict settings check: unknown keys, non-finite numbers and sizes beyond the limits above are refused. */
+  readonly settings: z.ZodType<RunSettingsOf<K>>;
+  /** True when the job splits into several tasks, so a pool of workers speeds it up. */
+  readonly chunked: boolean;
+  /** Default settings for a case (the case page's first run of this kind). */
+  defaults(params: CaseParams): RunSettingsOf<K>;
+  /** The job computing a run: its tasks, stage by stage, then the assembled value. */
+  job(params: CaseParams, settings: RunSettingsOf<K>): RunJob<RunValueOf<K>>;
+  /** The partial result a finished task contributes, if any. */
+  partial(result: TaskResult): RunPartialOf<K> | undefined;
+  /** Headline numbers stored with the run and compared by a recheck. */
+  summarise(value: RunValueOf<K>): RunSummary;
+  /** The case fields the settings vary, each with its dotted path inside the settings. */
+  fields(settings: RunSettingsOf<K>): Array<{ at: string; field: string }>;
+}
+
+const noPartial = (): undefined => undefined;
+
+function* sweepJob(params: CaseParams, { spec }: SweepSettings): RunJob<SweepResult> {
+  const pointParts = yield {
+    tasks: rowRanges(spec.steps, SWEEP_POINTS_PER_CHUNK).map(([from, to]) => ({
+      type: 'sweep-chunk', params, spec, part: { kind: 'points', from, to },
+    })),
+    span: [0, 0.7],
+  };
+  const points = pointParts.flatMap((r) => expectResult(r, 'sweep-points').points);
+  const thresholdParts = yield {
+    tasks: thresholdBrackets(points).map((b) => ({ type: 'sweep-chunk', params, spec, part: { kind: 'thresholds', brackets: [b] } })),
+    span: [0.7, 1],
+  };
+  return assembleSweep(spec, points, thresholdParts.flatMap((r) => expectResult(r, 'sweep-thresholds').thresholds));
+}
+
+function* mapJob(params: CaseParams, settings: MapSettings | BasinSettings, type: 'map-chunk' | 'basin-chunk'): RunJob<CellMap> {
+  const grid = settings.grid;
+  const rows = yield {
+    tasks: rowRanges(grid.y.count, MAP_ROWS_PER_CHUNK).map(([rowFrom, rowTo]) => ({ type, params, grid, rowFrom, rowTo })),
+    span: [0, 1],
+  };
+  const resultKind = type === 'map-chunk' ? 'map-rows' : 'basin-rows';
+  return assembleCellMap(grid, rows.flatMap((r) => expectResult(r, resultKind).cells));
+}
+
+function rowsPartial(result: TaskResult, kind: 'map-rows' | 'basin-rows'): RowsPartial<MapCell[]> | undefined {
+  return result.kind === kind ? { rowFrom: result.rowFrom, rowTo: result.rowTo, values: result.cells } : undefined;
+}
+
+function gridFields({ grid }: { grid: { x: { field: string }; y: { field: string } } }): Array<{ at: string; field: string }> {
+  return [{ at: 'grid.x.field', field: grid.x.field }, { at: 'grid.y.field', field: grid.y.field }];
+}
+
+function countOutcomes(cells: readonly MapCell[]): RunSummary {
+  const summary: RunSummary = { cells: cells.length };
+  for (const o of ['holds-upright', 'settles-tilted', 'falls', 'tumbles', 'irregular', 'invalid']) summary[`count.${o}`] = 0;
+  for (const c of cells) {
+    const key = `count.${c.outcome ?? 'invalid'}`;
+    summary[key] = Number(summary[key]) + 1;
+  }
+  return summary;
+}
+
+/** The registry. */
+export const RUN_KIND_REGISTRY: { readonly [K in RunKind]: RunKindDef<K> } = {
+  motion: {
+    settings: motionSettingsSchema,
+    chunked: false,
+    defaults: () => ({ kind: 'motion' }),
+    *job(params) {
+      const [r] = yield { tasks: [{ type: 'motion', params }], span: [0, 1] };
+      return expectResult(r, 'motion').motion;
+    },
+    partial: noPartial,
+    fields: () => [],
+    summarise: (m) => ({
+      outcome: m.outcome,
+      status: m.status,
+      finalTheta: m.summary.finalTheta,
+      finalRate: m.summary.finalRate,
+      maxDeviation: m.outcomeNumbers.maxDeviation,
+      meanAngle: m.outcomeNumbers.meanAngle,
+      slowFrequencyHz: m.outcomeNumbers.slowFrequencyHz,
+      peakPivotAccelerationG: m.summary.peakPivotAccelerationG,
+      peakPivotForce: m.summary.peakPivotForce,
+      rhsEvaluations: m.rhsEvaluations,
+    }),
+  },
+  margins: {
+    settings: marginsSettingsSchema,
+    chunked: false,
+    defaults: () => ({ kind: 'margins', relTolerance: 1e-6 }),
+    *job(params, settings) {
+      const [r] = yield { tasks: [{ type: 'margins', params, relTolerance: settings.relTolerance }], span: [0, 1] };
+      return expectResult(r, 'margins').analysis;
+    },
+    partial: noPartial,
+    fields: () => [],
+    summarise: (f) => ({
+      uprightHolds: f.uprightHolds,
+      uprightMaxMultiplier: f.upright ? f.upright.maxMultiplier : null,
+      amplitudeLower: f.amplitudeLimits.lower,
+      amplitudeUpper: f.amplitudeLimits.upper,
+      frequencyLower: f.frequencyLimits.lower,
+      frequencyUpper: f.frequencyLimits.upper,
+      marginPercent: f.marginPercent,
+      periodicMotions: f.periodicMotions.length,
+    }),
+  },
+  sweep: {
+    settings: sweepSettingsSchema,
+    chunked: true,
+    defaults: (params) => {
+      const a = params.drive.amplitude;
+      return { kind: 'sweep', spec: { field: 'drive.amplitude', from: a / 4, to: a * 2, steps: 15 } };
+    },
+    job: sweepJob,
+    partial: (r) => (r.kind === 'sweep-points' ? r.points : undefined),
+    fields: ({ spec }) => [{ at: 'spec.field', field: spec.field }],
+    summarise: (s) => {
+      const summary: RunSummary = { field: s.field, points: s.points.length, thresholds: s.thresholds.length };
+      s.points.forEach((p, i) => {
+        summary[`point.${i}.outcome`] = p.outcome;
+        summary[`point.${i}.maxMultiplier`] = p.maxMultiplier;
+      });
+      s.thresholds.forEach((t, i) => {
+        summary[`threshold.${i}.kind`] = t.kind;
+        summary[`threshold.${i}.value`] = t.value;
+      });
+      return summary;
+    },
+  },
+  chart: {
+    settings: chartSettingsSchema,
+    chunked: true,
+    defaults: (params) => ({ kind: 'chart', grid: defaultChartGrid(params, 100) }),
+    *job(params, { grid }) {
+      const parts = yield {
+        tasks: rowRanges(grid.y.count, CHART_ROWS_PER_CHUNK).map(([rowFrom, rowTo]) => ({
+          type: 'chart-chunk', params, grid, rowFrom, rowTo,
+        })),
+        span: [0, 1],
+      };
+      const values = new Float64Array(grid.x.count * grid.y.count);
+      for (const r of parts) {
+        const rows = expectResult(r, 'chart-rows');
+        values.set(rows.values, rows.rowFrom * grid.x.count);
+      }
+      return assembleChart(params, grid, values);
+    },
+    // A copy: the job keeps the task's array for the assembled chart.
+    partial: (r) => (r.kind === 'chart-rows' ? { rowFrom: r.rowFrom, rowTo: r.rowTo, values: r.values.slice() } : undefined),
+    fields: gridFields,
+    summarise: (c) => {
+      let holding = 0;
+      let least = Infinity;
+      for (const v of c.maxMultiplier) {
+        if (v < 1 + MULTIPLIER_UNIT_TOLERANCE) holding++;
+        least = Math.min(least, v);
+      }
+      return {
+        cells: c.maxMultiplier.length,
+        holdingCells: holding,
+        leastMultiplier: least,
+        caseMaxMultiplier: c.caseMark.maxMultiplier,
+      };
+    },
+  },
+  map: {
+    settings: mapSettingsSchema,
+    chunked: true,
+    defaults: (params) => {
+      const f = params.drive.frequency;
+      const a = params.drive.amplitude;
+      return {
+        kind: 'map',
+        grid: {
+          x: { field: 'drive.frequency', from: f / 2, to: 2 * f, count: 9 },
+          y: { field: 'drive.amplitude', from: a / 2, to: 2 * a, count: 9 },
+        },
+      };
+    },
+    job: (params, settings) => mapJob(params, settings, 'map-chunk'),
+    partial: (r) => rowsPartial(r, 'map-rows'),
+    fields: gridFields,
+    summarise: (m) => countOutcomes(m.cells),
+  },
+  basin: {
+    settings: basinSettingsSchema,
+    chunked: true,
+    defaults: (params) => ({ kind: 'basin', grid: defaultBasinGrid(params, 11) }),
+    job: (params, settings) => mapJob(params, settings, 'basin-chunk'),
+    partial: (r) => rowsPartial(r, 'basin-rows'),
+    fields: gridFields,
+    summarise: (m) => countOutcomes(m.cells),
+  },
+};
+
+export const RUN_KINDS = Object.keys(RUN_KIND_REGISTRY) as readonly RunKind[];
+
+export function isRunKind(value: unknown): value is RunKind {
+  return typeof value === 'string' && Object.hasOwn(RUN_KIND_REGISTRY, value);
+}
+
+/** Settings of any kind: the kind's strict schema chosen by `kind`. */
+export const runSettingsSchema = z.discriminatedUnion('kind', [
+  motionSettingsSchema, marginsSettingsSchema, sweepSettingsSchema, chartSettingsSchema, mapSettingsSchema, basinSettingsSchema,
+]);
+
+/** The registry entry of a kind (typed for that kind). */
+export function runKind<K extends RunKind>(kind: K): RunKindDef<K> {
+  return RUN_KIND_REGISTRY[kind];
+}
+
+/** Default settings of a kind for a case. */
+export function defaultRunSettings<K extends RunKind>(kind: K, params: CaseParams): RunSettingsOf<K> {
+  return runKind(kind).defaults(params);
+}
+
+function* taggedJob<K extends RunKind>(kind: K, params: CaseParams, settings: RunSettingsOf<K>): RunJob<RunResult> {
+  const value = yield* runKind(kind).job(params, settings);
+  // { kind: K; value: RunValueOf<K> } is a RunResult for every K; the compiler cannot correlate the two.
+  return { kind, value } as RunResult;
+}
+
+/** The job computing a run of any kind, its value tagged with the kind. */
+export function runJob(params: CaseParams, settings: RunSettings): RunJob<RunResult> {
+  return taggedJob(settings.kind, params, settings);
+}
+
+/** Computes a run in this thread (the CLI and the server's recheck; the UI uses the worker pool). */
+export function computeRun(params: CaseParams, settings: RunSettings, hooks: ChunkHooks = {}): RunResult {
+  return runJobInThread(runJob(params, settings), hooks);
+}
+
+function summariseKind<K extends RunKind>(kind: K, value: RunValueOf<K>): RunSummary {
+  return runKind(kind).summarise(value);
+}
+
+/** Headline numbers of a run result. */
+export function summariseRun(result: RunResult): RunSummary {
+  return summariseKind(result.kind, result.value);
+}
+
+/** Checks settings of any kind; on failure, the dotted path of the first problem inside the settings and why. */
+export function parseRunSettings(input: unknown): { ok: true; value: RunSettings } | { ok: false; field: string; message: string } {
+  const parsed = runSettingsSchema.safeParse(input);
+  if (parsed.success) return { ok: true, value: parsed.data };
+  const issue = parsed.error.issues[0];
+  return { ok: false, field: issue.path.join('.'), message: issue.message };
+}
+
+function fieldsOf<K extends RunKind>(kind: K, settings: RunSettingsOf<K>): Array<{ at: string; field: string }> {
+  return runKind(kind).fields(settings);
+}
+
+/**
+ * Checks settings for a given case: the schema, then that every field they vary exists in this case (a rod's
+ * length only for a rod-and-bob body, a connecting rod only for a crank-slider drive).
+ */
+export function parseRunSettingsFor(
+  params: CaseParams, input: unknown,
+): { ok: true; value: RunSettings } | { ok: false; field: string; message: string } {
+  const parsed = parseRunSettings(input);
+  if (!parsed.ok) return parsed;
+  const present = new Set(sweepableFieldsFor(params).map((f) => f.path));
+  const missing = fieldsOf(parsed.value.kind, parsed.value).find((f) => !present.has(f.field));
+  return missing ? { ok: false, field: missing.at, message: `this case has no field ${missing.field}` } : parsed;
+}
