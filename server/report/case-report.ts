@@ -35,6 +35,8 @@ export interface ReportRun {
   readonly engineVersion: string;
   readonly author: ReportPerson | null;
   readonly createdAt: string;
+  /** The server's own rerun of the run, where the server keeps one. */
+  readonly verification?: { readonly state: string };
 }
 
 export interface ReportRevision {
@@ -531,6 +533,12 @@ function recheckText(r: ReportRevision): string {
   return state;
 }
 
+const VERIFICATION_WORDS: Readonly<Record<string, string>> = {
+  verified: 'verified by the server',
+  unreproduced: 'not reproduced by the server',
+  pending: 'server rerun pending',
+};
+
 function runsTable(runs: readonly ReportRun[], results: ReadonlyMap<string, RunResult>): PdfContent {
   if (runs.length === 0) return note('No runs are stored with this revision.');
   return {
@@ -540,7 +548,13 @@ function runsTable(runs: readonly ReportRun[], results: ReadonlyMap<string, RunR
       body: [
         ['Run', 'Stored', 'Engine', 'Result digest (SHA-256)'].map((t) => ({ text: t, style: 'label' })),
         ...runs.map((run) => [
-          { text: `${KIND_WORDS[run.kind] ?? run.kind}${results.has(run.id) ? '' : ' (summary only)'}`, style: 'value' },
+          {
+            text: [
+              `${KIND_WORDS[run.kind] ?? run.kind}${results.has(run.id) ? '' : ' (summary only)'}`,
+              ...(run.verification ? [`\n${VERIFICATION_WORDS[run.verification.state] ?? run.verification.state}`] : []),
+            ].join(''),
+            style: 'value',
+          },
           { text: `${reportDate(run.createdAt)}${run.author ? `\n${run.author.name}` : ''}`, style: 'value' },
           { text: run.engineVersion, style: 'value' },
           { text: run.resultDigest, style: 'digest' },
