@@ -2,7 +2,7 @@
 // zero), each damping model fitted in one engine worker thread, as the Bench tab runs it. Target: under 5 s.
 import { lastValueFrom } from 'rxjs';
 import { templateCase } from '../../shared/case/templates';
-import { createNodeEnginePool } from '../../shared/compute/node-pool';
+import { createEnginePool } from '../../server/compute/engine-pool';
 import { FIT_MODELS, type FitResult } from '../../shared/engine/fit';
 import { syntheticTrace } from '../../shared/engine/synthetic-trace';
 
@@ -20,7 +20,7 @@ export async function run(): Promise<void> {
     },
     { sampleRate: 500, duration: 30, noise: 0.05 * DEG, offset: 1.5 * DEG, fromHanging: true, seed: 1 },
   );
-  const pool = createNodeEnginePool(1);
+  const pool = createEnginePool(1);
   try {
     // one small fit first, so the thread's start-up is not counted
     await lastValueFrom(pool.fit({ trace: { time: trace.time.slice(0, 2000), angle: trace.angle.slice(0, 2000) }, model: 'viscous' }));
