@@ -63,9 +63,10 @@ export class BenchFit {
     const units = this.workspace.units();
     const row = (name: string, si: number | undefined, sigma: number | undefined, dimension: Dimension, unit = ''): EstimateRow | null => {
       if (si === undefined) return null;
-      const show = (v: number | undefined): string =>
-        v === undefined || Number.isNaN(v) ? '—' : dimension === 'plain' ? `${formatNumber(v, 4)}${unit ? ` ${unit}` : ''}` : formatIn(v, dimension, units, 5);
-      return { name, value: show(si), uncertainty: show(sigma) };
+      // estimates to 5 significant digits, uncertainties to 2
+      const show = (v: number | undefined, digits: number): string =>
+        v === undefined || Number.isNaN(v) ? '—' : dimension === 'plain' ? `${formatNumber(v, digits)}${unit ? ` ${unit}` : ''}` : formatIn(v, dimension, units, digits);
+      return { name, value: show(si, 5), uncertainty: show(sigma, 2) };
     };
     const f = fit.fitted;
     const u = fit.uncertainty;
