@@ -2,18 +2,21 @@
  * Bearer-token authentication with passport-jwt. Each app gets its own Passport instance (no global state), and
  * failures become our JSON 401s instead of passport's plain-text replies.
  */
+import { createSecretKey } from 'node:crypto';
 import type { RequestHandler } from 'express';
 import { Passport } from 'passport';
 import { ExtractJwt, Strategy as JwtStrategy } from 'passport-jwt';
 import { z } from 'zod';
 import { ERROR_STATUS, isErrorCode, type CodeWithStatus } from '../../shared/api/errors';
 import { AppError } from '../app-error';
-import { User } from '../db/models';
-import { isRevoked, publicUser, type PublicUser } from '../services/auth-service';
+import type { LabRole } from '../db/models';
+import { tokenHolder, type PublicUser } from '../services/auth-service';
 
 declare global {
   namespace Express {
     interface User extends PublicUser {
+      /** the user's role in each of their labs, by lab id, read with the token (requireLabRole, requireCaseRole) */
+      labRoles: Record<string, LabRole>;
       /** the access token's id and expiry, for sign-out */
       tokenId: string;
       tokenExp: number;
@@ -45,10 +48,18 @@ function failureFrom(info: unknown): Failure {
 }
 
 export function createAuthenticator(jwtSecret: string): RequestHandler {
+  // Given a string, jsonwebtoken derives the key on every verify, after first failing to parse it as a public key
+  // (an exception each time: the largest CPU cost of an authenticated request). A KeyObject skips both; the
+  // provider hands it over because passport-jwt's types predate KeyObject.
+  const key = createSecretKey(Buffer.from(jwtSecret));
   const passport = new Passport();
   passport.use(
     new JwtStrategy(
-      { jwtFromRequest: ExtractJwt.fromAuthHeaderAsBearerToken(), secretOrKey: jwtSecret, algorithms: ['HS256'] },
+      {
+        jwtFromRequest: ExtractJwt.fromAuthHeaderAsBearerToken(),
+        secretOrKeyProvider: (_req, _rawToken, done) => done(null, key as unknown as Buffer),
+        algorithms: ['HS256'],
+      },
       (payload: unknown, done: (err: unknown, user?: Express.User | false, info?: Failure) => void) => {
         const claims = claimsSchema.safeParse(payload);
         if (!claims.success) {
@@ -57,10 +68,10 @@ export function createAuthenticator(jwtSecret: string): RequestHandler {
         }
         const { sub, jti, exp } = claims.data;
         (async () => {
-          if (await isRevoked(jti)) return done(null, false, { code: 'token_revoked', message: 'This session was signed out; sign in again.' });
-          const user = await User.findByPk(sub);
-          if (!user) return done(null, false, { code: 'invalid_token', message: 'The account for this token no longer exists.' });
-          return done(null, { ...publicUser(user), tokenId: jti, tokenExp: exp });
+          const holder = await tokenHolder(sub, jti);
+          if (holder?.revoked) return done(null, false, { code: 'token_revoked', message: 'This session was signed out; sign in again.' });
+          if (!holder) return done(null, false, { code: 'invalid_token', message: 'The account for this token no longer exists.' });
+          return done(null, { ...holder.user, labRoles: holder.labRoles, tokenId: jti, tokenExp: exp });
         })().catch((err: unknown) => done(err));
       },
     ),

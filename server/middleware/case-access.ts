@@ -5,7 +5,7 @@
 import type { Request, RequestHandler } from 'express';
 import { z } from 'zod';
 import { AppError } from '../app-error';
-import { CaseRecord, Membership, type LabRole } from '../db/models';
+import { CaseRecord, type LabRole } from '../db/models';
 import type { CaseAccess } from '../services/case-access';
 import { currentUser } from './auth';
 
@@ -32,12 +32,12 @@ export function requireCaseRole(...roles: LabRole[]): RequestHandler {
     if (!id.success) throw caseNotFound();
     const found = await CaseRecord.findByPk(id.data, { attributes: ['id', 'labId', 'archived'] });
     if (!found) throw caseNotFound();
-    const membership = await Membership.findOne({ where: { labId: found.labId, userId: user.id } });
-    if (!membership) throw caseNotFound();
-    if (!roles.includes(membership.role)) {
-      throw new AppError('role_too_low', `This needs the ${roles.join(' or ')} role in this lab; you are ${membership.role}.`, 403);
+    const role = user.labRoles[found.labId];
+    if (!role) throw caseNotFound();
+    if (!roles.includes(role)) {
+      throw new AppError('role_too_low', `This needs the ${roles.join(' or ')} role in this lab; you are ${role}.`, 403);
     }
-    req.caseAccess = { caseId: found.id, labId: found.labId, role: membership.role, archived: found.archived };
+    req.caseAccess = { caseId: found.id, labId: found.labId, role, archived: found.archived };
     next();
   };
 }

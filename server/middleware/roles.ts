@@ -1,7 +1,7 @@
 import type { Request, RequestHandler } from 'express';
 import { z } from 'zod';
 import { AppError } from '../app-error';
-import { Membership, type LabRole } from '../db/models';
+import type { LabRole } from '../db/models';
 import { currentUser } from './auth';
 
 declare global {
@@ -21,12 +21,12 @@ export function requireLabRole(...roles: LabRole[]): RequestHandler {
     const user = currentUser(req);
     const id = labId.safeParse(req.params['labId']);
     if (!id.success) throw new AppError('lab_not_found', 'No such lab.', 404, 'labId');
-    const membership = await Membership.findOne({ where: { labId: id.data, userId: user.id } });
-    if (!membership) throw new AppError('not_a_member', 'You are not a member of this lab.', 403);
-    if (!roles.includes(membership.role)) {
-      throw new AppError('role_too_low', `This needs the ${roles.join(' or ')} role in this lab; you are ${membership.role}.`, 403);
+    const role = user.labRoles[id.data];
+    if (!role) throw new AppError('not_a_member', 'You are not a member of this lab.', 403);
+    if (!roles.includes(role)) {
+      throw new AppError('role_too_low', `This needs the ${roles.join(' or ')} role in this lab; you are ${role}.`, 403);
     }
-    req.labMembership = { labId: id.data, role: membership.role };
+    req.labMembership = { labId: id.data, role };
     next();
   };
 }

@@ -51,7 +51,8 @@ describe('replies that carry a token are never cached', () => {
   });
 });
 
-describe('per-account sign-in back-off', () => {
+// Each attempt hashes with argon2: allow for a busy machine.
+describe('per-account sign-in back-off', { timeout: 90_000 }, () => {
   const env = { QP_SIGNIN_ACCOUNT_FREE_FAILURES: '2', QP_SIGNIN_ACCOUNT_BASE_DELAY_MS: '1500', QP_SIGNIN_ACCOUNT_MAX_DELAY_MS: '3000' };
 
   it('after the free failures, makes that account wait (even with the right password), others not', async () => {
