@@ -5,7 +5,7 @@
  * number in one transaction; a concurrent save waits for the lock, then finds the number moved and gets 409 with
  * nothing written. The unique (case_id, number) index backs this up.
  */
-import { Op, UniqueConstraintError, col, fn, where, type Sequelize, type Transaction, type WhereOptions } from 'sequelize';
+import { Op, QueryTypes, UniqueConstraintError, type Sequelize, type Transaction } from 'sequelize';
 import { caseDigest, canonicalJson, parseCase, type CaseParams } from '../../shared/case';
 import { parseRunSettingsFor } from '../../shared/engine/run-kinds';
 import { AppError } from '../app-error';
@@ -103,35 +103,85 @@ function revisionSummary(r: Revision, authors: Map<string, PersonRef>): Revision
   };
 }
 
-const ORDER: Record<CaseSort, [string, 'ASC' | 'DESC']> = {
-  '-updated': ['updatedAt', 'DESC'],
-  updated: ['updatedAt', 'ASC'],
-  title: ['title', 'ASC'],
-  '-title': ['title', 'DESC'],
+const ORDER: Record<CaseSort, string> = {
+  '-updated': 'c.updated_at DESC, c.id',
+  updated: 'c.updated_at ASC, c.id',
+  title: 'c.title ASC, c.id',
+  '-title': 'c.title DESC, c.id',
 };
 
 function likePattern(text: string): string {
   return `%${text.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
 }
 
+interface CaseListRow {
+  id: string;
+  lab_id: string;
+  title: string;
+  tags: string[];
+  latest_revision: number;
+  recheck_state: RecheckState;
+  archived: boolean;
+  created_at: Date;
+  updated_at: Date;
+  author_id: string | null;
+  author_name: string | null;
+  total: number;
+}
+
+/**
+ * One page of a lab's cases and the total, in one statement: the page comes in index order
+ * (cases_lab_live_updated), the total from an uncorrelated count the planner runs once, and the search from the
+ * pg_trgm indexes on title and tags (migration 0003). Only a page past the end needs a second query for the total.
+ */
 export async function listCases(labId: string, q: CaseQuery): Promise<Paged<CaseListItem>> {
-  const and: WhereOptions[] = [{ labId }, { archived: q.archived }];
+  const sequelize = CaseRecord.sequelize;
+  if (!sequelize) throw new Error('models are not bound to a database');
+  const bind: Record<string, unknown> = { labId, archived: q.archived, limit: q.pageSize, offset: offsetOf(q) };
+  const conditions = ['c.lab_id = $labId', 'c.archived = $archived'];
   if (q.search) {
-    const pattern = likePattern(q.search);
-    and.push({ [Op.or]: [{ title: { [Op.iLike]: pattern } }, where(fn('array_to_string', col('tags'), ' '), { [Op.iLike]: pattern })] });
+    bind['pattern'] = likePattern(q.search);
+    conditions.push('(c.title ILIKE $pattern OR qp_tags_text(c.tags) ILIKE $pattern)');
   }
-  if (q.tag) and.push({ tags: { [Op.contains]: [q.tag] } });
-  if (q.author) and.push({ authorId: q.author });
-  if (q.recheck) and.push({ recheckState: q.recheck });
-  const [column, direction] = ORDER[q.sort];
-  const { rows, count } = await CaseRecord.findAndCountAll({
-    where: { [Op.and]: and },
-    include: [withAuthor],
-    order: [[column, direction], ['id', 'ASC']],
-    limit: q.pageSize,
-    offset: offsetOf(q),
-  });
-  return paged(rows.map(listItem), count, q);
+  if (q.tag) {
+    bind['tag'] = q.tag;
+    conditions.push('c.tags @> ARRAY[$tag]::varchar(40)[]');
+  }
+  if (q.author) {
+    bind['author'] = q.author;
+    conditions.push('c.author_id = $author');
+  }
+  if (q.recheck) {
+    bind['recheck'] = q.recheck;
+    conditions.push('c.recheck_state = $recheck');
+  }
+  const where = conditions.join(' AND ');
+  const rows = await sequelize.query<CaseListRow>(
+    `SELECT c.id, c.lab_id, c.title, c.tags, c.latest_revision, c.recheck_state, c.archived, c.created_at, c.updated_at,
+            u.id AS author_id, u.name AS author_name, (SELECT count(*) FROM cases c WHERE ${where})::int AS total
+       FROM cases c LEFT JOIN users u ON u.id = c.author_id
+      WHERE ${where}
+      ORDER BY ${ORDER[q.sort]}
+      LIMIT $limit OFFSET $offset`,
+    { bind, type: QueryTypes.SELECT },
+  );
+  const total =
+    rows[0]?.total ??
+    (await sequelize.query<{ total: number }>(`SELECT count(*)::int AS total FROM cases c WHERE ${where}`, { bind, type: QueryTypes.SELECT }))[0]?.total ??
+    0;
+  const items = rows.map((r) => ({
+    id: r.id,
+    title: r.title,
+    tags: r.tags,
+    labId: r.lab_id,
+    latestRevision: r.latest_revision,
+    recheckState: r.recheck_state,
+    author: r.author_id ? { id: r.author_id, name: r.author_name ?? '' } : null,
+    createdAt: r.created_at.toISOString(),
+    updatedAt: r.updated_at.toISOString(),
+    archived: r.archived,
+  }));
+  return paged(items, total, q);
 }
 
 export async function caseDetail(caseId: string, myRole: LabRole, transaction?: Transaction): Promise<CaseDetail> {

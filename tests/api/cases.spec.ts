@@ -94,6 +94,8 @@ describe('listing cases', () => {
     const third = await list('?pageSize=2&page=3');
     expect(titlesOf(third.body)).toEqual(['Alpha shaker']);
     expect(third.body.items[0]).toMatchObject({ labId: lab.lab.id, latestRevision: 1, recheckState: 'draft', archived: false });
+    const past = await list('?pageSize=2&page=9&search=a');
+    expect(past.body).toEqual({ items: [], total: 5, page: 9, pageSize: 2 });
   });
 
   it('sorts by title both ways and by oldest change', async () => {

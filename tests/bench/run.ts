@@ -13,7 +13,8 @@ function isBenchModule(value: unknown): value is BenchModule {
 
 async function main(): Promise<void> {
   const dir = __dirname;
-  const files = readdirSync(dir).filter((f) => f.endsWith('-bench.ts')).sort();
+  // The API bench needs PostgreSQL and has its own command (npm run bench:api).
+  const files = readdirSync(dir).filter((f) => f.endsWith('-bench.ts') && f !== 'api-bench.ts').sort();
   for (const file of files) {
     const loaded: unknown = await import(pathToFileURL(join(dir, file)).href);
     // a CommonJS-compiled module may arrive wrapped in `default`
