@@ -1,8 +1,9 @@
 /**
  * A pool of engine workers behind RxJS Observables.
  *
- * Each public method splits its job into fixed chunks (the split depends only on the job, never on the number of
- * workers, and every chunk's numbers are independent of the others), hands the chunks to idle workers, reports
+ * Each public method drives a job (shared/engine/run-job.ts; one per run kind in the run registry, run-kinds.ts):
+ * the job's tasks come in fixed chunks (the split depends only on the job, never on the number of workers, and every
+ * chunk's numbers are independent of the others); the pool hands them to idle workers, reports
  * progress as a non-decreasing fraction, and emits the assembled result once. Unsubscribing cancels: queued
  * chunks are dropped and workers busy with the job are terminated (their computation is synchronous, so a message
  * could not reach them) and replaced on demand. Works over any `WorkerLike`, so the browser passes Web Workers and
@@ -16,9 +17,11 @@ import type { FitResult } from '../engine/fit';
 import type { FloquetAnalysis } from '../engine/floquet';
 import type { MotionResult } from '../engine/motion';
 import type { OverlayResult } from '../engine/trace-drive';
-import type { RunJob } from '../engine/run-job';
-import { expectResult } from '../engine/run-job';
-import { runJob, runKind, type RowsPartial, type RunKind, type RunPartialOf, type RunResult, type RunSettings, type RunSettingsOf, type RunValueOf } from '../engine/run-kinds';
+import { expectResult, type RunJob } from '../engine/run-job';
+import {
+  runJob, runKind, type RowsPartial, type RunKind, type RunPartialOf, type RunResult, type RunSettings, type RunSettingsOf,
+  type RunValueOf,
+} from '../engine/run-kinds';
 import type { BasinCell, CellMap, MapCell, SweepPoint, SweepResult, SweepSpec } from '../engine/sweep';
 import { isEngineResponse, type EngineRequest, type EngineResponse, type EngineResult } from './protocol';
 

@@ -19,6 +19,10 @@ function revision(number: number): object {
     runs: [
       { id: 'r1', kind: 'motion', settings: { kind: 'motion' }, summary: { outcome: 'holds-upright' }, resultDigest: 'b'.repeat(64), engineVersion: '1.0.0', author: null, createdAt: '' },
       { id: 'r2', kind: 'unknown-kind', settings: {}, summary: {}, resultDigest: '', engineVersion: '', author: null, createdAt: '' },
+      {
+        id: 'r3', kind: 'sweep', settings: { kind: 'sweep', spec: { field: 'drive.amplitude', from: 0.001, to: 0.01, steps: 1e6 } },
+        summary: {}, resultDigest: 'c'.repeat(64), engineVersion: '1.0.0', author: null, createdAt: '',
+      },
     ],
     rechecks: [],
   };
@@ -43,7 +47,8 @@ describe('ApiCaseRepository', () => {
     const value = await opened;
     expect(value).toMatchObject({ caseId: 'c1', revision: 3, latestRevision: 3, readOnly: false, labId: 'lab-1' });
     expect(value.params.drive.frequency).toBe(40);
-    // A run kind this engine does not know is left out rather than offered for a rerun it cannot do.
+    // A run kind this engine does not know, or settings its run registry refuses, is left out rather than offered
+    // for a rerun it cannot do.
     expect(value.runs.map((r) => r.id)).toEqual(['r1']);
   });
 

@@ -3,27 +3,25 @@ import { Injectable, inject } from '@angular/core';
 import { Observable, catchError, map, switchMap, throwError } from 'rxjs';
 
 import type { CaseParams } from '../../../../shared/case/case-schema';
-import { RUN_KINDS, type RunKind, type RunRecord, type RunSettings } from '../../../../shared/engine/run-record';
+import { parseRunSettings } from '../../../../shared/engine/run-kinds';
+import type { RunRecord } from '../../../../shared/engine/run-record';
 import { apiErrorOf, describeError } from '../../core/error-message';
 import type { CaseLabel, CaseRepository, NewCase, OpenedCase, StoredRun } from '../case/case-repository';
 import { CaseRepositoryError } from '../case/case-repository-error';
 import { LibraryApi } from './library-api';
-import { CaseDetail, RevisionDetail, RunView, isRecord, parseCaseDetail } from './library-types';
+import { CaseDetail, RevisionDetail, RunView, parseCaseDetail } from './library-types';
 
 /** Roles that may save revisions and runs (the server enforces the same). */
 const WRITERS: readonly string[] = ['analyst', 'owner'];
 
-export function isRunKind(value: unknown): value is RunKind {
-  return (RUN_KINDS as readonly unknown[]).includes(value);
-}
-
-/** A stored run whose kind and settings the engine knows; null for anything else. */
+/** A stored run whose settings the engine's run registry accepts for its kind; null for anything else. */
 export function storedRunOf(run: RunView): StoredRun | null {
-  if (!isRunKind(run.kind) || !isRecord(run.settings) || run.settings['kind'] !== run.kind) return null;
+  const settings = parseRunSettings(run.settings);
+  if (!settings.ok || settings.value.kind !== run.kind) return null;
   return {
     id: run.id,
-    kind: run.kind,
-    settings: run.settings as unknown as RunSettings,
+    kind: settings.value.kind,
+    settings: settings.value,
     summary: run.summary,
     resultDigest: run.resultDigest,
     engineVersion: run.engineVersion,
