@@ -61,6 +61,17 @@ describe('text PostgreSQL cannot store', () => {
     expect(errorOf(res)).toMatchObject({ code: 'invalid_text', field: `settings.x${NUL}` });
   });
 
+  it('refuses a NUL in a multipart text field (bench trace label) with 422', async () => {
+    const id = await createCaseVia(api.app, fx.tokens.analyst, fx.lab.id, { title: 'Trace label' });
+    const res = await request(api.app)
+      .post(`/api/cases/${id}/bench-traces`)
+      .set('Authorization', `Bearer ${fx.tokens.analyst}`)
+      .field('label', `swing${NUL}`)
+      .attach('file', Buffer.from('time_s,angle_deg\n0,1\n0.01,0.9\n'), { filename: 'swing.csv', contentType: 'text/csv' });
+    expect(res.status).toBe(422);
+    expect(errorOf(res)).toMatchObject({ code: 'invalid_text', field: 'label' });
+  });
+
   it('refuses a NUL in a query string (search) with 422, not 500', async () => {
     const res = await as('viewer').get(`/api/labs/${fx.lab.id}/cases?search=a%00b`);
     expect(res.status).toBe(422);
