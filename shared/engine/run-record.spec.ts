@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
+import { compareSummaries } from './compare-runs';
 import { setField, templateCase } from '../case';
 import {
-  compareSummaries, computeRun, digestView, makeRunRecord, parseRunRecord, recheckRun, resultDigest, type RunResult, type RunSettings,
+  computeRun, digestView, makeRunRecord, parseRunRecord, recheckRun, resultDigest, type RunResult, type RunSettings,
 } from './run-record';
 
 describe('run records', () => {

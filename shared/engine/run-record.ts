@@ -13,6 +13,7 @@ import { parseCase } from '../case/validate';
 import type { MotionHooks } from './motion';
 import type { SweepResult } from './sweep';
 import { computeRun, isRunKind, parseRunSettings, RUN_KINDS, summariseRun, type RunKind, type RunResult, type RunSettings, type RunSummary } from './run-kinds';
+import { compareSummaries, SUMMARY_REL_TOLERANCE, type ComparedNumber } from './compare-runs';
 import { ENGINE_VERSION } from './version';
 
 // The registry (run-kinds.ts) owns the kinds, their settings and how they are computed; records are built on it.
@@ -32,10 +33,6 @@ export interface RunRecord {
 
 /** Significant digits kept in the result digest. */
 export const DIGEST_SIGNIFICANT_DIGITS = 9;
-/** Default relative tolerance when a rerun's summary numbers are compared with the stored ones. */
-export const SUMMARY_REL_TOLERANCE = 1e-6;
-/** Absolute floor of that comparison (numbers that should be zero). */
-export const SUMMARY_ABS_TOLERANCE = 1e-12;
 
 /** Copy of a JSON-like value with numbers rounded for the digest; typed arrays become arrays. */
 export function digestView(value: unknown, depth = 0): unknown {
@@ -79,18 +76,8 @@ export function makeRunRecord(params: CaseParams, settings: RunSettings, result:
   };
 }
 
-/** One compared summary entry. */
-export interface ComparedNumber {
-  key: string;
-  stored: number | string | boolean | null;
-  rerun: number | string | boolean | null;
-  /** |rerun - stored| / max(|stored|, tiny) for numbers, null otherwise. */
-  relDiff: number | null;
-  ok: boolean;
-}
-
 export interface RecheckReport {
-  /** Everything agrees (see `ok` rule in recheckRun). */
+  /** Everything agrees (see `match` in compare-runs.ts). */
   ok: boolean;
   digestMatches: boolean;
   storedDigest: string;
@@ -102,27 +89,6 @@ export interface RecheckReport {
   compared: ComparedNumber[];
   /** The rerun's record. */
   rerun: RunRecord;
-}
-
-/** Compares two summaries: numbers within relTolerance (or SUMMARY_ABS_TOLERANCE), everything else equal. */
-export function compareSummaries(stored: RunSummary, rerun: RunSummary, relTolerance = SUMMARY_REL_TOLERANCE): ComparedNumber[] {
-  const keys = [...new Set([...Object.keys(stored), ...Object.keys(rerun)])].sort();
-  // JSON cannot hold non-finite numbers: stored records carry them as "Infinity", "-Infinity" or "NaN".
-  const revive = (v: number | string | boolean | null): number | string | boolean | null =>
-    v === 'Infinity' || v === '-Infinity' || v === 'NaN' ? Number(v) : v;
-  return keys.map((key) => {
-    const a = revive(key in stored ? stored[key] : null);
-    const b = revive(key in rerun ? rerun[key] : null);
-    if (typeof a === 'number' && typeof b === 'number') {
-      if (!Number.isFinite(a) || !Number.isFinite(b)) {
-        return { key, stored: a, rerun: b, relDiff: null, ok: a === b || (Number.isNaN(a) && Number.isNaN(b)) };
-      }
-      const diff = Math.abs(a - b);
-      const relDiff = diff / Math.max(Math.abs(a), SUMMARY_ABS_TOLERANCE);
-      return { key, stored: a, rerun: b, relDiff, ok: diff <= Math.max(relTolerance * Math.abs(a), SUMMARY_ABS_TOLERANCE) };
-    }
-    return { key, stored: a, rerun: b, relDiff: null, ok: a === b };
-  });
 }
 
 /** Shape check of a stored run record read from JSON (the case itself is validated by recheckRun). */

@@ -14,7 +14,7 @@ import { describeError } from '../../core/error-message';
 import { LibraryApi } from '../library/library-api';
 import type { RecheckVerdict } from '../library/library-types';
 import { RecheckChip } from './recheck-chip';
-import { RunComparison, comparisonPayload } from './recheck-compare';
+import { comparisonPayload, type RunComparison } from '../../../../shared/engine/compare-runs';
 import { RerunPanel } from './rerun-panel';
 
 /** The reviewer's view of one revision: rerun every stored run here, then confirm or dispute with a comment. */

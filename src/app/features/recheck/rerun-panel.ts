@@ -10,7 +10,7 @@ import { ENGINE_VERSION } from '../../../../shared/engine/version';
 import { ENGINE_POOL } from '../../core/compute/engine-pool';
 import type { RunView } from '../library/library-types';
 import { ComparisonTable } from './comparison-table';
-import { RunComparison, compareRun } from './recheck-compare';
+import { compareRun, type RunComparison } from '../../../../shared/engine/compare-runs';
 import { rerunInPool, runSettingsOf } from './rerun';
 
 type RowState = 'waiting' | 'running' | 'done' | 'failed';

@@ -1,13 +1,13 @@
-import { templateCase } from '../../../../shared/case';
-import { SUMMARY_ABS_TOLERANCE, SUMMARY_REL_TOLERANCE, type RunRecord } from '../../../../shared/engine/run-record';
-import type { RunView } from '../library/library-types';
-import { compareRun, comparisonPayload } from './recheck-compare';
+import { describe, expect, it } from 'vitest';
+import { templateCase } from '../case';
+import { SUMMARY_ABS_TOLERANCE, SUMMARY_REL_TOLERANCE, compareRun, comparisonPayload, type StoredRunClaim } from './compare-runs';
+import type { RunRecord } from './run-record';
 
 const DIGEST_A = 'a'.repeat(64);
 const DIGEST_B = 'b'.repeat(64);
 
-function stored(summary: RunView['summary'], resultDigest = DIGEST_A, engineVersion = '1.0.0'): RunView {
-  return { id: 'run-1', kind: 'motion', settings: { kind: 'motion' }, summary, resultDigest, engineVersion, author: null, createdAt: '' };
+function stored(summary: StoredRunClaim['summary'], resultDigest = DIGEST_A, engineVersion = '1.0.0'): StoredRunClaim {
+  return { id: 'run-1', kind: 'motion', summary, resultDigest, engineVersion };
 }
 
 function rerun(summary: RunRecord['summary'], resultDigest = DIGEST_A, engineVersion = '1.0.0'): RunRecord {
@@ -39,7 +39,8 @@ describe('compareRun', () => {
   it('fails on a different digest from the same engine, but lets the numbers decide after an engine change', () => {
     expect(compareRun(stored({ x: 1 }), rerun({ x: 1 }, DIGEST_B)).match).toBe(false);
     const newer = compareRun(stored({ x: 1 }, DIGEST_A, '0.9.0'), rerun({ x: 1 }, DIGEST_B, '1.0.0'));
-    expect(newer).toMatchObject({ digestMatch: false, numbersMatch: true, match: true });
+    expect(newer).toMatchObject({ digestMatch: false, numbersMatch: true, match: true, reproduced: false });
+    expect(compareRun(stored({ x: 1 }), rerun({ x: 1 }))).toMatchObject({ reproduced: true, match: true });
   });
 
   it('sends infinite numbers as words, since JSON has no Infinity', () => {
