@@ -15,23 +15,36 @@ import type { RunResult } from './run-record';
 export const RESULT_ENCODING = 'qp-result-json/1';
 
 const ALPHABET = 'ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/';
-const LOOKUP = new Map([...ALPHABET].map((c, i) => [c, i]));
+const ENCODE = Uint8Array.from(ALPHABET, (c) => c.charCodeAt(0));
+const DECODE = new Int16Array(128).fill(-1);
+ENCODE.forEach((code, i) => (DECODE[code] = i));
+const PAD = 61; // '='
+/** Characters turned into a string at a time where no TextDecoder exists (the argument limit of fromCharCode). */
+const CHUNK = 0x2000;
+// TextDecoder is in every runtime we target (browsers, workers, Node) but not in this folder's ES-only lib.
+const TextDecoderCtor = (globalThis as { TextDecoder?: new () => { decode(bytes: Uint8Array): string } }).TextDecoder;
+const asciiDecoder = TextDecoderCtor ? new TextDecoderCtor() : null;
+
+function charsToString(chars: Uint8Array): string {
+  if (asciiDecoder) return asciiDecoder.decode(chars);
+  const parts: string[] = [];
+  for (let i = 0; i < chars.length; i += CHUNK) parts.push(String.fromCharCode.apply(null, Array.from(chars.subarray(i, i + CHUNK))));
+  return parts.join('');
+}
 
 /** Standard base64 (RFC 4648 section 4, with padding) of a byte array. */
 export function bytesToBase64(bytes: Uint8Array): string {
-  const parts: string[] = [];
+  const out = new Uint8Array(Math.ceil(bytes.length / 3) * 4);
+  let o = 0;
   for (let i = 0; i < bytes.length; i += 3) {
-    const a = bytes[i] ?? 0;
-    const b = bytes[i + 1] ?? 0;
-    const c = bytes[i + 2] ?? 0;
-    const n = (a << 16) | (b << 8) | c;
-    parts.push(
-      ALPHABET[(n >> 18) & 63] + ALPHABET[(n >> 12) & 63] +
-        (i + 1 < bytes.length ? ALPHABET[(n >> 6) & 63] : '=') +
-        (i + 2 < bytes.length ? ALPHABET[n & 63] : '='),
-    );
+    const rest = bytes.length - i;
+    const n = (bytes[i] << 16) | ((rest > 1 ? bytes[i + 1] : 0) << 8) | (rest > 2 ? bytes[i + 2] : 0);
+    out[o++] = ENCODE[(n >> 18) & 63];
+    out[o++] = ENCODE[(n >> 12) & 63];
+    out[o++] = rest > 1 ? ENCODE[(n >> 6) & 63] : PAD;
+    out[o++] = rest > 2 ? ENCODE[n & 63] : PAD;
   }
-  return parts.join('');
+  return charsToString(out);
 }
 
 /** Bytes of standard base64 text; throws on characters outside the alphabet or a bad length. */
@@ -39,16 +52,18 @@ export function base64ToBytes(text: string): Uint8Array {
   if (text.length % 4 !== 0) throw new Error('base64 text length must be a multiple of 4');
   const padding = text.endsWith('==') ? 2 : text.endsWith('=') ? 1 : 0;
   const out = new Uint8Array((text.length / 4) * 3 - padding);
+  const body = text.length - padding;
   let o = 0;
   for (let i = 0; i < text.length; i += 4) {
     let n = 0;
     for (let j = 0; j < 4; j++) {
-      const ch = text[i + j] ?? '=';
-      const v = ch === '=' && i + j >= text.length - padding ? 0 : LOOKUP.get(ch);
-      if (v === undefined) throw new Error(`not a base64 character: ${ch}`);
+      const k = i + j;
+      const code = text.charCodeAt(k);
+      const v = k >= body ? 0 : code < 128 ? DECODE[code] : -1;
+      if (v < 0) throw new Error(`not a base64 character: ${text[k]}`);
       n = (n << 6) | v;
     }
-    if (o < out.length) out[o++] = (n >> 16) & 255;
+    out[o++] = (n >> 16) & 255;
     if (o < out.length) out[o++] = (n >> 8) & 255;
     if (o < out.length) out[o++] = n & 255;
   }

@@ -15,10 +15,12 @@ import { OutboxMail } from './outbox-mail';
 import { Recheck } from './recheck';
 import { Revision } from './revision';
 import { Run } from './run';
+import { RunVerification } from './run-verification';
 
 export { AuditEvent, Invitation, Lab, Membership, RevokedToken, SinkMail, User };
 export { LAB_ROLES, type LabRole } from './roles';
-export { BenchTrace, CaseLink, CaseRecord, Comment, OutboxMail, Recheck, Revision, Run };
+export { BenchTrace, CaseLink, CaseRecord, Comment, OutboxMail, Recheck, Revision, Run, RunVerification };
+export { VERIFICATION_STATES, type VerificationState } from './run-verification';
 export type { TraceSeries } from './bench-trace';
 export { RECHECK_STATES, type RecheckState } from './recheck-states';
 

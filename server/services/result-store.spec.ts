@@ -1,0 +1,82 @@
+import { describe, expect, it } from 'vitest';
+import type { StabilityChart } from '../../shared/engine/chart';
+import { resultDigest, type RunResult } from '../../shared/engine/run-record';
+import type { SweepPoint, SweepResult } from '../../shared/engine/sweep';
+import { ENGINE_VERSION } from '../../shared/engine/version';
+import {
+  RESULT_MAX_COMPRESSED_BYTES, RESULT_MAX_RAW_BYTES, RUN_SETTINGS_LIMITS, ResultTooLargeError, compressResult, decompressResult,
+} from './result-store';
+
+// Full-entropy doubles: the worst case for compression, so a size that fits here fits for any real result.
+let seed = 12345;
+function noise(): number {
+  seed = (seed * 1103515245 + 12345) % 2147483648;
+  return seed / 2147483648 - 0.5 + Math.sin(seed) * 1e-9;
+}
+
+function chartOf(n: number): RunResult {
+  const axis = (field: string) => ({ field, from: 1, to: 2, count: n });
+  const value: StabilityChart = {
+    engineVersion: ENGINE_VERSION,
+    grid: { x: axis('drive.frequency'), y: axis('drive.amplitude') },
+    xValues: Float64Array.from({ length: n }, noise),
+    yValues: Float64Array.from({ length: n }, noise),
+    maxMultiplier: Float64Array.from({ length: n * n }, noise),
+    caseMark: { x: 1.5, y: 1.5, maxMultiplier: 0.9 },
+    averagedLowerLimit: null,
+  } as StabilityChart;
+  return { kind: 'chart', value };
+}
+
+function sweepOf(steps: number): RunResult {
+  const points: SweepPoint[] = Array.from({ length: steps }, (_, index) => ({
+    index, value: noise(), outcome: index % 3 === 0 ? 'falls' : 'holds-upright', meanAngle: noise(), maxDeviation: noise(), slowFrequencyHz: noise(), maxMultiplier: index % 7 === 0 ? Infinity : noise(),
+  }));
+  const value: SweepResult = {
+    engineVersion: ENGINE_VERSION,
+    field: 'drive.amplitude',
+    spec: { field: 'drive.amplitude', from: 0, to: 1, steps },
+    values: Float64Array.from(points, (p) => p.value),
+    points,
+    thresholds: [{ kind: 'outcome', value: 0.5, bracket: [0.49, 0.51], tolerance: 0.02, below: 'falls', above: 'holds-upright' }],
+  };
+  return { kind: 'sweep', value };
+}
+
+describe('stored result size and round trip', () => {
+  it(`keeps a ${RUN_SETTINGS_LIMITS.gridCount}x${RUN_SETTINGS_LIMITS.gridCount} chart within the limits, bit for bit`, () => {
+    const chart = chartOf(RUN_SETTINGS_LIMITS.gridCount);
+    const stored = compressResult(chart);
+    expect(stored.rawBytes).toBeLessThan(RESULT_MAX_RAW_BYTES);
+    expect(stored.compressedBytes).toBeLessThan(RESULT_MAX_COMPRESSED_BYTES);
+    expect(stored.compressedBytes).toBe(stored.compressed.length);
+    const back = decompressResult(stored);
+    if (back.kind !== 'chart' || chart.kind !== 'chart') throw new Error('kind lost');
+    expect(Buffer.from(back.value.maxMultiplier.buffer).equals(Buffer.from(chart.value.maxMultiplier.buffer))).toBe(true);
+    expect(resultDigest(back)).toBe(resultDigest(chart));
+  });
+
+  it('keeps a 200-point sweep within the limits with its infinite multipliers', () => {
+    const sweep = sweepOf(200);
+    const stored = compressResult(sweep);
+    expect(stored.rawBytes).toBeLessThan(RESULT_MAX_RAW_BYTES);
+    expect(stored.compressedBytes).toBeLessThan(stored.rawBytes);
+    const back = decompressResult(stored);
+    if (back.kind !== 'sweep') throw new Error('kind lost');
+    expect(back.value.points[0]?.maxMultiplier).toBe(Infinity);
+    expect(resultDigest(back)).toBe(resultDigest(sweep));
+  });
+
+  it('refuses a result over either limit, naming its size', () => {
+    const chart = chartOf(50);
+    const { rawBytes, compressedBytes } = compressResult(chart);
+    expect(() => compressResult(chart, { maxRawBytes: rawBytes - 1, maxCompressedBytes: RESULT_MAX_COMPRESSED_BYTES })).toThrow(ResultTooLargeError);
+    expect(() => compressResult(chart, { maxRawBytes: rawBytes, maxCompressedBytes: compressedBytes - 1 })).toThrow(
+      `the result is ${compressedBytes} bytes compressed, over the ${compressedBytes - 1}-byte limit`,
+    );
+  });
+
+  it('refuses an unknown encoding', () => {
+    expect(() => decompressResult({ encoding: 'other/1', compressed: Buffer.alloc(0) })).toThrow(/unknown result encoding/);
+  });
+});
