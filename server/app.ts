@@ -20,6 +20,7 @@ import {
 import { AppError } from './app-error';
 import { checkReplies, declareReply } from './middleware/reply-contract';
 import type { Config } from './config';
+import type { RunVerifier } from './services/run-verifier';
 import { createLogger, redactUrl, type Logger } from './logger';
 import { createAuthenticator } from './middleware/auth';
 import { apiNotFound, jsonErrors } from './middleware/errors';
@@ -39,7 +40,7 @@ import { deleteTraceRoute, listTracesRoute, receiveTraceFile, traceDownloadRoute
 import { createLinkRoute, listLinksRoute, publicLinkReportRoute, publicLinkRoute, revokeLinkRoute } from './routes/case-link-routes';
 import {
   addCommentRoute, auditRoute, caseRoute, commentsRoute, createCaseRoute, duplicateCaseRoute, listCasesRoute, patchCaseRoute,
-  recheckRequestRoute, recheckRoute, reportRoute, revisionRoute, saveRevisionRoute, storeRunRoute,
+  recheckRequestRoute, recheckRoute, reportRoute, revisionRoute, runResultRoute, saveRevisionRoute, storeRunRoute,
 } from './routes/case-routes';
 
 export interface AppOptions {
@@ -48,6 +49,8 @@ export interface AppOptions {
   logger?: Logger;
   /** serve the built Angular app (default: when config.env is production) */
   serveClient?: boolean;
+  /** reruns stored runs to verify them; without one, stored runs stay pending until a server with one starts */
+  verifier?: RunVerifier;
   /**
    * Tests only: every JSON reply must parse against its route's schema (errors against the error body and the
    * code table), or the request fails with 500 `response_contract` naming the mismatch.
@@ -167,7 +170,9 @@ export function createApp(options: AppOptions): Express {
     route('get', '/cases/:caseId/revisions/:rev', revisionDetailSchema, authenticate, caseReader, revisionRoute),
     // a PDF file, not JSON
     route('get', '/cases/:caseId/revisions/:rev/report.pdf', null, authenticate, caseReader, reportRoute),
-    route('post', '/cases/:caseId/revisions/:rev/runs', runSchema, authenticate, caseAuthor, storeRunRoute(sequelize)),
+    route('post', '/cases/:caseId/revisions/:rev/runs', runSchema, authenticate, caseAuthor, storeRunRoute(sequelize, options.verifier)),
+    // the stored result as stored: gzip-compressed JSON (shared/engine/result-codec.ts)
+    route('get', '/cases/:caseId/revisions/:rev/runs/:runId/result', null, authenticate, caseReader, runResultRoute),
     route('get', '/cases/:caseId/revisions/:rev/comments', pagedSchema(commentSchema), authenticate, caseReader, commentsRoute),
     route('post', '/cases/:caseId/revisions/:rev/comments', commentSchema, authenticate, caseCommenter, addCommentRoute(sequelize)),
     route('post', '/cases/:caseId/revisions/:rev/recheck-request', revisionDetailSchema, authenticate, caseAuthor, recheckRequestRoute(sequelize, config)),

@@ -51,6 +51,8 @@ const schema = z.object({
   logLevel: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']),
   /** QP_CLIENT_DIR: the built Angular app served in production */
   clientDir: z.string().min(1),
+  /** QP_VERIFY_THREADS: engine worker threads that rerun stored runs to verify them (off the request path) */
+  verifyThreads: positiveInt,
 });
 
 export type Config = z.infer<typeof schema>;
@@ -96,6 +98,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     invitationTtlHours: env['QP_INVITATION_TTL_HOURS'] || 168,
     logLevel: env['LOG_LEVEL'] || (nodeEnv === 'test' ? 'silent' : 'info'),
     clientDir: env['QP_CLIENT_DIR'] || join(paths.repoRoot, 'dist', 'quiverpoint', 'browser'),
+    verifyThreads: env['QP_VERIFY_THREADS'] || 1,
   };
   const parsed = schema.safeParse(raw);
   if (!parsed.success) {

@@ -10,6 +10,7 @@ import { createLogger } from './logger';
 import { startMailSink, type MailSink } from './scripts/mail-sink';
 import { createMailer } from './services/mailer';
 import { startOutboxSender } from './services/outbox-service';
+import { RunVerifier } from './services/run-verifier';
 
 async function main(): Promise<void> {
   const cfg = config();
@@ -20,7 +21,12 @@ async function main(): Promise<void> {
     sink = await startMailSink({ port: cfg.smtpPort, host: cfg.smtpHost, log: (line) => logger.info(line) });
     logger.info({ smtp: `${cfg.smtpHost}:${sink.port}` }, 'local mail sink listening');
   }
-  const app = createApp({ config: cfg, sequelize, logger });
+  const verifier = new RunVerifier({ logger, threads: cfg.verifyThreads });
+  const app = createApp({ config: cfg, sequelize, logger, verifier });
+  verifier
+    .resumePending()
+    .then((count) => count > 0 && logger.info({ count }, 'verifying stored runs left pending'))
+    .catch((err: unknown) => logger.error({ err }, 'cannot list the stored runs left pending'));
   const outbox = startOutboxSender({ sequelize, sendMail: createMailer(cfg), logger });
   const server = app.listen(cfg.port, cfg.host, (err?: Error) => {
     if (err) {
@@ -37,8 +43,7 @@ async function main(): Promise<void> {
     closing = true;
     logger.info({ signal }, 'shutting down');
     server.close(() => {
-      outbox
-        .stop()
+      Promise.allSettled([outbox.stop(), verifier.stop()])
         .finally(() => Promise.allSettled([sink?.close(), sequelize.close()]))
         .finally(() => process.exit(0));
     });

@@ -3,7 +3,7 @@ import type { Sequelize } from 'sequelize';
 import { z } from 'zod';
 import {
   caseListQuerySchema, commentBodySchema, createCaseBodySchema, duplicateCaseBodySchema, pageQuerySchema, patchCaseBodySchema, recheckBodySchema,
-  recheckRequestBodySchema, revisionParamSchema, saveRevisionBodySchema, storeRunBodySchema,
+  recheckRequestBodySchema, revisionParamSchema, runParamSchema, saveRevisionBodySchema, storeRunBodySchema,
 } from '../../shared/api';
 import type { Config } from '../config';
 import { currentUser } from '../middleware/auth';
@@ -22,9 +22,11 @@ import {
   revisionDetail,
   saveRevision,
   storeRun,
+  storedResult,
   updateCase,
 } from '../services/case-service';
 import { recordRecheck, requestRecheck } from '../services/recheck-service';
+import type { RunVerifier } from '../services/run-verifier';
 import { revisionReport, type CaseReport } from '../services/report-service';
 
 function actorOf(req: Express.Request): Actor {
@@ -76,13 +78,34 @@ export function saveRevisionRoute(sequelize: Sequelize): RequestHandler {
   };
 }
 
-export function storeRunRoute(sequelize: Sequelize): RequestHandler {
+/** Stores a run as posted (pending) and queues the server's own rerun that verifies it. */
+export function storeRunRoute(sequelize: Sequelize, verifier: RunVerifier | undefined): RequestHandler {
   return async (req, res) => {
     const { rev } = parseInput(revisionParamSchema, req.params, 'path');
     const body = parseInput(storeRunBodySchema, req.body);
-    res.status(201).json(await storeRun(sequelize, actorOf(req), caseAccess(req), rev, body));
+    const run = await storeRun(sequelize, actorOf(req), caseAccess(req), rev, body);
+    verifier?.enqueue(run.id);
+    res.status(201).json(run);
   };
 }
+
+/**
+ * The server's stored result of a run, as stored: the encoded text (shared/engine/result-codec.ts) gzip-compressed,
+ * sent with Content-Encoding: gzip so the browser inflates it natively. Immutable once verified, so cacheable.
+ */
+export const runResultRoute: RequestHandler = async (req, res) => {
+  const { rev, runId } = parseInput(runParamSchema, req.params, 'path');
+  const stored = await storedResult(caseAccess(req).caseId, rev, runId);
+  res.set({
+    'Content-Type': 'application/json; charset=utf-8',
+    'Content-Encoding': 'gzip',
+    'Cache-Control': 'private, max-age=31536000, immutable',
+    'X-Result-Encoding': stored.encoding,
+    'X-Verification': stored.state,
+    Vary: 'Authorization',
+  });
+  res.end(stored.compressed);
+};
 
 export const commentsRoute: RequestHandler = async (req, res) => {
   const { rev } = parseInput(revisionParamSchema, req.params, 'path');

@@ -17,17 +17,20 @@ import {
   Recheck,
   Revision,
   Run,
+  RunVerification,
   User,
   type LabRole,
   type RecheckState,
+  type VerificationState,
 } from '../db/models';
 import type {
-  AuditEntry, CaseDetail, CaseListItem, CaseSort, CommentView, PersonRef, RecheckView, RevisionDetail, RevisionSummary, RunView, StoreRunBody,
+  AuditEntry, CaseDetail, CaseListItem, CaseSort, CommentView, PersonRef, RecheckView, RevisionDetail, RevisionSummary, RunView, StoreRunBody, VerificationView,
 } from '../../shared/api';
 import type { Actor, CaseAccess } from './case-access';
 import { offsetOf, paged, type PageQuery, type Paged } from './paging';
 
 export type { Actor };
+import { RUN_SETTINGS_LIMITS } from './result-store';
 
 export interface CaseQuery {
   search?: string | undefined;
@@ -296,17 +299,44 @@ export async function duplicateCase(
   });
 }
 
-function runView(r: Run, authors: Map<string, PersonRef>): RunView {
+function verificationView(r: Run, v: RunVerification | undefined): VerificationView {
+  if (!v) return { state: 'pending', verifiedAt: null, engineVersion: null, failure: null, claimed: null, differences: [], resultBytes: null };
+  const numbers = (v.comparison?.['numbers'] ?? []) as Array<{ match?: unknown }>;
+  return {
+    state: v.state,
+    verifiedAt: v.createdAt.toISOString(),
+    engineVersion: v.engineVersion,
+    failure: v.failure,
+    claimed: v.state === 'unreproduced' ? { summary: r.summary, resultDigest: r.resultDigest, engineVersion: r.engineVersion } : null,
+    differences: numbers.filter((n) => n.match === false),
+    resultBytes: v.encoding ? { raw: v.rawBytes, compressed: v.compressedBytes } : null,
+  };
+}
+
+function runView(r: Run, authors: Map<string, PersonRef>, v?: RunVerification): RunView {
+  const server = v && v.summary && v.resultDigest ? { summary: v.summary, resultDigest: v.resultDigest, engineVersion: v.engineVersion } : null;
   return {
     id: r.id,
     kind: r.kind,
     settings: r.settings,
-    summary: r.summary,
-    resultDigest: r.resultDigest,
-    engineVersion: r.engineVersion,
+    summary: server?.summary ?? r.summary,
+    resultDigest: server?.resultDigest ?? r.resultDigest,
+    engineVersion: server?.engineVersion ?? r.engineVersion,
+    verification: verificationView(r, v),
     author: r.authorId ? (authors.get(r.authorId) ?? null) : null,
     createdAt: r.createdAt.toISOString(),
   };
+}
+
+/** The verifications of some runs, by run id (the stored result bytes are left in the database). */
+export async function verificationsOf(runIds: readonly string[], transaction?: Transaction): Promise<Map<string, RunVerification>> {
+  if (runIds.length === 0) return new Map();
+  const rows = await RunVerification.findAll({
+    where: { runId: [...runIds] },
+    attributes: { exclude: ['compressed'] },
+    transaction,
+  });
+  return new Map(rows.map((row) => [row.runId, row]));
 }
 
 export function recheckView(r: Recheck, reviewers: Map<string, PersonRef>): RecheckView {
@@ -334,6 +364,7 @@ export async function revisionDetail(caseId: string, number: number, options: { 
   // One after another: inside a transaction they share one connection.
   const oldestFirst: Array<[string, 'ASC']> = [['createdAt', 'ASC'], ['id', 'ASC']];
   const runs = await Run.findAll({ where: { revisionId: revision.id }, order: oldestFirst, transaction });
+  const verifications = await verificationsOf(runs.map((r) => r.id), transaction);
   const rechecks = await Recheck.findAll({ where: { revisionId: revision.id }, order: oldestFirst, transaction });
   const comments = options.withComments === false ? [] : await Comment.findAll({ where: { revisionId: revision.id }, order: oldestFirst, transaction });
   const refs = await people(
@@ -362,7 +393,7 @@ export async function revisionDetail(caseId: string, number: number, options: { 
           requestedAt: revision.recheckRequestedAt.toISOString(),
         }
       : null,
-    runs: runs.map((r) => runView(r, refs)),
+    runs: runs.map((r) => runView(r, refs, verifications.get(r.id))),
     rechecks: rechecks.map((r) => recheckView(r, refs)),
     ...(options.withComments === false ? {} : { comments: comments.map((c) => commentView(c, refs)) }),
   };
@@ -408,6 +439,7 @@ export async function storeRun(sequelize: Sequelize, actor: Actor, access: CaseA
   const { params, digest } = validParams(input.params);
   const fit = parseRunSettingsFor(params, input.settings);
   if (!fit.ok) throw new AppError('settings_not_for_case', `settings.${fit.field}: ${fit.message}.`, 422, `settings.${fit.field}`);
+  checkSettingsSize(input.settings);
   return sequelize.transaction(async (transaction) => {
     const revision = await findRevision(access.caseId, number, transaction);
     if (digest !== revision.paramsDigest) {
@@ -431,6 +463,44 @@ export async function storeRun(sequelize: Sequelize, actor: Actor, access: CaseA
     await audit(transaction, actor.id, access.labId, 'run.stored', access.caseId, { revision: number, runId: run.id, kind: run.kind });
     return runView(run, new Map([[actor.id, { id: actor.id, name: actor.name }]]));
   });
+}
+
+/** Refuses settings the server would not rerun or store: more sweep points or grid cells than RUN_SETTINGS_LIMITS. */
+function checkSettingsSize(settings: Record<string, unknown>): void {
+  const spec = settings['spec'];
+  const steps = typeof spec === 'object' && spec !== null ? (spec as Record<string, unknown>)['steps'] : undefined;
+  if (typeof steps === 'number' && steps > RUN_SETTINGS_LIMITS.sweepSteps) {
+    throw new AppError('settings_too_large', `A stored sweep has at most ${RUN_SETTINGS_LIMITS.sweepSteps} points.`, 422, 'settings.spec.steps');
+  }
+  const grid = settings['grid'];
+  for (const axis of ['x', 'y'] as const) {
+    const a = typeof grid === 'object' && grid !== null ? (grid as Record<string, unknown>)[axis] : undefined;
+    const count = typeof a === 'object' && a !== null ? (a as Record<string, unknown>)['count'] : undefined;
+    if (typeof count === 'number' && count > RUN_SETTINGS_LIMITS.gridCount) {
+      throw new AppError('settings_too_large', `A stored chart or map has at most ${RUN_SETTINGS_LIMITS.gridCount} cells along each axis.`, 422, `settings.grid.${axis}.count`);
+    }
+  }
+}
+
+export interface StoredResultBytes {
+  encoding: string;
+  compressed: Buffer;
+  state: VerificationState;
+  verifiedAt: string;
+}
+
+/**
+ * The server's stored result of a run of the revision: 404 run_not_found, 409 result_pending while the server is
+ * still rerunning it, 404 result_not_stored when its rerun failed (the run is unreproduced with the failure).
+ */
+export async function storedResult(caseId: string, number: number, runId: string): Promise<StoredResultBytes> {
+  const revision = await findRevision(caseId, number);
+  const run = await Run.findOne({ where: { id: runId, revisionId: revision.id }, attributes: ['id'] });
+  if (!run) throw new AppError('run_not_found', `r${number} has no such run.`, 404, 'runId');
+  const v = await RunVerification.findByPk(runId);
+  if (!v) throw new AppError('result_pending', 'The server is still rerunning this run; its stored result appears once it is verified.', 409);
+  if (!v.encoding || !v.compressed) throw new AppError('result_not_stored', `The server could not reproduce this run${v.failure ? `: ${v.failure}` : ''}.`, 404);
+  return { encoding: v.encoding, compressed: v.compressed, state: v.state, verifiedAt: v.createdAt.toISOString() };
 }
 
 export async function listComments(caseId: string, number: number, page: PageQuery): Promise<Paged<CommentView>> {

@@ -26,6 +26,7 @@ export const createCaseBodySchema = z.object({ title, tags: tags.default([]), pa
 export const patchCaseBodySchema = z.object({ title: title.optional(), tags: tags.optional(), archived: z.boolean().optional() });
 export const duplicateCaseBodySchema = z.object({ title: title.optional(), revision: z.number().int().min(1).optional() });
 export const revisionParamSchema = z.object({ rev: z.coerce.number().int().min(1).max(1_000_000) });
+export const runParamSchema = revisionParamSchema.extend({ runId: z.uuid() });
 export const saveRevisionBodySchema = z.object({ baseRevision: z.number().int().min(0), params, note: note.optional() });
 export const storeRunBodySchema = z.object({
   kind: z.enum(RUN_KINDS as [RunKind, ...RunKind[]]),
@@ -45,23 +46,40 @@ export const comparedNumberSchema = z.strictObject({
   name: z.string().min(1).max(200),
   stored: scalarSchema,
   rerun: scalarSchema,
+  /** |rerun - stored| for two numbers (the server's comparisons carry it) */
+  difference: z.number().nullable().optional(),
   tolerance: z.number().nonnegative().nullable(),
   match: z.boolean(),
 });
 export type ComparedNumberView = z.infer<typeof comparedNumberSchema>;
+/**
+ * The server's comparison of a stored run with its own rerun (shared/engine/compare-runs.ts). Rechecks stored
+ * before the server compared runs itself hold only runId, digestMatch and numbers.
+ */
 export const runComparisonSchema = z.strictObject({
   runId: idSchema,
+  kind: z.string().optional(),
+  storedDigest: z.string().optional(),
+  rerunDigest: z.string().optional(),
   digestMatch: z.boolean(),
-  numbers: z.array(comparedNumberSchema).max(1000),
+  engineVersionStored: z.string().optional(),
+  engineVersionNow: z.string().optional(),
+  numbers: z.array(comparedNumberSchema),
+  numbersMatch: z.boolean().optional(),
+  /** same digest and every number within tolerance */
+  reproduced: z.boolean().optional(),
+  match: z.boolean().optional(),
+  /** why the server's rerun could not be compared */
+  failure: z.string().optional(),
 });
 export type RunComparison = z.infer<typeof runComparisonSchema>;
 export const RECHECK_VERDICTS = ['confirmed', 'disputed'] as const;
 export type RecheckVerdict = (typeof RECHECK_VERDICTS)[number];
+/** Only the verdict and a comment: the comparison is the server's, so match flags or comparisons are refused (422). */
 export const recheckBodySchema = z
-  .object({
+  .strictObject({
     verdict: z.enum(RECHECK_VERDICTS),
     comment: z.string().trim().max(5000),
-    comparisons: z.array(runComparisonSchema.extend({ runId: z.uuid() })).max(100),
   })
   .refine((b) => b.verdict !== 'disputed' || b.comment.length > 0, { path: ['comment'], message: 'say why you dispute the numbers' });
 export type RecheckBody = z.infer<typeof recheckBodySchema>;
@@ -98,14 +116,37 @@ export const caseDetailSchema = caseListItemSchema.omit({ labId: true }).extend(
 });
 export type CaseDetail = z.infer<typeof caseDetailSchema>;
 
+export const VERIFICATION_STATES = ['pending', 'verified', 'unreproduced'] as const;
+export type VerificationState = (typeof VERIFICATION_STATES)[number];
+
+/** The server's own rerun of a stored run: pending until it settles as verified (same digest and numbers) or unreproduced. */
+export const verificationSchema = z.strictObject({
+  state: z.enum(VERIFICATION_STATES),
+  /** when the server settled it; null while pending */
+  verifiedAt: instantSchema.nullable(),
+  /** engine version of the server's rerun; null while pending */
+  engineVersion: z.string().nullable(),
+  /** why the rerun could not be compared (an engine error, a result over the size limit) */
+  failure: z.string().nullable(),
+  /** what the browser posted, kept only to show an unreproduced run's mismatch */
+  claimed: z.strictObject({ summary: z.record(z.string(), scalarSchema), resultDigest: z.string(), engineVersion: z.string() }).nullable(),
+  /** the numbers of the server's comparison that differ */
+  differences: z.array(comparedNumberSchema),
+  /** sizes of the stored result (encoded text, gzip); null when none is stored */
+  resultBytes: z.strictObject({ raw: z.number().int().min(0), compressed: z.number().int().min(0) }).nullable(),
+});
+export type VerificationView = z.infer<typeof verificationSchema>;
+
 export const runSchema = z.strictObject({
   id: idSchema,
   kind: z.string(),
   /** as stored; narrowed to the engine's RunSettings where a rerun needs it */
   settings: z.looseObject({ kind: z.string() }),
+  /** the server's numbers once verified or unreproduced; what was posted while pending */
   summary: z.record(z.string(), scalarSchema),
   resultDigest: z.string(),
   engineVersion: z.string(),
+  verification: verificationSchema,
   author: personRefSchema.nullable(),
   createdAt: instantSchema,
 });

@@ -12,6 +12,7 @@ import { loadConfig, type Config } from '../../server/config';
 import { Lab, Membership, User, type LabRole } from '../../server/db/models';
 import { createSequelize } from '../../server/db/sequelize';
 import { hashPassword } from '../../server/services/passwords';
+import { RunVerifier } from '../../server/services/run-verifier';
 
 export const PASSWORD = 'correct-horse-battery';
 let passwordHash: Promise<string> | undefined;
@@ -20,6 +21,8 @@ export interface TestApi {
   app: Express;
   config: Config;
   sequelize: Sequelize;
+  /** reruns the runs stored through `app` (one engine thread) */
+  verifier: RunVerifier;
   /** another app (other settings) on the same connection pool; models are bound to one Sequelize per process */
   appWith(env: Record<string, string>): Express;
   close(): Promise<void>;
@@ -39,9 +42,13 @@ export function testConfig(overrides: Record<string, string> = {}): Config {
 export function startApi(options: { env?: Record<string, string> } = {}): TestApi {
   const config = testConfig(options.env);
   const sequelize = createSequelize(config.databaseUrl, { poolMax: 4 });
-  const app = createApp({ config, sequelize, serveClient: false, checkResponses: true });
-  const appWith = (env: Record<string, string>) => createApp({ config: testConfig({ ...options.env, ...env }), sequelize, serveClient: false, checkResponses: true });
-  return { app, config, sequelize, appWith, close: () => sequelize.close() };
+  const verifier = new RunVerifier({ threads: 1 });
+  const app = createApp({ config, sequelize, serveClient: false, checkResponses: true, verifier });
+  const appWith = (env: Record<string, string>) => createApp({ config: testConfig({ ...options.env, ...env }), sequelize, serveClient: false, checkResponses: true, verifier });
+  return { app, config, sequelize, verifier, appWith, close: async () => {
+    await verifier.stop();
+    await sequelize.close();
+  } };
 }
 
 /** A unique address per call, so test files never collide in the shared database. */
