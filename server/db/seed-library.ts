@@ -9,7 +9,7 @@
  */
 import type { Sequelize } from 'sequelize';
 import { DEMO_RIGS, demoRigCase, templateCase, type CaseParams } from '../../shared/case';
-import { computeRun, makeRunRecord, recheckRun, type RunRecord } from '../../shared/engine/run-record';
+import { computeRun, defaultRunSettings, makeRunRecord, type RunSettings } from '../../shared/engine/run-record';
 import { config } from '../config';
 import { applyFit } from '../../shared/engine/apply-fit';
 import { fitFreeSwing } from '../../shared/engine/fit';
@@ -17,7 +17,8 @@ import { syntheticTrace, traceCsv } from '../../shared/engine/synthetic-trace';
 import { parseTraceCsv } from '../services/bench-csv';
 import { uploadTrace } from '../services/bench-trace-service';
 import type { Actor, CaseAccess } from '../services/case-access';
-import { addComment, audit, createCase, revisionDetail, saveRevision, storeRun } from '../services/case-service';
+import { addComment, audit, createCase, saveRevision, storeRun } from '../services/case-service';
+import { settleRun } from '../services/run-verifier';
 import { recordRecheck, requestRecheck } from '../services/recheck-service';
 import { hashToken } from '../services/tokens';
 import { CaseLink, CaseRecord, Membership, Revision, User, type LabRole } from './models';
@@ -37,6 +38,8 @@ interface DemoCase {
   /** a free swing and a driven trace, and a revision with the free swing's fit applied */
   fittedTraces?: boolean;
   link?: boolean;
+  /** also store a drive-amplitude sweep (default settings) on the last revision listed above */
+  sweep?: boolean;
 }
 
 function variant(params: CaseParams, change: (p: CaseParams) => void): CaseParams {
@@ -101,6 +104,7 @@ function demoCases(): DemoCase[] {
       author: 'analyst',
       revisions: [{ params: teaching, note: 'The textbook case: 20 cm, 10 mm at 40 Hz.' }],
       fittedTraces: true,
+      sweep: true,
     },
   ];
 }
@@ -128,8 +132,14 @@ export function syntheticSwingCsv(base: CaseParams): string {
   return `${lines.join('\n')}\n`;
 }
 
-function motionRecord(params: CaseParams): RunRecord {
-  return makeRunRecord(params, { kind: 'motion' }, computeRun(params, { kind: 'motion' }));
+/**
+ * Stores a run computed here and verifies it at once: the seed is the server's own engine, so its result is the
+ * server's rerun (run-verifier.ts settleRun), and every seeded run is `verified` with its full result stored.
+ */
+async function storeVerifiedRun(sequelize: Sequelize, actor: Actor, access: CaseAccess, number: number, params: CaseParams, settings: RunSettings): Promise<void> {
+  const result = computeRun(params, settings);
+  const run = await storeRun(sequelize, actor, access, number, makeRunRecord(params, settings, result));
+  await settleRun(run, { params, result });
 }
 
 const DEG = Math.PI / 180;
@@ -179,27 +189,20 @@ export async function seedLibrary(sequelize: Sequelize, labId: string): Promise<
     if (!first) continue;
     const detail = await createCase(sequelize, author, labId, demo.author, { title: demo.title, tags: demo.tags, params: first.params, note: first.note });
     const access = (role: LabRole): CaseAccess => ({ caseId: detail.id, labId, role, archived: false });
-    await storeRun(sequelize, author, access(demo.author), 1, motionRecord(first.params));
+    const motion: RunSettings = { kind: 'motion' };
+    await storeVerifiedRun(sequelize, author, access(demo.author), 1, first.params, motion);
     let number = 1;
     for (const next of rest) {
       await saveRevision(sequelize, author, access(demo.author), { baseRevision: number, params: next.params, note: next.note });
       number++;
-      await storeRun(sequelize, author, access(demo.author), number, motionRecord(next.params));
+      await storeVerifiedRun(sequelize, author, access(demo.author), number, next.params, motion);
     }
+    const last = rest.at(-1) ?? first;
+    if (demo.sweep) await storeVerifiedRun(sequelize, author, access(demo.author), number, last.params, defaultRunSettings('sweep', last.params));
     if (demo.recheck) {
       const reviewer = actorOf('reviewer');
       await requestRecheck(sequelize, publicUrl, author, access(demo.author), number, { reviewerId: reviewer.id, message: 'Please rerun before we order parts.' });
-      const stored = await revisionDetail(detail.id, number, {});
-      const comparisons = stored.runs.map((run) => {
-        const record = { kind: run.kind, params: stored.params, settings: run.settings, summary: run.summary, resultDigest: run.resultDigest, engineVersion: run.engineVersion };
-        const report = recheckRun(record as RunRecord);
-        return {
-          runId: run.id,
-          digestMatch: report.digestMatches,
-          numbers: report.compared.map((c) => ({ name: c.key, stored: c.stored, rerun: c.rerun, tolerance: report.relTolerance, match: c.ok })),
-        };
-      });
-      await recordRecheck(sequelize, publicUrl, reviewer, access('reviewer'), number, { verdict: demo.recheck.verdict, comment: demo.recheck.comment, comparisons });
+      await recordRecheck(sequelize, publicUrl, reviewer, access('reviewer'), number, { verdict: demo.recheck.verdict, comment: demo.recheck.comment });
     }
     for (const comment of demo.comments ?? []) {
       await addComment(sequelize, actorOf(comment.who), access(comment.who), number, comment.body);
@@ -220,7 +223,7 @@ export async function seedLibrary(sequelize: Sequelize, labId: string): Promise<
       const applied = applyFit(latest, fit, traces.swingLabel);
       await saveRevision(sequelize, author, access(demo.author), { baseRevision: number, params: applied.params, note: applied.note });
       number++;
-      await storeRun(sequelize, author, access(demo.author), number, motionRecord(applied.params));
+      await storeVerifiedRun(sequelize, author, access(demo.author), number, applied.params, motion);
     }
     if (demo.link) {
       const revision = await Revision.findOne({ where: { caseId: detail.id, number } });

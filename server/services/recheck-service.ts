@@ -9,7 +9,7 @@ import type { Config } from '../config';
 import { CaseRecord, Membership, Recheck, Revision, Run, User, type RecheckState } from '../db/models';
 import type { RecheckBody, RecheckView, RevisionDetail } from '../../shared/api';
 import type { Actor, CaseAccess } from './case-access';
-import { audit, findRevision, recheckView, revisionDetail } from './case-service';
+import { audit, findRevision, recheckView, revisionDetail, verificationsOf } from './case-service';
 import { enqueueMail } from './outbox-service';
 
 function escapeHtml(text: string): string {
@@ -26,6 +26,38 @@ async function setState(transaction: Transaction, revision: Revision, state: Rec
   if (record && record.latestRevision === revision.number) await record.update({ recheckState: state }, { transaction });
 }
 
+/** What a recheck keeps per run: the server's comparison (or why there is none). */
+interface StoredComparison extends Record<string, unknown> {
+  runId: string;
+  kind: string;
+  digestMatch: boolean;
+  reproduced: boolean;
+}
+
+/**
+ * The server's comparison of every stored run of the revision, from its own reruns (run-verifier.ts): 409
+ * no_stored_runs without a run, 409 verification_pending while a rerun is still going.
+ */
+async function serverComparisons(revision: Revision, transaction: Transaction): Promise<StoredComparison[]> {
+  const runs = await Run.findAll({ where: { revisionId: revision.id }, attributes: ['id', 'kind'], order: [['createdAt', 'ASC'], ['id', 'ASC']], transaction });
+  if (runs.length === 0) throw noStoredRuns(revision.number);
+  const verifications = await verificationsOf(runs.map((r) => r.id), transaction);
+  const pending = runs.filter((r) => !verifications.has(r.id)).length;
+  if (pending > 0) {
+    throw new AppError('verification_pending', `The server is still rerunning ${pending} of the stored runs; try again in a moment.`, 409);
+  }
+  return runs.map((run) => {
+    const v = verifications.get(run.id);
+    const base = { runId: run.id, kind: run.kind, digestMatch: false, reproduced: false };
+    if (!v?.comparison) return { ...base, numbers: [], failure: v?.failure ?? 'not reproduced' };
+    return { ...v.comparison, ...base, digestMatch: v.comparison['digestMatch'] === true, reproduced: v.state === 'verified' };
+  });
+}
+
+function noStoredRuns(number: number): AppError {
+  return new AppError('no_stored_runs', `r${number} has no stored run: store a run before asking for or giving a recheck.`, 409);
+}
+
 export async function requestRecheck(
   sequelize: Sequelize,
   config: Pick<Config, 'publicUrl'>,
@@ -36,6 +68,7 @@ export async function requestRecheck(
 ): Promise<RevisionDetail> {
   return sequelize.transaction(async (transaction) => {
     const revision = await findRevision(access.caseId, number, transaction);
+    if ((await Run.count({ where: { revisionId: revision.id }, transaction })) === 0) throw noStoredRuns(number);
     const membership = await Membership.findOne({ where: { labId: access.labId, userId: input.reviewerId }, transaction });
     if (!membership || (membership.role !== 'reviewer' && membership.role !== 'owner')) {
       throw new AppError('reviewer_not_eligible', 'The reviewer must be a member of this lab with the reviewer or owner role.', 422, 'reviewerId');
@@ -81,19 +114,26 @@ export async function recordRecheck(
   input: RecheckBody,
 ): Promise<RecheckView> {
   return sequelize.transaction(async (transaction) => {
-    const revision = await findRevision(access.caseId, number, transaction);
-    const runs = await Run.findAll({ where: { revisionId: revision.id }, attributes: ['id'], transaction });
-    const runIds = new Set(runs.map((r) => r.id));
-    input.comparisons.forEach((c, i) => {
-      if (!runIds.has(c.runId)) throw new AppError('run_not_found', `comparisons.${i}.runId is not a run of r${number}.`, 422, `comparisons.${i}.runId`);
-    });
-    if (input.verdict === 'confirmed') {
-      input.comparisons.forEach((c, i) => {
-        const j = c.numbers.findIndex((n) => !n.match);
-        if (j >= 0) {
-          throw new AppError('verdict_contradicts_numbers', `A number did not match (${c.numbers[j]?.name}); a recheck with a mismatch cannot be confirmed.`, 422, `comparisons.${i}.numbers.${j}.match`);
-        }
-      });
+    const revision = await Revision.findOne({ where: { caseId: access.caseId, number }, lock: transaction.LOCK.UPDATE, transaction });
+    if (!revision) throw new AppError('revision_not_found', `This case has no revision r${number}.`, 404, 'revision');
+    if (revision.recheckState !== 'awaiting-recheck') {
+      throw new AppError('recheck_not_requested', `Nobody asked for a recheck of r${number} (it is ${revision.recheckState}); a verdict needs a request first.`, 409);
+    }
+    if (revision.authorId === actor.id) {
+      throw new AppError('reviewer_is_author', 'You saved this revision; someone else must recheck it.', 403);
+    }
+    if (revision.recheckReviewerId && revision.recheckReviewerId !== actor.id) {
+      throw new AppError('not_requested_reviewer', 'Another reviewer was asked to recheck this revision.', 403);
+    }
+    const comparisons = await serverComparisons(revision, transaction);
+    const differs = comparisons.find((c) => !c.reproduced);
+    if (input.verdict === 'confirmed' && differs) {
+      throw new AppError(
+        'comparison_differs',
+        `The server's rerun of the ${differs.kind} run does not reproduce it; a recheck that differs can only be disputed.`,
+        409,
+        'verdict',
+      );
     }
     const record = await CaseRecord.findByPk(access.caseId, { transaction });
     if (!record) throw new AppError('case_not_found', 'No such case.', 404, 'caseId');
@@ -102,8 +142,8 @@ export async function recordRecheck(
         revisionId: revision.id,
         reviewerId: actor.id,
         state: input.verdict,
-        digestMatch: input.comparisons.every((c) => c.digestMatch),
-        comparisons: input.comparisons,
+        digestMatch: comparisons.every((c) => c.digestMatch),
+        comparisons,
         comment: input.comment,
       },
       { transaction },

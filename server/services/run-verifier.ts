@@ -24,7 +24,6 @@ import { compressResult } from './result-store';
 interface RunToVerify {
   id: string;
   kind: string;
-  revisionId: string;
   settings: Record<string, unknown>;
   summary: Record<string, unknown>;
   resultDigest: string;

@@ -29,12 +29,23 @@ interface RouteRow {
   success: number;
   /** on lab routes a non-member gets the foundation's 403 */
   outsider: 403 | 404;
-  call: () => Promise<Call>;
+  call: (who: Who | 'nobody') => Promise<Call>;
 }
 
 async function latest(): Promise<number> {
   const res = await client(api.app, fx.tokens.owner).get(`/api/cases/${caseId}`);
   return res.body.latestRevision as number;
+}
+
+/** A new revision by the analyst with a verified run, awaiting a recheck by `reviewer`; returns its number. */
+async function awaitingRecheck(reviewer: 'owner' | 'reviewer'): Promise<number> {
+  const analyst = client(api.app, fx.tokens.analyst);
+  const saved = await analyst.post(`/api/cases/${caseId}/revisions`, { baseRevision: await latest(), params });
+  const rev = saved.body.number as number;
+  await analyst.post(`/api/cases/${caseId}/revisions/${rev}/runs`, motionRun(params));
+  await api.verifier.whenIdle();
+  await analyst.post(`/api/cases/${caseId}/revisions/${rev}/recheck-request`, { reviewerId: fx.people[reviewer].id });
+  return rev;
 }
 
 async function freshLink(): Promise<string> {
@@ -104,11 +115,18 @@ const ROWS: RouteRow[] = [
     allowed: ['owner', 'reviewer'],
     success: 201,
     outsider: 404,
-    call: async () => ({
+    call: async (who) => ({
       method: 'post',
-      url: `/api/cases/${caseId}/revisions/1/rechecks`,
-      body: { verdict: 'disputed', comment: 'matrix dispute', comparisons: [{ runId, digestMatch: false, numbers: [] }] },
+      url: `/api/cases/${caseId}/revisions/${await awaitingRecheck(who === 'owner' ? 'owner' : 'reviewer')}/rechecks`,
+      body: { verdict: 'disputed', comment: 'matrix dispute' },
     }),
+  },
+  {
+    name: 'GET run result',
+    allowed: ALL,
+    success: 200,
+    outsider: 404,
+    call: async () => ({ method: 'get', url: `/api/cases/${caseId}/revisions/1/runs/${runId}/result` }),
   },
   { name: 'GET links', allowed: ALL, success: 200, outsider: 404, call: async () => ({ method: 'get', url: `/api/cases/${caseId}/links` }) },
   { name: 'POST link', allowed: AUTHORS, success: 201, outsider: 404, call: async () => ({ method: 'post', url: `/api/cases/${caseId}/links`, body: { revision: 1, expiresInDays: 2 } }) },
@@ -139,6 +157,7 @@ beforeAll(async () => {
   caseId = await createCaseVia(api.app, fx.tokens.owner, fx.lab.id, { title: 'Matrix case', params });
   const run = await client(api.app, fx.tokens.owner).post(`/api/cases/${caseId}/revisions/1/runs`, motionRun(params));
   runId = run.body.id;
+  await api.verifier.whenIdle();
   adminToken = await tokenFor(api.app, await createUser('site-admin', { isSiteAdmin: true }));
 });
 afterAll(() => api.close());
@@ -147,7 +166,7 @@ const cells = ROWS.flatMap((row) => [...ROLES, 'outsider' as const].map((who) =>
 
 describe('role matrix of the case library', () => {
   it.each(cells.map(({ row, who }) => [row.name, who, row] as const))('%s as %s', async (_name, who: Who, row) => {
-    const res = await send(fx.tokens[who], await row.call());
+    const res = await send(fx.tokens[who], await row.call(who));
     if (who !== 'outsider' && row.allowed.includes(who)) {
       expect(res.status, JSON.stringify(res.body)).toBe(row.success);
     } else if (who === 'outsider') {
@@ -160,7 +179,7 @@ describe('role matrix of the case library', () => {
   });
 
   it.each(ROWS.map((row) => [row.name, row] as const))('%s without a token is 401', async (_name, row) => {
-    const res = await send(undefined, await row.call());
+    const res = await send(undefined, await row.call('nobody'));
     expect(res.status).toBe(401);
   });
 
