@@ -173,6 +173,8 @@ describe('case library', () => {
     await expect.poll(() => page.locator('qp-comparison-table tr.mismatch').count()).toBe(0);
     expect(await page.locator('qp-comparison-table tbody tr').count()).toBeGreaterThan(5);
     await page.getByLabel('Comment').fill('Reran motion here: identical digest.');
+    // The server's own rerun decides whether Confirm is open; the page looks again until it has verified the run.
+    await page.locator('.server-run.ok').waitFor({ timeout: 90_000 });
     await screenshot(page, 'recheck-desktop');
     await page.getByRole('button', { name: 'Confirm' }).click();
     await page.waitForURL(new RegExp(`/cases/${caseId}/r/2/history$`));

@@ -60,10 +60,10 @@ export interface NewCase {
   readonly note?: string;
 }
 
+/** A verdict: the comparison it stands on is the server's own (its rerun of every stored run). */
 export interface RecheckSubmission {
   readonly verdict: RecheckVerdict;
   readonly comment: string;
-  readonly comparisons: RunComparisonView[];
 }
 
 const enc = encodeURIComponent;

@@ -50,14 +50,30 @@ export interface CaseDetail {
   readonly revisions: RevisionSummary[];
 }
 
+export type VerificationState = 'pending' | 'verified' | 'unreproduced';
+
+/** The server's own rerun of a stored run: `verified` (same digest, same numbers) or `unreproduced`. */
+export interface VerificationView {
+  readonly state: VerificationState;
+  readonly verifiedAt: string | null;
+  /** Why the server could not compare (an engine error, a result over the size limit). */
+  readonly failure: string | null;
+  /** The numbers of the server's comparison that differ. */
+  readonly differences: ComparedNumberView[];
+  /** A full result is stored and can be opened without computing. */
+  readonly hasResult: boolean;
+}
+
 export interface RunView {
   readonly id: string;
   readonly kind: string;
   /** As stored; narrowed to the engine's RunSettings where a rerun needs it. */
   readonly settings: unknown;
+  /** The server's numbers once verified or unreproduced; what was posted while pending. */
   readonly summary: RunSummary;
   readonly resultDigest: string;
   readonly engineVersion: string;
+  readonly verification: VerificationView;
   readonly author: PersonRef | null;
   readonly createdAt: string;
 }
@@ -320,8 +336,21 @@ export function parseRunView(value: unknown): RunView {
     summary,
     resultDigest: text(value['resultDigest']),
     engineVersion: text(value['engineVersion']),
+    verification: parseVerification(value['verification']),
     author: optionalPerson(value['author']),
     createdAt: date(value['createdAt']),
+  };
+}
+
+function parseVerification(value: unknown): VerificationView {
+  const v = isRecord(value) ? value : {};
+  const state = v['state'] === 'verified' || v['state'] === 'unreproduced' ? v['state'] : 'pending';
+  return {
+    state,
+    verifiedAt: typeof v['verifiedAt'] === 'string' ? v['verifiedAt'] : null,
+    failure: typeof v['failure'] === 'string' ? v['failure'] : null,
+    differences: list(v['differences'], parseComparedNumber),
+    hasResult: isRecord(v['resultBytes']),
   };
 }
 

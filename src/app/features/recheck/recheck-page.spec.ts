@@ -28,18 +28,25 @@ const PARAMS = (() => {
 
 function storedRuns(): object[] {
   const record = makeRunRecord(PARAMS, { kind: 'motion' }, computeRun(PARAMS, { kind: 'motion' }));
-  const view = (id: string, summary: object) => ({
+  const maxDeviation = Number(record.summary['maxDeviation']);
+  const view = (id: string, summary: object, verification: object) => ({
     id,
     kind: 'motion',
     settings: record.settings,
     summary,
     resultDigest: record.resultDigest,
     engineVersion: record.engineVersion,
+    verification,
     author: { id: 'u2', name: 'Ada Analyst' },
     createdAt: '2026-11-30T10:00:00.000Z',
   });
-  const maxDeviation = Number(record.summary['maxDeviation']);
-  return [view('run-good', record.summary), view('run-edited', { ...record.summary, maxDeviation: maxDeviation * 1.01 })];
+  const verified = { state: 'verified', verifiedAt: '2026-11-30T10:00:05.000Z', failure: null, claimed: null, differences: [], resultBytes: { raw: 9000, compressed: 4000 } };
+  const unreproduced = {
+    ...verified,
+    state: 'unreproduced',
+    differences: [{ name: 'maxDeviation', stored: maxDeviation * 1.01, rerun: maxDeviation, difference: maxDeviation * 0.01, tolerance: maxDeviation * 1e-6, match: false }],
+  };
+  return [view('run-good', record.summary, verified), view('run-edited', { ...record.summary, maxDeviation: maxDeviation * 1.01 }, unreproduced)];
 }
 
 describe('RecheckPage', () => {
@@ -83,20 +90,14 @@ describe('RecheckPage', () => {
     return Array.from(host.querySelectorAll('.run-state'), (e) => e.textContent?.trim() ?? '');
   }
 
-  it('reruns every stored run, shows each comparison and posts a dispute with them', async () => {
+  it('shows the server\'s verdict on each run, refuses a confirm it could not reproduce, and posts only verdict and comment', () => {
     expect(host.textContent).toContain('Please check r2');
-    host.querySelector<HTMLButtonElement>('.rerun-button')?.click();
-    await vi.waitFor(
-      () => {
-        fixture.detectChanges();
-        expect(host.querySelectorAll('qp-comparison-table').length).toBe(2);
-      },
-      { timeout: 20_000, interval: 50 },
-    );
-    expect(panelStates()).toEqual(['same numbers, same digest', '1 number outside tolerance']);
-    const mismatched = Array.from(host.querySelectorAll('tr.mismatch th'), (e) => e.textContent?.trim());
-    expect(mismatched).toEqual(['maxDeviation']);
-    expect(host.querySelector('.summary')?.textContent).toContain('Some reruns do not match');
+    const states = Array.from(host.querySelectorAll('.server-run .state'), (e) => e.textContent?.replace(/\s+/g, ' ').trim() ?? '');
+    expect(states[0]).toContain('Verified');
+    expect(states[1]).toContain('Unreproduced: 1 number(s) differ.');
+    expect(Array.from(host.querySelectorAll('.server-run tr.mismatch th'), (e) => e.textContent?.trim())).toEqual(['maxDeviation']);
+    expect(host.querySelector('.summary')?.textContent).toContain('did not reproduce every stored run');
+    expect(host.querySelector<HTMLButtonElement>('.confirm')?.disabled).toBe(true);
 
     host.querySelector<HTMLButtonElement>('.dispute')?.click();
     fixture.detectChanges();
@@ -109,11 +110,19 @@ describe('RecheckPage', () => {
     fixture.detectChanges();
     host.querySelector<HTMLButtonElement>('.dispute')?.click();
     const posted = backend.expectOne('/api/cases/c1/revisions/2/rechecks');
-    const body = posted.request.body as { verdict: string; comment: string; comparisons: { runId: string; digestMatch: boolean; numbers: { name: string; match: boolean }[] }[] };
-    expect(body.verdict).toBe('disputed');
-    expect(body.comment).toBe('maxDeviation moved by 1 %');
-    expect(body.comparisons.map((c) => [c.runId, c.digestMatch])).toEqual([['run-good', true], ['run-edited', true]]);
-    expect(body.comparisons[1].numbers.filter((n) => !n.match).map((n) => n.name)).toEqual(['maxDeviation']);
+    expect(posted.request.body).toEqual({ verdict: 'disputed', comment: 'maxDeviation moved by 1 %' });
     posted.flush({ id: 'rc1', reviewer: { id: 'u3', name: 'Rui Reviewer' }, state: 'disputed', digestMatch: true, comparisons: [], comment: '', createdAt: '' });
+  });
+
+  it('still reruns every stored run in this browser on request and shows each comparison', async () => {
+    host.querySelector<HTMLButtonElement>('.rerun-button')?.click();
+    await vi.waitFor(
+      () => {
+        fixture.detectChanges();
+        expect(host.querySelectorAll('qp-rerun-panel qp-comparison-table').length).toBe(2);
+      },
+      { timeout: 20_000, interval: 50 },
+    );
+    expect(panelStates()).toEqual(['same numbers, same digest', '1 number outside tolerance']);
   }, 30_000);
 });

@@ -1,4 +1,5 @@
-import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
+import { DatePipe } from '@angular/common';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal } from '@angular/core';
 import { rxResource } from '@angular/core/rxjs-interop';
 import { FormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
@@ -14,13 +15,20 @@ import { describeError } from '../../core/error-message';
 import { LibraryApi } from '../library/library-api';
 import type { RecheckVerdict } from '../library/library-types';
 import { RecheckChip } from './recheck-chip';
-import { comparisonPayload, type RunComparison } from '../../../../shared/engine/compare-runs';
+import { ComparisonTable } from './comparison-table';
 import { RerunPanel } from './rerun-panel';
 
-/** The reviewer's view of one revision: rerun every stored run here, then confirm or dispute with a comment. */
+const PENDING_POLL_MS = 2000;
+
+/**
+ * The reviewer's view of one revision: the server's own rerun of every stored run (verified or unreproduced, with
+ * the numbers that differ), an optional rerun in this browser, then a verdict and a comment. The server decides the
+ * comparison; the page sends only the verdict and the comment.
+ */
 @Component({
   selector: 'qp-recheck-page',
   imports: [
+    DatePipe,
     FormsModule,
     RouterLink,
     MatButtonModule,
@@ -28,6 +36,7 @@ import { RerunPanel } from './rerun-panel';
     MatIconModule,
     MatInputModule,
     MatProgressBarModule,
+    ComparisonTable,
     RecheckChip,
     RerunPanel,
   ],
@@ -61,8 +70,10 @@ export class RecheckPage {
     return role === 'reviewer' || role === 'owner';
   });
 
-  protected readonly comparisons = signal<RunComparison[] | null>(null);
-  protected readonly allMatch = computed(() => this.comparisons()?.every((c) => c.match) ?? false);
+  protected readonly runs = computed(() => this.revisionDetail()?.runs ?? []);
+  protected readonly pending = computed(() => this.runs().filter((r) => r.verification.state === 'pending').length);
+  protected readonly allVerified = computed(() => this.runs().length > 0 && this.runs().every((r) => r.verification.state === 'verified'));
+  protected readonly awaiting = computed(() => this.revisionDetail()?.recheckState === 'awaiting-recheck');
   protected readonly comment = signal('');
   protected readonly submitting = signal(false);
   protected readonly submitError = signal<string | null>(null);
@@ -71,14 +82,16 @@ export class RecheckPage {
     return ['/cases', this.caseId(), 'r', String(this.revision()), 'history'];
   }
 
-  protected takeComparisons(comparisons: RunComparison[]): void {
-    this.comparisons.set(comparisons);
-    this.submitError.set(null);
+  constructor() {
+    // While the server is still rerunning a stored run, look again every few seconds.
+    effect((onCleanup) => {
+      if (this.pending() === 0 || this.loaded.isLoading()) return;
+      const timer = setTimeout(() => this.loaded.reload(), PENDING_POLL_MS);
+      onCleanup(() => clearTimeout(timer));
+    });
   }
 
   protected submit(verdict: RecheckVerdict): void {
-    const comparisons = this.comparisons();
-    if (!comparisons) return;
     const comment = this.comment().trim();
     if (verdict === 'disputed' && comment === '') {
       this.submitError.set('Say why you dispute the numbers: the analyst reads your comment.');
@@ -87,7 +100,7 @@ export class RecheckPage {
     this.submitting.set(true);
     this.submitError.set(null);
     this.api
-      .submitRecheck(this.caseId(), this.revision(), { verdict, comment, comparisons: comparisons.map(comparisonPayload) })
+      .submitRecheck(this.caseId(), this.revision(), { verdict, comment })
       .subscribe({
         next: () => {
           this.submitting.set(false);
