@@ -301,7 +301,7 @@ export async function duplicateCase(
 
 function verificationView(r: Run, v: RunVerification | undefined): VerificationView {
   if (!v) return { state: 'pending', verifiedAt: null, engineVersion: null, failure: null, claimed: null, differences: [], resultBytes: null };
-  const numbers = (v.comparison?.['numbers'] ?? []) as Array<{ match?: unknown }>;
+  const numbers = (v.comparison?.['numbers'] ?? []) as VerificationView['differences'];
   return {
     state: v.state,
     verifiedAt: v.createdAt.toISOString(),
@@ -496,7 +496,7 @@ export interface StoredResultBytes {
 export async function storedResult(caseId: string, number: number, runId: string): Promise<StoredResultBytes> {
   const revision = await findRevision(caseId, number);
   const run = await Run.findOne({ where: { id: runId, revisionId: revision.id }, attributes: ['id'] });
-  if (!run) throw new AppError('run_not_found', `r${number} has no such run.`, 404, 'runId');
+  if (!run) throw new AppError('stored_run_not_found', `r${number} has no such run.`, 404, 'runId');
   const v = await RunVerification.findByPk(runId);
   if (!v) throw new AppError('result_pending', 'The server is still rerunning this run; its stored result appears once it is verified.', 409);
   if (!v.encoding || !v.compressed) throw new AppError('result_not_stored', `The server could not reproduce this run${v.failure ? `: ${v.failure}` : ''}.`, 404);

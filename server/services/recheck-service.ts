@@ -7,7 +7,7 @@ import type { Sequelize, Transaction } from 'sequelize';
 import { AppError } from '../app-error';
 import type { Config } from '../config';
 import { CaseRecord, Membership, Recheck, Revision, Run, User, type RecheckState } from '../db/models';
-import type { RecheckBody, RecheckView, RevisionDetail } from '../../shared/api';
+import type { RecheckBody, RecheckView, RevisionDetail, RunComparison } from '../../shared/api';
 import type { Actor, CaseAccess } from './case-access';
 import { audit, findRevision, recheckView, revisionDetail, verificationsOf } from './case-service';
 import { enqueueMail } from './outbox-service';
@@ -27,12 +27,7 @@ async function setState(transaction: Transaction, revision: Revision, state: Rec
 }
 
 /** What a recheck keeps per run: the server's comparison (or why there is none). */
-interface StoredComparison extends Record<string, unknown> {
-  runId: string;
-  kind: string;
-  digestMatch: boolean;
-  reproduced: boolean;
-}
+type StoredComparison = RunComparison & { kind: string; reproduced: boolean };
 
 /**
  * The server's comparison of every stored run of the revision, from its own reruns (run-verifier.ts): 409
@@ -50,7 +45,7 @@ async function serverComparisons(revision: Revision, transaction: Transaction): 
     const v = verifications.get(run.id);
     const base = { runId: run.id, kind: run.kind, digestMatch: false, reproduced: false };
     if (!v?.comparison) return { ...base, numbers: [], failure: v?.failure ?? 'not reproduced' };
-    return { ...v.comparison, ...base, digestMatch: v.comparison['digestMatch'] === true, reproduced: v.state === 'verified' };
+    return { ...v.comparison, ...base, digestMatch: v.comparison.digestMatch, reproduced: v.state === 'verified' };
   });
 }
 

@@ -7,6 +7,7 @@ import { Lab, RunVerification } from '../db/models';
 import { caseReportDocument } from '../report/case-report';
 import { renderPdf } from '../report/render-pdf';
 import { readLink } from './case-link-service';
+import type { RevisionDetail } from '../../shared/api';
 import type { CaseParams } from '../../shared/case';
 import { revisionDetail } from './case-service';
 import { decompressResult } from './result-store';

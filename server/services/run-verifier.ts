@@ -56,10 +56,10 @@ export async function settleRun(run: RunToVerify, outcome: { params: unknown; re
     row = {
       runId: run.id,
       state: comparison.reproduced && stored ? 'verified' : 'unreproduced',
-      summary: JSON.parse(JSON.stringify(record.summary, (_k, v: unknown) => (typeof v === 'number' && !Number.isFinite(v) ? String(v) : v))) as Record<string, unknown>,
+      summary: JSON.parse(JSON.stringify(record.summary, (_k, v: unknown) => (typeof v === 'number' && !Number.isFinite(v) ? String(v) : v))) as RunSummary,
       resultDigest: record.resultDigest,
       engineVersion: record.engineVersion,
-      comparison: comparisonPayload(comparison) as unknown as Record<string, unknown>,
+      comparison: comparisonPayload(comparison),
       failure,
       encoding: stored?.encoding ?? null,
       compressed: stored?.compressed ?? null,

@@ -147,7 +147,7 @@ describe('the server reproduces every stored run', () => {
     const run = await settled(other, (await post(other, motionRun(params))).id);
     const res = await as('viewer').get(`/api/cases/${id}/revisions/1/runs/${run.id}/result`);
     expect(res.status).toBe(404);
-    expect(errorOf(res).code).toBe('run_not_found');
+    expect(errorOf(res).code).toBe('stored_run_not_found');
     await expect(api.sequelize.query(`UPDATE run_results SET state = 'verified' WHERE run_id = '${run.id}'`)).rejects.toThrow(/append-only/);
     await expect(api.sequelize.query(`DELETE FROM run_results WHERE run_id = '${run.id}'`)).rejects.toThrow(/append-only/);
     expect(await Run.count({ where: { id: run.id } })).toBe(1);

@@ -6,6 +6,7 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import type { RunComparison } from '../../../shared/api';
 
 export const VERIFICATION_STATES = ['pending', 'verified', 'unreproduced'] as const;
 export type VerificationState = (typeof VERIFICATION_STATES)[number];
@@ -21,10 +22,10 @@ const appendOnly = () => {
 export class RunVerification extends Model<InferAttributes<RunVerification>, InferCreationAttributes<RunVerification>> {
   declare runId: string;
   declare state: Exclude<VerificationState, 'pending'>;
-  declare summary: Record<string, unknown> | null;
+  declare summary: Record<string, number | string | boolean | null> | null;
   declare resultDigest: string | null;
   declare engineVersion: string;
-  declare comparison: Record<string, unknown> | null;
+  declare comparison: RunComparison | null;
   declare failure: string | null;
   declare encoding: string | null;
   declare compressed: Buffer | null;
