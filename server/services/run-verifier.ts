@@ -8,14 +8,15 @@
  * The queue lives in memory only: at start `resumePending()` queues every run that still has no verification, so a
  * restart loses nothing. One run is verified at a time; its sweep, chart or map chunks spread over the threads.
  */
+import { last, lastValueFrom } from 'rxjs';
 import { UniqueConstraintError, type InferCreationAttributes } from 'sequelize';
 import { parseCase } from '../../shared/case/validate';
-import { createNodeEnginePool } from '../../shared/compute/node-pool';
 import type { WorkerPool } from '../../shared/compute/worker-pool';
 import { compareRun, comparisonPayload } from '../../shared/engine/compare-runs';
+import { parseRunSettingsFor } from '../../shared/engine/run-kinds';
 import { makeRunRecord, type RunResult, type RunSettings, type RunSummary } from '../../shared/engine/run-record';
 import { ENGINE_VERSION } from '../../shared/engine/version';
-import { computeRunInPool } from '../compute/pool-run';
+import { createEnginePool } from '../compute/engine-pool';
 import { Revision, Run, RunVerification } from '../db/models';
 import type { Logger } from '../logger';
 import { compressResult } from './result-store';
@@ -147,7 +148,7 @@ export class RunVerifier {
 
   private enginePool(): WorkerPool {
     const threads = this.options.threads ?? 1;
-    this.pool ??= this.options.createPool ? this.options.createPool(threads) : createNodeEnginePool(threads);
+    this.pool ??= this.options.createPool ? this.options.createPool(threads) : createEnginePool(threads);
     return this.pool;
   }
 
@@ -162,8 +163,11 @@ export class RunVerifier {
       outcome = { failure: 'the revision parameters no longer validate' };
     } else {
       try {
-        const result = await computeRunInPool(this.enginePool(), parsed.value, run.settings as unknown as RunSettings);
-        outcome = { params: parsed.value, result };
+        const settings = parseRunSettingsFor(parsed.value, run.settings);
+        if (!settings.ok) throw new Error(`settings.${settings.field}: ${settings.message}`);
+        const result = await lastValueFrom(this.enginePool().run(parsed.value, settings.value).pipe(last()));
+        if (result.type !== 'result') throw new Error('the engine pool ended without a result');
+        outcome = { params: parsed.value, result: result.value };
       } catch (error: unknown) {
         if (this.stopped) return;
         outcome = { failure: error instanceof Error ? error.message : String(error) };
