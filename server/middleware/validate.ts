@@ -6,10 +6,6 @@ export function parseInput<S extends z.ZodType>(schema: S, input: unknown, what 
   const result = schema.safeParse(input);
   if (result.success) return result.data;
   const issue = result.error.issues[0];
-  if (issue?.code === 'unrecognized_keys') {
-    const key = [...issue.path, issue.keys[0] ?? ''].join('.');
-    throw new AppError('unexpected_field', `${key} is not accepted here.`, 422, key);
-  }
   const field = issue && issue.path.length > 0 ? issue.path.join('.') : undefined;
   if (!field && (input === undefined || input === null || typeof input !== 'object' || Array.isArray(input))) {
     throw new AppError('invalid_body', `The request ${what} must be a JSON object.`, 400);

@@ -5,6 +5,7 @@ import {
   caseListQuerySchema, commentBodySchema, createCaseBodySchema, duplicateCaseBodySchema, pageQuerySchema, patchCaseBodySchema, recheckBodySchema,
   recheckRequestBodySchema, revisionParamSchema, runParamSchema, saveRevisionBodySchema, storeRunBodySchema,
 } from '../../shared/api';
+import { AppError } from '../app-error';
 import type { Config } from '../config';
 import { currentUser } from '../middleware/auth';
 import { caseAccess } from '../middleware/case-access';
@@ -137,6 +138,11 @@ export function recheckRequestRoute(sequelize: Sequelize, config: Config): Reque
 export function recheckRoute(sequelize: Sequelize, config: Config): RequestHandler {
   return async (req, res) => {
     const { rev } = parseInput(revisionParamSchema, req.params, 'path');
+    // The comparison is the server's own: a body that brings match flags or comparisons is refused, not ignored.
+    const extra = typeof req.body === 'object' && req.body !== null && !Array.isArray(req.body) ? Object.keys(req.body as object).find((key) => key !== 'verdict' && key !== 'comment') : undefined;
+    if (extra !== undefined) {
+      throw new AppError('unexpected_field', `${extra} is not accepted: the server compares the stored runs itself; send only verdict and comment.`, 422, extra);
+    }
     const body = parseInput(recheckBodySchema, req.body);
     res.status(201).json(await recordRecheck(sequelize, config, actorOf(req), caseAccess(req), rev, body));
   };

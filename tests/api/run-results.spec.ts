@@ -124,7 +124,7 @@ describe('the server reproduces every stored run', () => {
     expect(res.status).toBe(422);
     expect(errorOf(res)).toMatchObject({ code: 'settings_too_large', field: 'settings.spec.steps' });
     const axis = { field: 'drive.frequency', from: 10, to: 50, count: RUN_SETTINGS_LIMITS.gridCount + 1 };
-    const chart = { ...motionRun(params), kind: 'chart', settings: { kind: 'chart', grid: { x: { ...axis, count: 10 }, y: axis } } };
+    const chart = { ...motionRun(params), kind: 'chart', settings: { kind: 'chart', grid: { x: { ...axis, field: 'drive.amplitude', from: 0.001, to: 0.01, count: 10 }, y: axis } } };
     const res2 = await as('analyst').post(`/api/cases/${id}/revisions/1/runs`, chart);
     expect(errorOf(res2)).toMatchObject({ code: 'settings_too_large', field: 'settings.grid.y.count' });
   });
