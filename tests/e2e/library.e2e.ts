@@ -1,5 +1,6 @@
 /**
- * The case library in a real browser: an analyst edits a stored case, saves r2 with a run and asks for a recheck; the
+ * The case library in a real browser: an analyst edits a stored case, saves r2 with a note and a run, compares the
+ * results of r1 and r2, downloads the case report and asks for a recheck; the
  * reviewer reruns it in their browser and confirms; both notices reach the local mail sink; a visitor opens a case
  * link read-only, reruns it and cannot save; a revoked link says so. Screenshots at desktop and phone sizes.
  */
@@ -7,8 +8,13 @@ import { Client } from 'pg';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 
+import { CAUTION_DEFERRAL } from '../../shared/case/caution';
+import { formatFrequency, formatLength, formatPercent } from '../../shared/case/display';
+import type { CaseParams } from '../../shared/case/case-schema';
 import { demoRigCase } from '../../shared/case/templates';
-import { mkdirSync } from 'node:fs';
+import { computeRun, makeRunRecord, type RunSettings } from '../../shared/engine/run-record';
+import { readFileSync, mkdirSync } from 'node:fs';
+import { pdfText } from '../support/pdf-text';
 import { join, resolve } from 'node:path';
 
 import { DESKTOP, NARROW, launchBrowser, type TestBrowser } from './support/browser';
@@ -34,6 +40,7 @@ let server: E2eServer;
 let browser: TestBrowser;
 let caseId = '';
 let visitorUrl = '';
+let r1Margins: ReturnType<typeof engineRun>;
 
 async function api<T>(path: string, init: { token?: string; method?: string; body?: unknown } = {}): Promise<{ status: number; body: T }> {
   const response = await fetch(`${server.baseUrl}${path}`, {
@@ -95,7 +102,16 @@ beforeAll(async () => {
   });
   expect(created.status).toBe(201);
   caseId = created.body.id;
+  // r1 keeps a motion run and Floquet margins, so History can compare its results with r2's and its report has margins.
+  expect((await api(`/api/cases/${caseId}/revisions/1/runs`, { token: analyst, body: engineRun(params, { kind: 'motion' }) })).status).toBe(201);
+  r1Margins = engineRun(params, { kind: 'margins', relTolerance: 1e-6 });
+  expect((await api(`/api/cases/${caseId}/revisions/1/runs`, { token: analyst, body: r1Margins })).status).toBe(201);
 }, 300_000);
+
+/** A run record computed by the engine here, as the browser would post it. */
+function engineRun(params: CaseParams, settings: RunSettings) {
+  return makeRunRecord(params, settings, computeRun(params, settings));
+}
 
 afterAll(async () => {
   await browser?.close();
@@ -120,15 +136,52 @@ describe('case library', () => {
     await page.getByTestId('run-motion').click();
     await expect.poll(() => page.getByTestId('outcome').textContent(), { timeout: 60_000 }).toBe('holds upright');
     await page.getByRole('button', { name: 'Save' }).click();
+    await page.getByTestId('revision-note').fill('Amplitude 9 mm');
+    await page.getByTestId('save-revision').click();
     await page.waitForURL(new RegExp(`/cases/${caseId}/r/2/motion$`));
 
     await openTab(page, 'History');
-    const changed = page.locator('.diff-table tr.changed');
+    await page.locator('.meta .note', { hasText: 'Amplitude 9 mm' }).waitFor();
+    const changed = page.locator('.diff-table:not(.results-diff) tr.changed');
     await expect.poll(() => changed.count()).toBe(1);
     expect(await changed.locator('.path').textContent()).toContain('drive.amplitude');
     expect((await changed.locator('.left').textContent())?.trim()).toBe('8');
     expect((await changed.locator('.right').textContent())?.trim()).toBe('9');
     await expect.poll(() => page.locator('qp-stored-runs-table .kind').allTextContents()).toEqual(['motion']);
+
+    // Results of r1 and r2 side by side: the motion of both, the margins only in r1.
+    const results = page.locator('.results-diff tbody tr');
+    await expect.poll(() => results.count()).toBeGreaterThan(4);
+    const outcome = results.filter({ hasText: 'Outcome' });
+    expect((await outcome.locator('.left').textContent())?.trim()).toBe('holds upright');
+    expect((await outcome.locator('.right').textContent())?.trim()).toBe('holds upright');
+    const slow = results.filter({ hasText: 'Slow frequency' });
+    expect(await slow.locator('.left').textContent()).toMatch(/^\s*([\d.]+ Hz|none found)\s*$/);
+    expect(await slow.locator('.change').textContent()).toMatch(/[↑↓=≠]/);
+    const margin = results.filter({ hasText: 'Margin of the upright' });
+    expect((await margin.locator('.left').textContent())?.trim()).toBe(formatPercent(r1Margins.summary['marginPercent'] as number));
+    expect((await margin.locator('.change').textContent())?.trim()).toBe('not in the second');
+    await screenshot(page, 'history-results-desktop');
+
+    const report = async (): Promise<{ name: string; text: string }> => {
+      const [download] = await Promise.all([page.waitForEvent('download'), page.getByRole('button', { name: 'Case report (PDF)' }).click()]);
+      return { name: download.suggestedFilename(), text: pdfText(readFileSync((await download.path()) ?? '')) };
+    };
+    const r2Report = await report();
+    expect(r2Report.name).toMatch(/-r2-report\.pdf$/);
+    expect(r2Report.text).toContain(CASE_TITLE);
+    expect(r2Report.text).toContain('Amplitude 9 mm');
+    expect(r2Report.text).toContain('Outcome: holds upright');
+    expect(r2Report.text).toContain(CAUTION_DEFERRAL);
+    await page.locator('.revision-row .rev-number', { hasText: 'r1' }).click();
+    await page.waitForURL(new RegExp(`/cases/${caseId}/r/1/history$`));
+    const r1Report = await report();
+    expect(r1Report.name).toMatch(/-r1-report\.pdf$/);
+    expect(r1Report.text).toContain(`Margin of the upright ${formatPercent(r1Margins.summary['marginPercent'] as number)}`);
+    expect(r1Report.text).toContain(`Lower amplitude limit ${formatLength(r1Margins.summary['amplitudeLower'] as number, 6)}`);
+    expect(r1Report.text).toContain(`Lower frequency limit ${formatFrequency(r1Margins.summary['frequencyLower'] as number, 6)}`);
+    await page.locator('.revision-row .rev-number', { hasText: 'r2' }).click();
+    await page.waitForURL(new RegExp(`/cases/${caseId}/r/2/history$`));
 
     await page.getByRole('button', { name: 'Ask for a recheck' }).click();
     await page.getByRole('combobox', { name: 'Reviewer' }).click();
@@ -221,6 +274,11 @@ describe('case library', () => {
     expect(await visitor.getByText(`Shared by ${DEMO_LAB_NAME}`).count()).toBe(1);
     expect(await visitor.getByRole('button', { name: 'Save' }).count()).toBe(0);
     expect(await visitor.locator('qp-stored-runs-table .kind').allTextContents()).toEqual(['motion']);
+    const reportHref = await visitor.getByTestId('visitor-report').getAttribute('href');
+    const report = await fetch(`${server.baseUrl}${reportHref}`);
+    expect(report.status).toBe(200);
+    expect(report.headers.get('content-type')).toBe('application/pdf');
+    expect(pdfText(Buffer.from(await report.arrayBuffer()))).toContain(CASE_TITLE);
     await visitor.locator('.rerun-button').click();
     await expect.poll(() => visitor.locator('.run-state').allTextContents().then((t) => t.map((s) => s.trim())), { timeout: 90_000 }).toEqual(['same numbers, same digest']);
     await screenshot(visitor, 'visitor-desktop');
