@@ -87,6 +87,24 @@ describe('signing in', () => {
     await screenshot(page, 'home-narrow');
 
     await page.getByRole('button', { name: 'Open navigation' }).click();
+    // Every entry of the drawer is on screen and on top, Home first: nothing (the toolbar) covers it.
+    const nav = page.getByRole('navigation', { name: 'Main' });
+    await nav.getByRole('link', { name: 'Home', exact: true }).waitFor();
+    await page.waitForTimeout(500);
+    const covered = await nav.getByRole('link').evaluateAll((links) =>
+      links
+        .filter((link) => {
+          const box = link.getBoundingClientRect();
+          const top = document.elementFromPoint(box.left + box.width / 2, box.top + box.height / 2);
+          return box.bottom > window.innerHeight || !top || !link.contains(top);
+        })
+        .map((link) => link.textContent?.trim()),
+    );
+    expect(covered).toEqual([]);
+    expect(await nav.getByRole('link').allTextContents().then((t) => t.map((x) => x.trim()))).toEqual(
+      expect.arrayContaining(['Home', 'Case library', 'New case', 'Lab members']),
+    );
+    await screenshot(page, 'navigation-narrow');
     await page.getByRole('link', { name: 'Lab members', exact: true }).click();
     await page.getByRole('heading', { level: 1, name: DEMO_LAB_NAME }).waitFor();
     expect(await memberNames(page)).toHaveLength(DEMO_ACCOUNTS.length);

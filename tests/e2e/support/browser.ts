@@ -1,10 +1,14 @@
 /**
  * Debian's Chromium driven by playwright-core (no downloaded browsers). Each launch gets a fresh temporary
- * profile from playwright, so no state leaks between runs. Screenshots go to test-results/screenshots/.
+ * profile from playwright, so no state leaks between runs. Screenshots go to test-results/screenshots/; every
+ * screenshot also runs the axe accessibility check on the page (support/axe.ts), so each page a test looks at is
+ * checked at the size it was shown.
  */
 import { mkdirSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+
+import { expectAccessible } from './axe';
 
 export const CHROMIUM_PATH = process.env['QP_CHROMIUM'] ?? '/usr/bin/chromium';
 export const SCREENSHOT_DIR = resolve(__dirname, '..', '..', '..', 'test-results', 'screenshots');
@@ -20,7 +24,7 @@ const CHROMIUM_ARGS = [
   '--disable-sync',
 ];
 
-export const DESKTOP = { width: 1366, height: 900 } as const;
+export const DESKTOP = { width: 1440, height: 900 } as const;
 export const NARROW = { width: 390, height: 844 } as const;
 
 export interface TestBrowser {
@@ -34,7 +38,8 @@ export async function launchBrowser(): Promise<TestBrowser> {
   const contexts: BrowserContext[] = [];
   return {
     async newPage(viewport) {
-      const context = await browser.newContext({ viewport, deviceScaleFactor: 1 });
+      // bypassCSP: the app's CSP (script-src 'self') would refuse the injected axe-core script.
+      const context = await browser.newContext({ viewport, deviceScaleFactor: 1, bypassCSP: true });
       contexts.push(context);
       const page = await context.newPage();
       page.setDefaultTimeout(20_000);
@@ -47,10 +52,15 @@ export async function launchBrowser(): Promise<TestBrowser> {
   };
 }
 
-/** Saves a full-page PNG named `<name>.png` and returns its path. */
-export async function screenshot(page: Page, name: string): Promise<string> {
-  mkdirSync(SCREENSHOT_DIR, { recursive: true });
-  const path = join(SCREENSHOT_DIR, `${name}.png`);
+/**
+ * Saves a full-page PNG named `<name>.png` in `dir` and returns its path, then fails on serious or critical axe
+ * violations on the page (pass `{ axe: false }` only for a state that is not a page, e.g. mid-animation).
+ */
+export async function screenshot(page: Page, name: string, options: { dir?: string; axe?: boolean } = {}): Promise<string> {
+  const dir = options.dir ?? SCREENSHOT_DIR;
+  mkdirSync(dir, { recursive: true });
+  const path = join(dir, `${name}.png`);
   await page.screenshot({ path, fullPage: true });
+  if (options.axe !== false) await expectAccessible(page, `${name} (${page.viewportSize()?.width ?? '?'} px wide, ${page.url()})`);
   return path;
 }

@@ -1,9 +1,12 @@
-import { ChangeDetectionStrategy, Component, computed, input, viewChild } from '@angular/core';
+import { BreakpointObserver } from '@angular/cdk/layout';
+import { ChangeDetectionStrategy, Component, computed, inject, input, viewChild } from '@angular/core';
+import { toSignal } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatTooltipModule } from '@angular/material/tooltip';
 import { PlotlyComponent, PlotlyService } from 'angular-plotly.js';
 import plotlyLibrary from 'plotly.js-dist-min';
+import { map } from 'rxjs';
 
 import { downloadText, toCsv, type CsvCell, type CsvColumn } from '../csv';
 
@@ -67,6 +70,10 @@ export function fileStem(title: string): string {
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class Plot {
+  /** On a phone the toolbar Plotly shows over the top right would cover a legend above the plot. */
+  private readonly phone = toSignal(inject(BreakpointObserver).observe('(max-width: 599.98px)').pipe(map((s) => s.matches)), {
+    initialValue: false,
+  });
   private readonly plotly = viewChild(PlotlyComponent);
 
   readonly data = input.required<readonly PlotSpec[]>();
@@ -88,9 +95,10 @@ export class Plot {
     paper_bgcolor: 'rgba(0,0,0,0)',
     plot_bgcolor: 'rgba(0,0,0,0)',
     font: { family: 'Roboto, sans-serif', size: 12 },
-    legend: { orientation: 'h', x: 0, y: 1.02, yanchor: 'bottom' },
     hovermode: 'closest',
     ...this.layout(),
+    // Above the plot on a wide screen; under the x axis title on a phone, clear of the toolbar.
+    legend: this.phone() ? { orientation: 'h', x: 0, y: -0.32, yanchor: 'top' } : { orientation: 'h', x: 0, y: 1.02, yanchor: 'bottom' },
   }));
 
   protected exportImage(format: 'png' | 'svg'): void {
