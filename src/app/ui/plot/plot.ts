@@ -50,6 +50,7 @@ export function fileStem(title: string): string {
         [config]="config"
         [useResizeHandler]="true"
         [style]="{ width: '100%', height: height() + 'px' }"
+        (afterPlot)="nameToolbarButtons()"
       />
       <figcaption class="plot-actions">
         <span class="plot-title">{{ title() }}</span>
@@ -100,6 +101,16 @@ export class Plot {
     // Above the plot on a wide screen; under the x axis title on a phone, clear of the toolbar.
     legend: this.phone() ? { orientation: 'h', x: 0, y: -0.32, yanchor: 'top' } : { orientation: 'h', x: 0, y: 1.02, yanchor: 'bottom' },
   }));
+
+  /** Plotly's toolbar buttons are links named only by a tooltip attribute: give them names screen readers read. */
+  protected nameToolbarButtons(): void {
+    const element = this.plotly()?.plotlyInstance;
+    element?.querySelectorAll('.modebar-btn').forEach((button) => {
+      const name = button.getAttribute('data-title');
+      if (name) button.setAttribute('aria-label', name);
+      button.setAttribute('role', 'button');
+    });
+  }
 
   protected exportImage(format: 'png' | 'svg'): void {
     const element = this.plotly()?.plotlyInstance;
