@@ -59,7 +59,6 @@ function demoCases(): DemoCase[] {
   const shaker = rig('shaker-tall-rod');
   const arm = rig('horizontal-arm');
   const teaching = templateCase();
-  teaching.run.duration = 5;
   const [crankRig, shakerRig, armRig] = DEMO_RIGS;
   return [
     {

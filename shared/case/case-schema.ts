@@ -1,5 +1,7 @@
 import { z } from 'zod';
 
+import { bodyProperties } from '../engine/body';
+
 /** Version of the case parameter shape; bump when a stored case would need migrating. */
 export const CASE_SCHEMA_VERSION = 1;
 
@@ -8,12 +10,19 @@ export const STANDARD_GRAVITY = 9.80665;
 
 /** Limits that keep a run bounded in time and memory; exported so the UI can show them. */
 export const CASE_LIMITS = {
+  /** m: shortest body or equivalent length; below it the rigid-body model and the drive's stroke lose meaning. */
+  minLength: 1e-3,
   maxLength: 100,
   maxMass: 1e6,
   maxAmplitude: 10,
   maxFrequency: 1e5,
   maxDuration: 1e5,
+  /** drive periods a run may span: the step budget of one run */
   maxDrivePeriods: 2e6,
+  /** drive periods a run must span: outcomes are judged on period means after the transient */
+  minDrivePeriods: 10,
+  /** slowest drive as a share of the free swing frequency; a slower drive has no slow motion to average */
+  minDriveToSwingRatio: 0.1,
   maxOutputPoints: 200_000,
   maxHarmonics: 16,
   maxHarmonicOrder: 64,
@@ -21,17 +30,18 @@ export const CASE_LIMITS = {
 
 const finite = () => z.number().finite();
 const positive = (max: number, unit: string) => finite().gt(0).lte(max).describe(unit);
+const length = (unit: string) => finite().gte(CASE_LIMITS.minLength).lte(CASE_LIMITS.maxLength).describe(unit);
 const nonNegative = (max: number, unit: string) => finite().gte(0).lte(max).describe(unit);
 
 const pointMassSchema = z.object({
   kind: z.literal('point-mass'),
-  length: positive(CASE_LIMITS.maxLength, 'm: pivot to mass'),
+  length: length('m: pivot to mass'),
   mass: positive(CASE_LIMITS.maxMass, 'kg'),
 });
 
 const rodBobSchema = z.object({
   kind: z.literal('rod-bob'),
-  rodLength: positive(CASE_LIMITS.maxLength, 'm: uniform rod hinged at one end'),
+  rodLength: length('m: uniform rod hinged at one end'),
   rodMass: nonNegative(CASE_LIMITS.maxMass, 'kg'),
   bobMass: nonNegative(CASE_LIMITS.maxMass, 'kg: solid sphere'),
   bobRadius: nonNegative(CASE_LIMITS.maxLength, 'm'),
@@ -114,8 +124,11 @@ export const caseParamsSchema = z
       const mass = body.rodMass + body.bobMass;
       if (mass <= 0) {
         ctx.addIssue({ code: 'custom', path: ['body', 'bobMass'], message: 'rod and bob masses are both zero: the body has no mass' });
-      } else if (body.rodMass * body.rodLength / 2 + body.bobMass * body.bobDistance <= 0) {
+        return;
+      }
+      if (body.rodMass * body.rodLength / 2 + body.bobMass * body.bobDistance <= 0) {
         ctx.addIssue({ code: 'custom', path: ['body', 'bobDistance'], message: 'centre of mass sits on the pivot: no pendulum' });
+        return;
       }
     }
     if (drive.waveform.kind === 'crank-slider' && drive.waveform.connectingRod <= drive.amplitude) {
@@ -128,20 +141,65 @@ export const caseParamsSchema = z
     if (drive.ramp && drive.ramp.fromFrequency > drive.frequency) {
       ctx.addIssue({ code: 'custom', path: ['drive', 'ramp', 'fromFrequency'], message: 'ramp must rise: start frequency above the drive frequency' });
     }
-    if (run.duration * drive.frequency > CASE_LIMITS.maxDrivePeriods) {
-      ctx.addIssue({
-        code: 'custom',
-        path: ['run', 'duration'],
-        message: `run spans ${Math.round(run.duration * drive.frequency)} drive periods; at most ${CASE_LIMITS.maxDrivePeriods} are allowed`,
-      });
-    }
     if (body.kind === 'measured-swing') {
       const omega0 = 2 * Math.PI * body.swingFrequency;
       if (c.gravity / (omega0 * omega0) > CASE_LIMITS.maxLength) {
         ctx.addIssue({ code: 'custom', path: ['body', 'swingFrequency'], message: 'swing this slow means an equivalent length above 100 m' });
+        return;
+      }
+      const fastest = Math.sqrt(c.gravity / CASE_LIMITS.minLength) / (2 * Math.PI);
+      if (body.swingFrequency > fastest) {
+        addBound(ctx, ['body', 'swingFrequency'], '<=', fastest, 'Hz', 'a faster swing means an equivalent length below 1 mm');
+        return;
       }
     }
+    const L = bodyProperties(body, c.gravity).equivalentLength;
+    if (!(L >= CASE_LIMITS.minLength)) {
+      if (body.kind === 'rod-bob') {
+        ctx.addIssue({ code: 'custom', path: ['body', 'bobDistance'], message: 'equivalent length below 1 mm: move the bob or the rod mass away from the pivot' });
+      }
+      return;
+    }
+    const swingHz = Math.sqrt(c.gravity / L) / (2 * Math.PI);
+    const slowestDrive = CASE_LIMITS.minDriveToSwingRatio * swingHz;
+    if (drive.frequency < slowestDrive) {
+      addBound(ctx, ['drive', 'frequency'], '>=', slowestDrive, 'Hz', 'a drive slower than a tenth of the free swing has no slow motion to average');
+    }
+    const shortest = CASE_LIMITS.minDrivePeriods / drive.frequency;
+    if (run.duration < shortest) {
+      // A duration bound beyond the longest run would only mislead: then the frequency alone is at fault.
+      if (shortest <= CASE_LIMITS.maxDuration) addBound(ctx, ['run', 'duration'], '>=', shortest, 's', `the run must span at least ${CASE_LIMITS.minDrivePeriods} drive periods`);
+      addBound(ctx, ['drive', 'frequency'], '>=', CASE_LIMITS.minDrivePeriods / run.duration, 'Hz', `the run must span at least ${CASE_LIMITS.minDrivePeriods} drive periods`);
+    }
+    // The free swing needs no budget of its own: at most 15.8 Hz (1 mm) over the longest run stays within it.
+    const longest = CASE_LIMITS.maxDrivePeriods / drive.frequency;
+    if (run.duration > longest) {
+      addBound(ctx, ['run', 'duration'], '<=', longest, 's', `a run may span at most ${CASE_LIMITS.maxDrivePeriods.toLocaleString('en')} drive periods`);
+    }
   });
+
+/** Which side of a limit a value must lie on. */
+export type BoundRelation = '>=' | '>' | '<=' | '<';
+
+const BOUND_WORDS: Readonly<Record<BoundRelation, string>> = { '>=': 'at least', '>': 'more than', '<=': 'at most', '<': 'less than' };
+
+/** Words for a relation: "at least", "less than". */
+export function boundWords(relation: BoundRelation): string {
+  return BOUND_WORDS[relation];
+}
+
+/**
+ * A limit on one field that depends on others, stated as a bound in SI (`params.bound`) with its reason, so each
+ * client can say it in the unit it shows; `message` carries the same in SI for the API and the CLI.
+ */
+function addBound(ctx: z.RefinementCtx, path: string[], relation: BoundRelation, value: number, unit: string, reason: string): void {
+  ctx.addIssue({
+    code: 'custom',
+    path,
+    message: `must be ${BOUND_WORDS[relation]} ${Number(value.toPrecision(4))} ${unit}: ${reason}`,
+    params: { bound: { relation, value }, reason },
+  });
+}
 
 export type CaseParams = z.infer<typeof caseParamsSchema>;
 /** Input shape before defaults are applied (gravity may be absent). */

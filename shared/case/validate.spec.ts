@@ -56,6 +56,61 @@ describe('parseCase', () => {
     expect(issuesOf('not a case')[0].field).toBe('');
   });
 
+  it('states a fixed limit as a bound in SI, and a wrong kind with what is allowed', () => {
+    const c = templateCase();
+    expect(issuesOf({ ...c, drive: { ...c.drive, amplitude: 1e30 } })[0]).toMatchObject({
+      field: 'drive.amplitude',
+      bound: { relation: '<=', value: 10 },
+    });
+    expect(issuesOf({ ...c, body: { kind: 'point-mass', length: 1e-6, mass: 1 } })[0]).toMatchObject({
+      field: 'body.length',
+      bound: { relation: '>=', value: 0.001 },
+    });
+    expect(issuesOf({ ...c, body: { kind: 'wobble' } })[0]).toMatchObject({
+      field: 'body.kind',
+      expected: 'point-mass | rod-bob | measured-swing',
+    });
+    expect(issuesOf({ ...c, run: { ...c.run, outputPoints: 10.5 } })[0]).toMatchObject({ expected: 'int' });
+  });
+
+  it('refuses a drive too slow for its run: at least 10 drive periods, with the bound and the reason', () => {
+    const c = templateCase();
+    // 1e-30 Hz passed before and took 16 s to give "Drive period T 1e+33 ms".
+    const issues = issuesOf({ ...c, drive: { ...c.drive, frequency: 1e-30 } });
+    const frequency = issues.filter((i) => i.field === 'drive.frequency');
+    expect(frequency.length).toBeGreaterThan(0);
+    expect(frequency.every((i) => i.bound?.relation === '>=' && i.reason)).toBe(true);
+    // No duration bound beyond the longest allowed run.
+    expect(issues.some((i) => i.field === 'run.duration')).toBe(false);
+    const short = issuesOf({ ...c, run: { ...c.run, duration: 0.1 } });
+    expect(short).toContainEqual(
+      expect.objectContaining({ field: 'run.duration', bound: { relation: '>=', value: 10 / 40 }, reason: expect.stringMatching(/10 drive periods/) }),
+    );
+    expect(short).toContainEqual(expect.objectContaining({ field: 'drive.frequency', bound: { relation: '>=', value: 10 / 0.1 } }));
+  });
+
+  it('refuses a drive slower than a tenth of the free swing frequency', () => {
+    const c = templateCase(); // 20 cm: free swing sqrt(g/L)/2pi = 1.114 Hz
+    const run = { ...c.run, duration: 10000 };
+    const issue = issuesOf({ ...c, drive: { ...c.drive, frequency: 0.1 }, run })[0];
+    expect(issue.field).toBe('drive.frequency');
+    expect(issue.bound?.value).toBeCloseTo(Math.sqrt(9.80665 / 0.2) / (2 * Math.PI) / 10, 10);
+    expect(parseCase({ ...c, drive: { ...c.drive, frequency: 0.12 }, run }).ok).toBe(true);
+  });
+
+  it('bounds the step budget by drive periods and a measured swing to 1 mm equivalent length', () => {
+    const c = templateCase();
+    const fast = { kind: 'measured-swing', swingFrequency: 100, mass: 1 };
+    expect(issuesOf({ ...c, body: fast })[0]).toMatchObject({
+      field: 'body.swingFrequency',
+      bound: { relation: '<=', value: Math.sqrt(9.80665 / 0.001) / (2 * Math.PI) },
+    });
+    expect(issuesOf({ ...c, run: { ...c.run, duration: 1e5 } })[0]).toMatchObject({
+      field: 'run.duration',
+      bound: { relation: '<=', value: 2e6 / 40 },
+    });
+  });
+
   it('returns fresh demo rig copies that callers may change', () => {
     const a = demoRigCase('horizontal-arm') as CaseParams;
     a.drive.amplitude = 1;

@@ -14,7 +14,17 @@ describe('simulateMotion', () => {
       const r = simulateMotion(rig.params);
       expect(r.outcome, `${rig.id}: ${r.outcomeNumbers.reason}`).toBe(rig.expectedOutcome);
     }
-  });
+  }, 30_000);
+
+  it('runs the template and every demo rig long enough to measure the slow frequency over at least 3 slow swings', () => {
+    for (const [id, params] of [['template', templateCase()], ...DEMO_RIGS.map((r) => [r.id, r.params] as const)] as const) {
+      const r = simulateMotion(params);
+      const n = r.outcomeNumbers;
+      expect(n.slowFrequencyHz, `${id}: slow frequency not measured`).not.toBeNull();
+      const judged = params.run.duration - n.windowStart;
+      expect((n.slowFrequencyHz ?? 0) * judged, `${id}: slow swings judged`).toBeGreaterThanOrEqual(3);
+    }
+  }, 30_000);
 
   it('keeps every series within the output budget and memory flat in run length', () => {
     const c = short(templateCase(), 30, 300);

@@ -121,6 +121,36 @@ describe('workbench', () => {
     expect(lines.some((line) => line.includes('falls'))).toBe(true);
   }, 180_000);
 
+  it('refuses to run with an invalid field, says why in the shown unit and takes the user to the field', async () => {
+    await page.setViewportSize(DESKTOP);
+    await page.goto(`${server.baseUrl}/cases/new`);
+    // Frequency 0 used to run at the last valid 40 Hz.
+    await page.locator('input[data-field="drive.frequency"]').fill('0');
+    await openTab(page, 'Motion');
+    expect(await page.getByTestId('run-motion').isDisabled()).toBe(true);
+    expect(await page.getByTestId('run-refusal').textContent()).toContain('Drive frequency: must be more than 0 Hz');
+    await screenshot(page, 'workbench-desktop-run-refused');
+    await page.setViewportSize(NARROW);
+    await screenshot(page, 'workbench-phone-run-refused');
+    await page.setViewportSize(DESKTOP);
+    await page.getByTestId('go-to-field').click();
+    await page.waitForURL((url) => url.pathname.endsWith('/rig'));
+    await expect.poll(() => page.evaluate(() => document.activeElement?.getAttribute('data-field'))).toBe('drive.frequency');
+
+    // A drive far too slow for the run is refused with the limit in the shown unit.
+    await page.locator('input[data-field="drive.frequency"]').fill('1e-30');
+    await expect.poll(() => page.locator('mat-error').first().textContent()).toMatch(/Must be at least [\d.]+ Hz/);
+    await page.locator('input[data-field="drive.frequency"]').fill('40');
+    await openTab(page, 'Motion');
+    expect(await page.getByTestId('run-motion').isEnabled()).toBe(true);
+
+    // A sweep range beyond the field's domain is refused before anything runs, in mm.
+    await openTab(page, 'Sweeps');
+    await page.getByTestId('sweep-to').fill('1e30');
+    expect(await page.getByTestId('run-sweep').isDisabled()).toBe(true);
+    expect(await page.getByTestId('run-refusal').textContent()).toMatch(/Drive amplitude must be at most 10000 mm/);
+  }, 120_000);
+
   it('keeps the page responsive during a 200-point sweep and cancels it', async () => {
     const long = templateCase();
     long.run.duration = 60;
@@ -129,7 +159,9 @@ describe('workbench', () => {
     await openTab(page, 'Sweeps');
     await page.getByTestId('sweep-count').fill('200');
     await page.getByTestId('run-sweep').click();
-    await expect.poll(async () => Number((await page.getByTestId('sweep-progress').textContent())?.replace('%', '')), { timeout: 60_000 }).toBeGreaterThan(0);
+    // One count for the bar and its text: "12 of 200 points".
+    await expect.poll(async () => Number((await page.getByTestId('run-sweep-progress').textContent())?.split(' of ')[0]), { timeout: 60_000 }).toBeGreaterThan(0);
+    expect(await page.getByTestId('run-sweep-progress').textContent()).toMatch(/^\d+ of 200 points$/);
     // The main thread answers quickly while the workers compute: timers fire on time and tabs switch.
     const lags = await page.evaluate(async () => {
       const out: number[] = [];
@@ -143,11 +175,11 @@ describe('workbench', () => {
     expect(Math.max(...lags)).toBeLessThan(250);
     await openTab(page, 'Rig');
     await openTab(page, 'Sweeps');
-    await expect.poll(() => page.getByTestId('cancel-sweep').count()).toBe(1);
-    await page.getByTestId('cancel-sweep').click();
-    await expect.poll(() => page.getByTestId('sweep-cancelled').count()).toBe(1);
+    await expect.poll(() => page.getByTestId('run-sweep-cancel').count()).toBe(1);
+    await page.getByTestId('run-sweep-cancel').click();
+    await expect.poll(() => page.getByTestId('run-sweep-cancelled').count()).toBe(1);
     expect(await page.getByTestId('run-sweep').isEnabled()).toBe(true);
-    expect(await page.getByTestId('sweep-progress').count()).toBe(0);
+    expect(await page.getByTestId('run-sweep-progress').count()).toBe(0);
   }, 120_000);
 
   it('takes screenshots of every tab at desktop and phone sizes', async () => {

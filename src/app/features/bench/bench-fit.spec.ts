@@ -9,7 +9,7 @@ import { WorkerPool, type WorkerLike } from '../../../../shared/compute/worker-p
 import { syntheticTrace } from '../../../../shared/engine/synthetic-trace';
 import { ENGINE_POOL } from '../../core/compute/engine-pool';
 import { CaseWorkspace } from '../case/case-workspace';
-import { DEFAULT_UNITS } from '../case/rig/rig-form';
+import { DEFAULT_UNITS } from '../../core/units/display-units';
 import type { BenchTrace } from '../library/library-types';
 import { BenchFit } from './bench-fit';
 

@@ -9,7 +9,7 @@ import type { OverlayResult } from '../../../../shared/engine/trace-drive';
 import { ENGINE_POOL } from '../../core/compute/engine-pool';
 import { Plot, type PlotCsv, type PlotSpec } from '../../ui/plot/plot';
 import { CaseWorkspace } from '../case/case-workspace';
-import { formatIn, formatNumber, formatPercent } from '../case/format';
+import { formatIn, formatNumber, formatPercent } from '../../core/units/format-number';
 import { PoolJob } from '../case/pool-job';
 import type { BenchTrace } from '../library/library-types';
 import { MAX_PLOTTED_POINTS } from './plot-thinning';

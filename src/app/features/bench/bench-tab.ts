@@ -17,7 +17,7 @@ import { apiErrorOf, describeError } from '../../core/error-message';
 import { Plot, PlotCsv, PlotSpec } from '../../ui/plot/plot';
 import { downloadText } from '../../ui/csv';
 import { CaseWorkspace } from '../case/case-workspace';
-import { formatNumber } from '../history/params-diff';
+import { formatNumber } from '../../core/units/format-number';
 import { LibraryApi } from '../library/library-api';
 import type { BenchTrace, BenchTraceSummary } from '../library/library-types';
 import { BenchFit } from './bench-fit';
@@ -129,7 +129,7 @@ export class BenchTab {
   private labelFromFile = '';
 
   protected formatDuration(seconds: number): string {
-    return `${formatNumber(Number(seconds.toPrecision(4)))} s`;
+    return `${formatNumber(seconds)} s`;
   }
 
   protected chooseFile(input: HTMLInputElement): void {

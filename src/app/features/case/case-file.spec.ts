@@ -19,6 +19,20 @@ describe('case files', () => {
     expect(bad(JSON.stringify({ format: 'quiverpoint-case', schemaVersion: 7, params: templateCase() }))).toMatch(/schema version 7/);
     const params = templateCase();
     params.body = { kind: 'point-mass', length: -1, mass: 1 };
-    expect(bad(JSON.stringify({ format: 'quiverpoint-case', schemaVersion: 1, title: 't', params }))).toMatch(/body\.length.*Nothing was changed/);
+    expect(bad(JSON.stringify({ format: 'quiverpoint-case', schemaVersion: 1, title: 't', params }))).toMatch(
+      /Length, pivot to mass: Must be at least 1 mm\. Nothing was changed/,
+    );
+  });
+
+  it('names the field and the allowed kinds instead of the schema message', () => {
+    const params = { ...templateCase(), body: { kind: 'cube' } };
+    const r = readCaseFile(JSON.stringify({ format: 'quiverpoint-case', schemaVersion: 1, title: 't', params }));
+    expect(r.ok ? '' : r.message).toBe(
+      'That case file has invalid parameters: Body: Must be one of: point mass on a light rod, rod with a bob, measured free swing. Nothing was changed.',
+    );
+    expect(r.ok ? '' : r.message).not.toMatch(/discriminator|Expected/);
+    const { drive: _drive, ...withoutDrive } = templateCase();
+    const missing = readCaseFile(JSON.stringify({ format: 'quiverpoint-case', schemaVersion: 1, title: 't', params: withoutDrive }));
+    expect(missing.ok ? '' : missing.message).toContain('Drive: Missing');
   });
 });

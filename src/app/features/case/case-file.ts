@@ -1,5 +1,8 @@
 import { CASE_SCHEMA_VERSION, type CaseParams } from '../../../../shared/case/case-schema';
 import { parseCase } from '../../../../shared/case/validate';
+import { DEFAULT_UNITS, type DisplayUnits } from '../../core/units/display-units';
+import { fieldLabel } from '../../core/units/field-table';
+import { readableIssue } from './rig/rig-form';
 
 /** Identifies a Quiverpoint case file. */
 export const CASE_FILE_FORMAT = 'quiverpoint-case';
@@ -25,8 +28,8 @@ export function caseFileName(title: string, extension: string): string {
   return `${stem}.${extension}`;
 }
 
-/** Reads a case file's text; every refusal names what is wrong, in words. */
-export function readCaseFile(text: string): CaseFileResult {
+/** Reads a case file's text; every refusal names the field and what is allowed, in words and the shown units. */
+export function readCaseFile(text: string, units: DisplayUnits = DEFAULT_UNITS): CaseFileResult {
   let data: unknown;
   try {
     data = JSON.parse(text);
@@ -50,7 +53,7 @@ export function readCaseFile(text: string): CaseFileResult {
   if (!parsed.ok) {
     const list = parsed.issues
       .slice(0, 3)
-      .map((i) => `${i.field || 'case'}: ${i.message}`)
+      .map((i) => `${i.field ? fieldLabel(i.field) : 'The case'}: ${readableIssue(i, units)}`)
       .join('; ');
     const more = parsed.issues.length > 3 ? ` (and ${parsed.issues.length - 3} more)` : '';
     return { ok: false, message: `That case file has invalid parameters: ${list}${more}. Nothing was changed.` };

@@ -157,7 +157,7 @@ export class CasePage {
     input.value = '';
     if (!file) return;
     try {
-      const result = readCaseFile(await file.text());
+      const result = readCaseFile(await file.text(), this.workspace.units());
       if (!result.ok) {
         this.dismissProblem();
         this.problem.set(`${file.name}: ${result.message}`);

@@ -17,7 +17,8 @@ import { Session } from '../../core/session';
 import { CASE_REPOSITORY, type OpenedCase, type StoredRun } from './case-repository';
 import { CaseRepositoryError } from './case-repository-error';
 import { PoolJob, type RowsDone } from './pool-job';
-import { DEFAULT_UNITS, RigForm, type DisplayUnits } from './rig/rig-form';
+import { RigForm } from './rig/rig-form';
+import { DEFAULT_UNITS, type DisplayUnits } from '../../core/units/display-units';
 
 /** A result together with the case it was computed for. */
 export interface Computed<T> {
@@ -65,6 +66,7 @@ export class CaseWorkspace {
   private readonly saveNoteState = signal('');
   private readonly sweepPartialState = signal<readonly SweepPoint[]>([]);
   private readonly sweepStepsState = signal(0);
+  private readonly focusRequestState = signal<string | null>(null);
 
   readonly form = new RigForm(templateCase(), DEFAULT_UNITS);
   readonly title = signal('New case');
@@ -72,7 +74,7 @@ export class CaseWorkspace {
   readonly opened = this.openedState.asReadonly();
   readonly loading = this.loadingState.asReadonly();
   readonly loadError = this.loadErrorState.asReadonly();
-  /** The last valid case the form held (SI). Computations always use it. */
+  /** The last valid case the form held (SI). Computations use it, and only while the form is valid. */
   readonly draft = this.draftState.asReadonly();
   /** Issues of the form's current content; empty when the draft matches the form. */
   readonly issues = this.issuesState.asReadonly();
@@ -110,6 +112,8 @@ export class CaseWorkspace {
   readonly sweepSteps = this.sweepStepsState.asReadonly();
   readonly chart = this.chartState.asReadonly();
   readonly basin = this.basinState.asReadonly();
+  /** A form path the Rig tab should focus when it shows (set by a refused run's link). */
+  readonly focusRequest = this.focusRequestState.asReadonly();
 
   readonly motionJob = new PoolJob<MotionResult>();
   readonly marginsJob = new PoolJob<FloquetAnalysis>();
@@ -182,7 +186,21 @@ export class CaseWorkspace {
     this.formTickState.update((n) => n + 1);
   }
 
+  /** Asks the Rig tab to focus the control of a form path. */
+  requestFocus(formPath: string | null): void {
+    this.focusRequestState.set(formPath);
+  }
+
+  /**
+   * Runs start only while the form is valid: the draft is the last valid case, so with an invalid form a run
+   * would use values other than those shown. The run strips say why and link to the field.
+   */
+  private canRun(): boolean {
+    return this.valid();
+  }
+
   runMotion(): void {
+    if (!this.canRun()) return;
     const params = this.draftState();
     const settings: RunSettings = { kind: 'motion' };
     this.motionJob.start(this.pool.motion(params), (value) => {
@@ -192,6 +210,7 @@ export class CaseWorkspace {
   }
 
   runMargins(relTolerance = 1e-6): void {
+    if (!this.canRun()) return;
     const params = this.draftState();
     const settings: RunSettings = { kind: 'margins', relTolerance };
     this.marginsJob.start(this.pool.margins(params, relTolerance), (value) => {
@@ -201,6 +220,7 @@ export class CaseWorkspace {
   }
 
   runSweep(spec: SweepSpec): void {
+    if (!this.canRun()) return;
     const params = this.draftState();
     const settings: RunSettings = { kind: 'sweep', spec };
     this.sweepPartialState.set([]);
@@ -216,6 +236,7 @@ export class CaseWorkspace {
   }
 
   runChart(grid: Grid2): void {
+    if (!this.canRun()) return;
     const params = this.draftState();
     const settings: RunSettings = { kind: 'chart', grid };
     this.chartJob.start(this.pool.chart(params, grid), (value) => {
@@ -225,6 +246,7 @@ export class CaseWorkspace {
   }
 
   runBasin(grid: Grid2): void {
+    if (!this.canRun()) return;
     const params = this.draftState();
     const settings: RunSettings = { kind: 'basin', grid };
     this.basinJob.start(this.pool.basin(params, grid), (value) => {

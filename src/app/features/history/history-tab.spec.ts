@@ -6,6 +6,7 @@ import { provideRouter } from '@angular/router';
 
 import { templateCase } from '../../../../shared/case';
 import { CaseWorkspace } from '../case/case-workspace';
+import { DEFAULT_UNITS } from '../../core/units/display-units';
 import { HistoryTab } from './history-tab';
 
 const R1 = templateCase();
@@ -39,7 +40,7 @@ describe('HistoryTab', () => {
         provideHttpClient(),
         provideHttpClientTesting(),
         // Only the opened revision matters to this tab; the workspace's engine and forms stay out of the test.
-        { provide: CaseWorkspace, useValue: { opened: signal({ caseId: 'c1', revision: 2 }), title: signal('Teaching rod') } },
+        { provide: CaseWorkspace, useValue: { opened: signal({ caseId: 'c1', revision: 2 }), title: signal('Teaching rod'), units: signal(DEFAULT_UNITS) } },
       ],
     });
     backend = TestBed.inject(HttpTestingController);
@@ -75,8 +76,8 @@ describe('HistoryTab', () => {
     await open('analyst');
     expect(host.querySelector('.diff-summary')?.textContent).toContain('2 parameters differ between r1 and r2');
     expect(diffRows()).toEqual([
-      ['drive.amplitude', '10', '12', 'mm'],
-      ['damping.viscousRatio', '0.01', '0.02', 'ζ'],
+      ['Drive amplitude', '10', '12', 'mm'],
+      ['Viscous damping ratio ζ', '0.01', '0.02', ''],
     ]);
     expect(host.querySelectorAll('.diff-table tr.changed').length).toBe(2);
   });
@@ -87,7 +88,7 @@ describe('HistoryTab', () => {
     fixture.detectChanges();
     const rows = diffRows();
     expect(rows.length).toBeGreaterThan(15);
-    expect(rows).toContainEqual(['drive.frequency', '40', '40', 'Hz']);
+    expect(rows).toContainEqual(['Drive frequency', '40', '40', 'Hz']);
     expect(host.querySelectorAll('.diff-table tr.changed').length).toBe(2);
   });
 

@@ -118,7 +118,7 @@ export class HistoryTab {
   protected readonly diffLoading = computed(() => this.left.isLoading() || this.right.isLoading());
   protected readonly diffRows = computed(() => {
     if (!this.left.hasValue() || !this.right.hasValue()) return [];
-    return diffParams(this.left.value().rawParams, this.right.value().rawParams);
+    return diffParams(this.left.value().rawParams, this.right.value().rawParams, this.workspace.units());
   });
   protected readonly changedCount = computed(() => this.diffRows().filter((r) => r.changed).length);
   protected readonly resultRows = computed(() => {

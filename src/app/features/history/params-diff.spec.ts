@@ -1,15 +1,16 @@
 import { demoRigCase, templateCase } from '../../../../shared/case';
-import { diffParams, flattenParams, formatNumber } from './params-diff';
+import { diffParams, flattenParams } from './params-diff';
 
 describe('flattenParams', () => {
   it('lists every leaf as a dotted path, in display units', () => {
     const rows = flattenParams(templateCase());
     const byPath = new Map(rows.map((r) => [r.path, r]));
-    expect(byPath.get('drive.amplitude')).toEqual({ path: 'drive.amplitude', value: '10', unit: 'mm' });
-    expect(byPath.get('drive.frequency')).toEqual({ path: 'drive.frequency', value: '40', unit: 'Hz' });
-    expect(byPath.get('drive.waveform.kind')).toEqual({ path: 'drive.waveform.kind', value: 'sine', unit: '' });
+    expect(byPath.get('drive.amplitude')).toEqual({ path: 'drive.amplitude', label: 'Drive amplitude', value: '10', unit: 'mm' });
+    expect(byPath.get('drive.frequency')).toEqual({ path: 'drive.frequency', label: 'Drive frequency', value: '40', unit: 'Hz' });
+    expect(byPath.get('drive.waveform.kind')).toEqual({ path: 'drive.waveform.kind', label: 'Drive waveform', value: 'sine', unit: '' });
+    expect(byPath.get('body.kind')?.value).toBe('point mass on a light rod');
     expect(byPath.get('body.length')?.value).toBe('200');
-    expect(Number(byPath.get('start.angle')?.value)).toBeCloseTo((0.1 * 180) / Math.PI, 6);
+    expect(Number(byPath.get('start.angle')?.value)).toBeCloseTo((0.1 * 180) / Math.PI, 4);
     expect(byPath.get('start.angle')?.unit).toBe('°');
   });
 
@@ -27,6 +28,7 @@ describe('flattenParams', () => {
     const paths = flattenParams(params).map((r) => `${r.path}=${r.value}${r.unit ? ` ${r.unit}` : ''}`);
     expect(paths).toContain('drive.waveform.terms.1.order=3');
     expect(paths).toContain('drive.waveform.terms.1.phase=180 °');
+    expect(flattenParams(params).find((r) => r.path === 'drive.waveform.terms.1.phase')?.label).toBe('Harmonic 2 phase');
   });
 });
 
@@ -35,7 +37,7 @@ describe('diffParams', () => {
     const r1 = templateCase();
     const r2 = { ...r1, drive: { ...r1.drive, amplitude: 0.012 } };
     const changed = diffParams(r1, r2).filter((row) => row.changed);
-    expect(changed).toEqual([{ path: 'drive.amplitude', unit: 'mm', left: '10', right: '12', changed: true }]);
+    expect(changed).toEqual([{ path: 'drive.amplitude', label: 'Drive amplitude', unit: 'mm', left: '10', right: '12', changed: true }]);
   });
 
   it('shows fields that exist on one side only, such as a changed body kind', () => {
@@ -46,15 +48,7 @@ describe('diffParams', () => {
     const rodLength = rows.find((r) => r.path === 'body.rodLength');
     expect(length).toMatchObject({ left: '200', right: null, changed: true });
     expect(rodLength).toMatchObject({ left: null, right: '500', changed: true });
-    expect(rows.find((r) => r.path === 'body.kind')).toMatchObject({ left: 'point-mass', right: 'rod-bob', changed: true });
+    expect(rows.find((r) => r.path === 'body.kind')).toMatchObject({ left: 'point mass on a light rod', right: 'rod with a bob', changed: true });
     expect(rows.find((r) => r.path === 'schemaVersion')?.changed).toBe(false);
-  });
-});
-
-describe('formatNumber', () => {
-  it('drops floating-point noise but keeps nine significant digits', () => {
-    expect(formatNumber(0.1 + 0.2)).toBe('0.3');
-    expect(formatNumber(1 / 3)).toBe('0.333333333');
-    expect(formatNumber(-0)).toBe('0');
   });
 });

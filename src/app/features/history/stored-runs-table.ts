@@ -3,7 +3,17 @@ import { ChangeDetectionStrategy, Component, computed, input } from '@angular/co
 import { MatTableModule } from '@angular/material/table';
 
 import type { RunView } from '../library/library-types';
-import { formatNumber } from './params-diff';
+import { summaryRows } from '../../core/units/field-table';
+
+/** The run kinds as the tabs name them. */
+export const RUN_KIND_LABELS: Readonly<Record<string, string>> = {
+  motion: 'Motion',
+  margins: 'Floquet margins',
+  sweep: 'Sweep',
+  chart: 'Stability chart',
+  map: 'Outcome map',
+  basin: 'Basin map',
+};
 
 /** How many summary numbers a row shows; the recheck shows all of them. */
 const HEADLINE_COUNT = 4;
@@ -13,12 +23,9 @@ const HEADLINE_KEYS = ['outcome', 'maxDeviation', 'slowFrequencyHz', 'marginPerc
 export function headlineNumbers(summary: RunView['summary']): string {
   const keys = Object.keys(summary);
   const ordered = [...HEADLINE_KEYS.filter((k) => k in summary), ...keys.filter((k) => !HEADLINE_KEYS.includes(k))];
-  return ordered
-    .slice(0, HEADLINE_COUNT)
-    .map((key) => {
-      const value = summary[key];
-      return `${key} ${typeof value === 'number' ? formatNumber(value) : value === null ? '—' : String(value)}`;
-    })
+  const headline = Object.fromEntries(ordered.slice(0, HEADLINE_COUNT).map((key) => [key, summary[key]]));
+  return summaryRows(headline)
+    .map((row) => `${row.label} ${row.value}`)
     .join(' · ');
 }
 
@@ -34,7 +41,7 @@ export function headlineNumbers(summary: RunView['summary']): string {
         <table mat-table [dataSource]="rows()" class="runs-table">
           <ng-container matColumnDef="kind">
             <th mat-header-cell *matHeaderCellDef>Kind</th>
-            <td mat-cell *matCellDef="let row" class="kind">{{ row.run.kind }}</td>
+            <td mat-cell *matCellDef="let row" class="kind">{{ row.kind }}</td>
           </ng-container>
           <ng-container matColumnDef="summary">
             <th mat-header-cell *matHeaderCellDef>Summary</th>
@@ -63,7 +70,7 @@ export function headlineNumbers(summary: RunView['summary']): string {
   styles: `
     .scroll { overflow-x: auto; }
     .runs-table { width: 100%; min-width: 640px; background: transparent; }
-    .kind { font-weight: 500; text-transform: capitalize; }
+    .kind { font-weight: 500; }
     .summary { font-variant-numeric: tabular-nums; }
     .when { white-space: nowrap; }
     code { font-size: 0.85em; }
@@ -74,5 +81,5 @@ export function headlineNumbers(summary: RunView['summary']): string {
 export class StoredRunsTable {
   readonly runs = input.required<readonly RunView[]>();
   protected readonly columns = ['kind', 'summary', 'digest', 'engine', 'stored'];
-  protected readonly rows = computed(() => this.runs().map((run) => ({ run, headline: headlineNumbers(run.summary) })));
+  protected readonly rows = computed(() => this.runs().map((run) => ({ run, kind: RUN_KIND_LABELS[run.kind] ?? run.kind, headline: headlineNumbers(run.summary) })));
 }

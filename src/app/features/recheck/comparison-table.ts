@@ -1,7 +1,9 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { MatIconModule } from '@angular/material/icon';
 
-import { formatNumber } from '../history/params-diff';
+import { fieldInfo, fieldLabel, formatFieldValue } from '../../core/units/field-table';
+import { DEFAULT_UNITS, toDisplay } from '../../core/units/display-units';
+import { formatNumber } from '../../core/units/format-number';
 import type { SummaryValue } from '../library/library-types';
 
 /** One compared number, from a rerun in this browser or from a recheck stored on the server. */
@@ -14,9 +16,17 @@ export interface ComparisonRow {
   readonly match: boolean;
 }
 
-function show(value: SummaryValue | undefined): string {
-  if (value === null || value === undefined) return '—';
-  return typeof value === 'number' ? formatNumber(value) : String(value);
+/** Compared numbers keep 9 significant digits: a recheck is about differences in the last digits. */
+const COMPARED_DIGITS = 9;
+
+function show(key: string, value: SummaryValue | undefined): string {
+  return formatFieldValue(`summary.${key}`, value, DEFAULT_UNITS, COMPARED_DIGITS);
+}
+
+/** A difference or tolerance of a summary number in the number's display unit (the scale is linear). */
+function showDifference(key: string, value: number): string {
+  const dimension = fieldInfo(`summary.${key}`)?.dimension ?? 'plain';
+  return formatNumber(toDisplay(value, dimension, DEFAULT_UNITS), 3);
 }
 
 function differenceOf(row: ComparisonRow): number | null {
@@ -44,7 +54,7 @@ function differenceOf(row: ComparisonRow): number | null {
         <tbody>
           @for (row of shown(); track row.name) {
             <tr [class.mismatch]="!row.match">
-              <th scope="row" class="name">{{ row.name }}</th>
+              <th scope="row" class="name">{{ row.label }}</th>
               <td class="num">{{ row.stored }}</td>
               <td class="num">{{ row.rerun }}</td>
               <td class="num">{{ row.difference }}</td>
@@ -65,7 +75,7 @@ function differenceOf(row: ComparisonRow): number | null {
     th, td { padding: 6px 10px; border-bottom: 1px solid var(--mat-sys-outline-variant); text-align: start; }
     thead th { font: var(--mat-sys-label-large); color: var(--mat-sys-on-surface-variant); }
     .num { text-align: end; }
-    .name { font-weight: 500; font-family: monospace; font-size: 0.9em; }
+    .name { font-weight: 500; }
     .match { white-space: nowrap; }
     .match mat-icon { font-size: 18px; width: 18px; height: 18px; vertical-align: -4px; color: var(--mat-sys-primary); }
     .mismatch { background: var(--mat-sys-error-container); color: var(--mat-sys-on-error-container); }
@@ -80,10 +90,11 @@ export class ComparisonTable {
       const difference = differenceOf(row);
       return {
         name: row.name,
-        stored: show(row.stored),
-        rerun: show(row.rerun),
-        difference: difference === null ? '—' : formatNumber(Number(difference.toPrecision(3))),
-        tolerance: row.tolerance === null ? 'equal' : `± ${formatNumber(Number(row.tolerance.toPrecision(3)))}`,
+        label: fieldLabel(`summary.${row.name}`),
+        stored: show(row.name, row.stored),
+        rerun: show(row.name, row.rerun),
+        difference: difference === null ? '—' : showDifference(row.name, difference),
+        tolerance: row.tolerance === null ? 'equal' : `± ${showDifference(row.name, row.tolerance)}`,
         match: row.match,
       };
     }),

@@ -95,7 +95,7 @@ describe('RecheckPage', () => {
     const states = Array.from(host.querySelectorAll('.server-run .state'), (e) => e.textContent?.replace(/\s+/g, ' ').trim() ?? '');
     expect(states[0]).toContain('Verified');
     expect(states[1]).toContain('Unreproduced: 1 number(s) differ.');
-    expect(Array.from(host.querySelectorAll('.server-run tr.mismatch th'), (e) => e.textContent?.trim())).toEqual(['maxDeviation']);
+    expect(Array.from(host.querySelectorAll('.server-run tr.mismatch th'), (e) => e.textContent?.trim())).toEqual(['Largest slow deviation from upright']);
     expect(host.querySelector('.summary')?.textContent).toContain('did not reproduce every stored run');
     expect(host.querySelector<HTMLButtonElement>('.confirm')?.disabled).toBe(true);
 

@@ -1,22 +1,22 @@
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { FormsModule } from '@angular/forms';
-import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
-import { MatIconModule } from '@angular/material/icon';
-import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 
 import { defaultChartGrid, type StabilityChart } from '../../../../../shared/engine/chart';
 import { defaultBasinGrid } from '../../../../../shared/engine/sweep';
 import { Plot, type PlotCsv, type PlotSpec } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
-import { OUTCOME_COLORS, OUTCOME_LABELS, formatIn, formatNumber } from '../format';
-import { toDisplay, unitLabelOf, type DisplayUnits } from '../rig/rig-form';
+import { rangeProblem } from '../range-check';
+import { RunStrip } from '../run-strip';
+import { OUTCOME_COLOURS, OUTCOME_WORDS, outcomeWords } from '../../../../../shared/case/display';
+import { formatIn, formatNumber } from '../../../core/units/format-number';
+import { toDisplay, unitLabelOf, type DisplayUnits } from '../../../core/units/display-units';
 import {
   MULTIPLIER_CLIP, STABILITY_COLORS, STABILITY_LEGEND, stabilityColorbar, stabilityColorscale, stabilityContour, stabilityLevel,
 } from './stability-scale';
 
-const OUTCOMES = Object.keys(OUTCOME_LABELS);
+const OUTCOMES = Object.keys(OUTCOME_WORDS);
 
 /** Ticks 1, 2, 5 x 10^k inside [lo, hi], written in full (Plotly's own log ticks abbreviate 20 as "2"). */
 export function logTicks(lo: number, hi: number): { tickvals: number[]; ticktext: string[] } {
@@ -37,7 +37,7 @@ function outcomeColorscale(): Array<[number, string]> {
   const n = OUTCOMES.length;
   const scale: Array<[number, string]> = [];
   OUTCOMES.forEach((o, i) => {
-    scale.push([i / n, OUTCOME_COLORS[o]], [(i + 1) / n, OUTCOME_COLORS[o]]);
+    scale.push([i / n, OUTCOME_COLOURS[o]], [(i + 1) / n, OUTCOME_COLOURS[o]]);
   });
   return scale;
 }
@@ -104,7 +104,7 @@ export function stabilityChartPlot(c: StabilityChart, units: DisplayUnits): { da
 /** The Map tab: the stability chart over drive frequency and amplitude, and the basin map over start angle and rate. */
 @Component({
   selector: 'qp-map-tab',
-  imports: [FormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatProgressBarModule, MatSelectModule, Plot],
+  imports: [FormsModule, MatFormFieldModule, MatSelectModule, Plot, RunStrip],
   templateUrl: './map-tab.html',
   styleUrl: '../tab.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -121,7 +121,7 @@ export class MapTab {
   protected readonly chartCount = signal(60);
   protected readonly basinCount = signal(11);
   protected readonly chartLegend = STABILITY_LEGEND;
-  protected readonly legend = OUTCOMES.map((o) => ({ key: o, label: OUTCOME_LABELS[o], color: OUTCOME_COLORS[o] }));
+  protected readonly legend = OUTCOMES.map((o) => ({ key: o, label: OUTCOME_WORDS[o], color: OUTCOME_COLOURS[o] }));
   protected readonly vertical = computed(() => Math.abs(Math.sin(this.workspace.draft().drive.direction)) < 1e-12);
 
   protected readonly chartPlot = computed(() => {
@@ -146,7 +146,7 @@ export class MapTab {
       for (let i = 0; i < nx; i++) {
         const cell = b.cells[j * nx + i];
         row.push(cell?.outcome ? OUTCOMES.indexOf(cell.outcome) : null);
-        words.push(cell?.outcome ? OUTCOME_LABELS[cell.outcome] : `invalid: ${cell?.error ?? ''}`);
+        words.push(outcomeWords(cell?.outcome));
       }
       z.push(row);
       text.push(words);
@@ -170,11 +170,23 @@ export class MapTab {
     return { data, layout, csv };
   });
 
+  protected readonly chartGrid = computed(() => defaultChartGrid(this.workspace.draft(), this.chartCount()));
+  protected readonly basinGrid = computed(() => defaultBasinGrid(this.workspace.draft(), this.basinCount()));
+  /** The chart solves no motion, so only the fixed limits of frequency and amplitude apply to its corners. */
+  protected readonly chartProblem = computed(() => {
+    const g = this.chartGrid();
+    return rangeProblem(this.workspace.draft(), [g.x, g.y], this.units(), true);
+  });
+  protected readonly basinProblem = computed(() => {
+    const g = this.basinGrid();
+    return rangeProblem(this.workspace.draft(), [g.x, g.y], this.units());
+  });
+
   protected runChart(): void {
-    this.workspace.runChart(defaultChartGrid(this.workspace.draft(), this.chartCount()));
+    this.workspace.runChart(this.chartGrid());
   }
 
   protected runBasin(): void {
-    this.workspace.runBasin(defaultBasinGrid(this.workspace.draft(), this.basinCount()));
+    this.workspace.runBasin(this.basinGrid());
   }
 }

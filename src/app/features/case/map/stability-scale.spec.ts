@@ -1,5 +1,5 @@
 import type { StabilityChart } from '../../../../../shared/engine/chart';
-import { DEFAULT_UNITS } from '../rig/rig-form';
+import { DEFAULT_UNITS } from '../../../core/units/display-units';
 import { stabilityChartPlot } from './map-tab';
 import { MULTIPLIER_CLIP, STABILITY_COLORS, stabilityColorscale, stabilityLevel } from './stability-scale';
 

@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 
-import { formatPercent } from '../format';
+import { formatPercent } from '../../../core/units/format-number';
 
 /** How a margin reads at a glance. */
 export type MarginLevel = 'comfortable' | 'thin' | 'outside' | 'unknown';

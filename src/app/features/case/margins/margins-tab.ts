@@ -1,15 +1,13 @@
 import { ChangeDetectionStrategy, Component, computed, inject } from '@angular/core';
-import { MatButtonModule } from '@angular/material/button';
-import { MatIconModule } from '@angular/material/icon';
-import { MatProgressBarModule } from '@angular/material/progress-bar';
 
 import { averagedAnalysis } from '../../../../../shared/engine/averaged';
 import type { DriveLimits, PeriodicMotion } from '../../../../../shared/engine/floquet';
 import type { Complex } from '../../../../../shared/engine/monodromy';
 import { Plot, type PlotCsv, type PlotSpec } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
-import { formatIn, formatNumber, formatPercent } from '../format';
-import { toDisplay, unitLabelOf, type Dimension } from '../rig/rig-form';
+import { RunStrip } from '../run-strip';
+import { formatIn, formatNumber, formatPercent } from '../../../core/units/format-number';
+import { toDisplay, unitLabelOf, type Dimension } from '../../../core/units/display-units';
 import { MarginGauge, bandPosition } from './margin-gauge';
 
 interface NumberRow {
@@ -26,7 +24,7 @@ function complexText(z: Complex): string {
 /** The Margins tab: averaged (Kapitza) picture at once, Floquet multipliers and drive limits from a worker. */
 @Component({
   selector: 'qp-margins-tab',
-  imports: [MatButtonModule, MatIconModule, MatProgressBarModule, Plot, MarginGauge],
+  imports: [Plot, MarginGauge, RunStrip],
   templateUrl: './margins-tab.html',
   styleUrl: '../tab.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -167,9 +165,5 @@ export class MarginsTab {
 
   protected run(): void {
     this.workspace.runMargins();
-  }
-
-  protected cancel(): void {
-    this.job.cancel();
   }
 }

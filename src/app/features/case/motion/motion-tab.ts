@@ -1,12 +1,10 @@
 import { ChangeDetectionStrategy, Component, computed, inject } from '@angular/core';
-import { MatButtonModule } from '@angular/material/button';
-import { MatIconModule } from '@angular/material/icon';
-import { MatProgressBarModule } from '@angular/material/progress-bar';
 
 import { bodyProperties } from '../../../../../shared/engine/body';
 import { Plot, type PlotCsv, type PlotSpec } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
-import { toDisplay, unitLabelOf } from '../rig/rig-form';
+import { RunStrip } from '../run-strip';
+import { toDisplay, unitLabelOf } from '../../../core/units/display-units';
 import { OutcomeCard, uprightMultiplierFor, type OutcomeView } from './outcome-card';
 import { PendulumAnimation } from './pendulum-animation';
 
@@ -17,7 +15,7 @@ function scaled(values: Float64Array, factor: number): number[] {
 /** The Motion tab: the full nonlinear motion of the draft case, computed in a worker, with its outcome and plots. */
 @Component({
   selector: 'qp-motion-tab',
-  imports: [MatButtonModule, MatIconModule, MatProgressBarModule, Plot, OutcomeCard, PendulumAnimation],
+  imports: [Plot, OutcomeCard, PendulumAnimation, RunStrip],
   templateUrl: './motion-tab.html',
   styleUrl: '../tab.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -118,9 +116,5 @@ export class MotionTab {
 
   protected run(): void {
     this.workspace.runMotion();
-  }
-
-  protected cancel(): void {
-    this.job.cancel();
   }
 }

@@ -6,8 +6,8 @@ import { DEMO_RIGS } from '../../../../../shared/case/templates';
 import { floquetAnalysis, uprightMaxMultiplier, type FloquetAnalysis } from '../../../../../shared/engine/floquet';
 import { simulateMotion, type MotionResult } from '../../../../../shared/engine/motion';
 import type { Computed } from '../case-workspace';
-import { formatNumber } from '../format';
-import { DEFAULT_UNITS } from '../rig/rig-form';
+import { formatNumber } from '../../../core/units/format-number';
+import { DEFAULT_UNITS } from '../../../core/units/display-units';
 import { OutcomeCard, uprightMultiplierFor, type OutcomeView } from './outcome-card';
 
 function motionOf(params: CaseParams): Computed<MotionResult> {
@@ -60,7 +60,11 @@ describe('OutcomeCard', () => {
     fixture.detectChanges();
     const host = fixture.nativeElement as HTMLElement;
     expect(host.querySelector('[data-testid=outcome]')?.textContent).toBe('holds upright');
-    expect(host.textContent).toContain(run.outcomeNumbers.reason);
+    // The reason in the rows' unit (degrees), not the engine's radians.
+    expect(host.querySelector('[data-testid=outcome-reason]')?.textContent).toBe(
+      `The slow motion stayed within ${formatNumber((run.outcomeNumbers.maxDeviation * 180) / Math.PI)}° of the upright (band ${formatNumber((0.5 * 180) / Math.PI)}°).`,
+    );
+    expect(host.textContent).not.toContain(' rad');
     const degrees = (run.outcomeNumbers.maxDeviation * 180) / Math.PI;
     const row = [...host.querySelectorAll('.row')].find((r) => r.textContent?.includes('Largest slow deviation'));
     expect(row?.querySelector('dd')?.textContent).toBe(`${Number(degrees.toPrecision(4))}°`);

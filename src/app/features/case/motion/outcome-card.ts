@@ -1,11 +1,12 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 
-import type { MotionOutcome, OutcomeNumbers } from '../../../../../shared/engine/classify';
+import { OUTCOME_RULES, type MotionOutcome, type OutcomeNumbers } from '../../../../../shared/engine/classify';
 import type { FloquetAnalysis } from '../../../../../shared/engine/floquet';
 import type { MotionResult, MotionSummary } from '../../../../../shared/engine/motion';
 import type { Computed } from '../case-workspace';
-import { OUTCOME_COLORS, OUTCOME_LABELS, formatIn, formatNumber } from '../format';
-import type { DisplayUnits } from '../rig/rig-form';
+import { OUTCOME_COLOURS, outcomeWords } from '../../../../../shared/case/display';
+import { formatIn, formatNumber } from '../../../core/units/format-number';
+import type { DisplayUnits } from '../../../core/units/display-units';
 
 /**
  * Largest Floquet multiplier modulus of the upright for the motion's case, as the Margins tab computed it (in its
@@ -57,6 +58,36 @@ interface Row {
   readonly value: string;
 }
 
+/**
+ * Why the run got its verdict, in the display units of the rows beside it. The same rules as classifyMotion
+ * (shared/engine/classify.ts), told from the numbers it returns rather than its SI reason text.
+ */
+export function outcomeSentence(outcome: MotionOutcome, n: OutcomeNumbers, status: string, units: DisplayUnits): string {
+  const angle = (rad: number) => formatIn(rad, 'angle', units);
+  switch (outcome) {
+    case 'holds-upright':
+      return `The slow motion stayed within ${angle(n.maxDeviation)} of the upright (band ${angle(OUTCOME_RULES.uprightBand)}).`;
+    case 'tumbles':
+      return `The angle ran through ${formatNumber(n.slowRange / (2 * Math.PI), 2)} turns after the transient.`;
+    case 'settles-tilted':
+      return `Settled at ${angle(n.meanAngle)} from the upright (slow range ${angle(n.slowRange)}).`;
+    case 'falls':
+      return n.slowRange < OUTCOME_RULES.settledRange
+        ? `Settled ${angle(Math.PI - Math.abs(n.meanAngle))} from hanging down.`
+        : `Swings about hanging down (slow range ${angle(n.slowRange)}).`;
+    case 'irregular':
+      return status !== 'completed' || n.samples === 0
+        ? 'The integration ended early, so there is no verdict on the motion.'
+        : `The slow motion neither settled nor stayed upright (range ${angle(n.slowRange)}, mean ${angle(n.meanAngle)}).`;
+  }
+}
+
+/** The slow frequency, or why it was not measured and what to change. */
+function slowFrequencyText(n: OutcomeNumbers, units: DisplayUnits): string {
+  if (n.slowFrequencyHz !== null) return formatIn(n.slowFrequencyHz, 'frequency', units);
+  return 'not measured: under 2 slow swings after the transient; lengthen the simulated time';
+}
+
 /** The verdict of a motion run in large type, its reason in words, and the numbers it rests on. */
 @Component({
   selector: 'qp-outcome-card',
@@ -64,7 +95,7 @@ interface Row {
     <section class="card" [style.border-color]="color()" aria-labelledby="outcome-title">
       <p class="kicker">Outcome</p>
       <h2 id="outcome-title" class="verdict" [style.color]="color()" data-testid="outcome">{{ label() }}</h2>
-      <p class="reason">{{ view().numbers.reason }}</p>
+      <p class="reason" data-testid="outcome-reason">{{ sentence() }}</p>
       <dl>
         @for (row of rows(); track row.label) {
           <div class="row">
@@ -91,8 +122,9 @@ export class OutcomeCard {
   readonly view = input.required<OutcomeView>();
   readonly units = input.required<DisplayUnits>();
 
-  protected readonly label = computed(() => OUTCOME_LABELS[this.view().outcome] ?? this.view().outcome);
-  protected readonly color = computed(() => OUTCOME_COLORS[this.view().outcome] ?? 'currentColor');
+  protected readonly label = computed(() => outcomeWords(this.view().outcome));
+  protected readonly sentence = computed(() => outcomeSentence(this.view().outcome, this.view().numbers, this.view().status, this.units()));
+  protected readonly color = computed(() => OUTCOME_COLOURS[this.view().outcome] ?? 'currentColor');
   protected readonly rows = computed<Row[]>(() => {
     const { numbers: n, summary: s } = this.view();
     const u = this.units();
@@ -101,7 +133,7 @@ export class OutcomeCard {
       { label: 'Largest slow deviation from upright', value: formatIn(n.maxDeviation, 'angle', u) },
       { label: 'Mean slow angle', value: formatIn(n.meanAngle, 'angle', u) },
       { label: 'Slow range', value: formatIn(n.slowRange, 'angle', u) },
-      { label: 'Slow frequency', value: n.slowFrequencyHz === null ? 'not measured (too few swings)' : formatIn(n.slowFrequencyHz, 'frequency', u) },
+      { label: 'Slow frequency', value: slowFrequencyText(n, u) },
       { label: 'Full turns', value: String(n.netTurns) },
       { label: 'Judged from', value: `${formatNumber(n.windowStart)} s on (${n.samples} drive periods)` },
       { label: 'Peak pivot acceleration', value: `${formatNumber(s.peakPivotAccelerationG, 3)} g` },

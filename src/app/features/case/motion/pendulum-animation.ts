@@ -6,7 +6,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { MatSliderModule } from '@angular/material/slider';
 
 import type { MotionSeries } from '../../../../../shared/engine/motion';
-import { formatNumber } from '../format';
+import { formatNumber } from '../../../core/units/format-number';
 
 const BODY_PX = 90;
 

@@ -2,7 +2,9 @@ import { caseDigest } from '../../../../../shared/case/canonical';
 import { getField } from '../../../../../shared/case/case-fields';
 import type { CaseParams } from '../../../../../shared/case/case-schema';
 import { DEMO_RIGS, templateCase } from '../../../../../shared/case/templates';
-import { RigForm, fromDisplay, readableIssue, toDisplay, type DisplayUnits } from './rig-form';
+import { RigForm, readableIssue } from './rig-form';
+import { parseCase } from '../../../../../shared/case/validate';
+import { DEFAULT_UNITS, fromDisplay, toDisplay, type DisplayUnits } from '../../../core/units/display-units';
 
 const NUMERIC_PATHS = [
   'drive.direction', 'drive.amplitude', 'drive.frequency', 'damping.viscousRatio', 'damping.quadratic',
@@ -118,7 +120,7 @@ describe('RigForm', () => {
     form.group.controls.body.controls.length.setValue(-5);
     const result = form.parse();
     expect(result.ok).toBe(false);
-    expect(form.group.controls.body.controls.length.errors?.['case']).toBe('Must be more than 0 mm');
+    expect(form.group.controls.body.controls.length.errors?.['case']).toBe('Must be at least 1 mm');
     form.group.controls.body.controls.length.setValue(150);
     expect(form.parse().ok).toBe(true);
     expect(form.group.controls.body.controls.length.errors).toBeNull();
@@ -143,10 +145,30 @@ describe('RigForm', () => {
     expect(form.group.controls.run.controls.outputPoints.errors?.['case']).toBe('Must be a whole number');
   });
 
-  it('writes upper bounds in the display unit', () => {
-    expect(readableIssue('Too big: expected number to be <=100000', 'frequency', { length: 'mm', frequency: 'rpm', angle: 'deg' })).toBe(
-      'Must be at most 6000000 rev/min',
+  it('writes bounds in the display unit, rounded towards the allowed side, with the reason', () => {
+    const rpm: DisplayUnits = { length: 'mm', frequency: 'rpm', angle: 'deg' };
+    expect(readableIssue({ field: 'drive.frequency', message: '', bound: { relation: '<=', value: 1e5 } }, rpm)).toBe('Must be at most 6e+6 rev/min');
+    const slow = parseCase({ ...templateCase(), drive: { ...templateCase().drive, frequency: 1e-30 } });
+    if (slow.ok) throw new Error('expected a refusal');
+    // The ratio bound is 0.11144... Hz: shown rounded up, so the shown value itself is allowed.
+    expect(readableIssue(slow.issues[0], DEFAULT_UNITS)).toBe(
+      'Must be at least 0.1115 Hz: a drive slower than a tenth of the free swing has no slow motion to average',
     );
+    expect(readableIssue(slow.issues[0], rpm)).toMatch(/^Must be at least 6\.687 rev\/min/);
+    const tooFar = parseCase({ ...templateCase(), drive: { ...templateCase().drive, amplitude: 1e30 } });
+    if (tooFar.ok) throw new Error('expected a refusal');
+    expect(readableIssue(tooFar.issues[0], DEFAULT_UNITS)).toBe('Must be at most 10000 mm');
+  });
+
+  it('names the allowed kinds in words and asks for whole numbers', () => {
+    const kind = parseCase({ ...templateCase(), body: { kind: 'cube' } });
+    if (kind.ok) throw new Error('expected a refusal');
+    expect(readableIssue(kind.issues[0], DEFAULT_UNITS)).toBe(
+      'Must be one of: point mass on a light rod, rod with a bob, measured free swing',
+    );
+    const points = parseCase({ ...templateCase(), run: { ...templateCase().run, outputPoints: 10.5 } });
+    if (points.ok) throw new Error('expected a refusal');
+    expect(readableIssue(points.issues[0], DEFAULT_UNITS)).toBe('Must be a whole number');
   });
 
   it('builds a harmonics waveform from the harmonic rows', () => {

@@ -3,77 +3,16 @@ import { AbstractControl, FormArray, FormControl, FormGroup, Validators } from '
 import type { CaseParams, HarmonicTerm } from '../../../../../shared/case/case-schema';
 import { CASE_SCHEMA_VERSION, STANDARD_GRAVITY } from '../../../../../shared/case/case-schema';
 import { parseCase, type CaseIssue, type ParseCaseResult } from '../../../../../shared/case/validate';
-import { fromSi, toSi, unitById } from '../../../../../shared/engine/units';
-
-export type LengthUnit = 'm' | 'cm' | 'mm';
-export type FrequencyUnit = 'Hz' | 'rpm';
-export type AngleUnit = 'deg' | 'rad';
-
-/** The units the page shows; cases are always stored in SI. */
-export interface DisplayUnits {
-  readonly length: LengthUnit;
-  readonly frequency: FrequencyUnit;
-  readonly angle: AngleUnit;
-}
-
-export const DEFAULT_UNITS: DisplayUnits = { length: 'mm', frequency: 'Hz', angle: 'deg' };
-
-/** What a numeric field measures; decides which display unit it takes. */
-export type Dimension = 'length' | 'frequency' | 'angle' | 'rate' | 'plain';
-
-/** Unit id (shared/engine/units.ts) of a dimension under the chosen display units; null for plain numbers. */
-export function unitIdOf(dimension: Dimension, units: DisplayUnits): string | null {
-  switch (dimension) {
-    case 'length':
-      return units.length;
-    case 'frequency':
-      return units.frequency;
-    case 'angle':
-      return units.angle;
-    case 'rate':
-      return units.angle === 'deg' ? 'deg/s' : 'rad/s';
-    case 'plain':
-      return null;
-  }
-}
-
-/** Short label of a dimension's display unit, e.g. "mm", "rev/min", "°/s". */
-export function unitLabelOf(dimension: Dimension, units: DisplayUnits): string {
-  const id = unitIdOf(dimension, units);
-  return id === null ? '' : unitById(id).label;
-}
-
-/** SI value to display value, rounded to 12 significant digits so 0.02 m shows as 20 mm, not 20.000000000000004. */
-export function toDisplay(si: number, dimension: Dimension, units: DisplayUnits): number {
-  const id = unitIdOf(dimension, units);
-  const value = id === null ? si : fromSi(si, id);
-  return Number.isFinite(value) ? Number(value.toPrecision(12)) : value;
-}
-
-/** Significant digits a Rig field shows; the stored SI value keeps all of its digits (see RigForm). */
-export const SHOWN_DIGITS = 6;
-
-/** SI value as a Rig field shows it: in the display unit, at most SHOWN_DIGITS significant digits. */
-export function toShown(si: number, dimension: Dimension, units: DisplayUnits): number {
-  const id = unitIdOf(dimension, units);
-  const value = id === null ? si : fromSi(si, id);
-  return Number.isFinite(value) ? Number(value.toPrecision(SHOWN_DIGITS)) : value;
-}
-
-/** Display value back to SI. */
-export function fromDisplay(value: number, dimension: Dimension, units: DisplayUnits): number {
-  const id = unitIdOf(dimension, units);
-  return id === null ? value : toSi(value, id);
-}
-
-/** Dimension of a stored SI unit string (SWEEPABLE_FIELDS units). */
-export function dimensionOfSiUnit(unit: string): Dimension {
-  if (unit === 'm') return 'length';
-  if (unit === 'Hz') return 'frequency';
-  if (unit === 'rad') return 'angle';
-  if (unit === 'rad/s') return 'rate';
-  return 'plain';
-}
+import {
+  DEFAULT_UNITS,
+  fromDisplay,
+  toDisplay,
+  toShown,
+  type Dimension,
+  type DisplayUnits,
+} from '../../../core/units/display-units';
+import { fieldInfo, formatFieldValue } from '../../../core/units/field-table';
+import { formatBound } from '../../../core/units/format-number';
 
 type Num = FormControl<number | null>;
 export type BodyKind = CaseParams['body']['kind'];
@@ -153,18 +92,25 @@ export function formPathOf(casePath: string): string {
   return casePath;
 }
 
-/** Rewrites zod's numeric bound messages in the field's display unit ("must be at most 100000 mm"). */
-export function readableIssue(message: string, dimension: Dimension, units: DisplayUnits): string {
-  const bound = /expected number to be ([<>]=?)(-?[\d.e+-]+)/i.exec(message);
-  if (bound) {
-    const value = toDisplay(Number(bound[2]), dimension, units);
-    const unit = unitLabelOf(dimension, units);
-    const words: Record<string, string> = { '>': 'more than', '>=': 'at least', '<': 'less than', '<=': 'at most' };
-    return `Must be ${words[bound[1]] ?? bound[1]} ${value}${unit ? ` ${unit}` : ''}`;
+/**
+ * A case issue in the user's words and display unit: "Must be at least 1.115 Hz: a drive slower than a tenth of the
+ * free swing has no slow motion to average", "Must be a whole number", "Must be one of: sine, …".
+ */
+export function readableIssue(issue: CaseIssue, units: DisplayUnits): string {
+  const info = fieldInfo(issue.field);
+  if (issue.bound) {
+    const bound = formatBound(issue.bound.relation, issue.bound.value, info?.dimension ?? 'plain', units, info?.unit ?? '');
+    return `Must be ${bound}${issue.reason ? `: ${issue.reason}` : ''}`;
   }
-  if (/expected int/i.test(message)) return 'Must be a whole number';
-  if (/received NaN|expected number/i.test(message)) return 'Enter a number';
-  return message.charAt(0).toUpperCase() + message.slice(1);
+  if (issue.expected === 'int') return 'Must be a whole number';
+  if (issue.expected === 'number') return 'Enter a number';
+  if (issue.expected?.includes(' | ')) {
+    const allowed = issue.expected.split(' | ').map((value) => formatFieldValue(issue.field, value, units));
+    return `Must be one of: ${allowed.join(', ')}`;
+  }
+  if (issue.expected === 'object' || issue.expected === 'array') return 'Missing';
+  if (issue.expected) return `Must be ${issue.expected === 'string' ? 'text' : `a ${issue.expected}`}`;
+  return issue.message.charAt(0).toUpperCase() + issue.message.slice(1);
 }
 
 const num = (value: number): Num => new FormControl<number | null>(value, Validators.required);
@@ -428,7 +374,7 @@ export class RigForm {
     for (const issue of issues) {
       const formPath = formPathOf(issue.field);
       const control = this.group.get(formPath) ?? this.group;
-      const message = readableIssue(issue.message, dimensionOf(formPath), this.currentUnits);
+      const message = readableIssue(issue, this.currentUnits);
       control.setErrors({ ...(control.errors ?? {}), case: message }, { emitEvent: false });
       control.markAsTouched();
     }

@@ -2,8 +2,8 @@ import { ChangeDetectionStrategy, Component, computed, input } from '@angular/co
 
 import type { CaseParams } from '../../../../../shared/case/case-schema';
 import { bodyProperties } from '../../../../../shared/engine/body';
-import { formatIn } from '../format';
-import type { DisplayUnits } from './rig-form';
+import { formatIn } from '../../../core/units/format-number';
+import type { DisplayUnits } from '../../../core/units/display-units';
 
 /** Drawn length of the body, in SVG units. */
 const BODY_PX = 100;

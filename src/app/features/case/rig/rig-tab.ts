@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, ElementRef, afterRenderEffect, computed, inject, signal } from '@angular/core';
 import { ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
@@ -12,20 +12,16 @@ import { averagedAnalysis } from '../../../../../shared/engine/averaged';
 import { bodyProperties } from '../../../../../shared/engine/body';
 import { driveSizing } from '../../../../../shared/engine/sizing';
 import { CaseWorkspace } from '../case-workspace';
-import { formatIn, formatNumber } from '../format';
+import { formatIn, formatNumber } from '../../../core/units/format-number';
 import { CautionPanel } from './caution-panel';
 import { NumberField } from './number-field';
-import {
-  dimensionOf,
-  formPathOf,
-  readableIssue,
-  unitLabelOf,
-  type AngleUnit,
-  type DisplayUnits,
-  type FrequencyUnit,
-  type LengthUnit,
-} from './rig-form';
+import { fieldLabel } from '../../../core/units/field-table';
+import { formPathOf, readableIssue } from './rig-form';
+import { unitLabelOf, type AngleUnit, type DisplayUnits, type FrequencyUnit, type LengthUnit } from '../../../core/units/display-units';
 import { RigSchematic } from './rig-schematic';
+
+/** Slow swings the judged part of a run should hold so the Motion tab measures the slow frequency. */
+const MIN_SLOW_SWINGS = 3;
 
 interface SummaryRow {
   readonly label: string;
@@ -54,6 +50,7 @@ interface SummaryRow {
 })
 export class RigTab {
   protected readonly workspace = inject(CaseWorkspace);
+  private readonly host = inject<ElementRef<HTMLElement>>(ElementRef);
 
   protected readonly form = this.workspace.form;
   protected readonly c = this.form.group.controls;
@@ -99,14 +96,28 @@ export class RigTab {
     const out: Record<string, string> = {};
     for (const issue of this.workspace.issues()) {
       const path = formPathOf(issue.field);
-      out[path] ??= readableIssue(issue.message, dimensionOf(path), units);
+      out[path] ??= readableIssue(issue, units);
     }
     return out;
   });
   protected readonly issueCount = computed(() => this.workspace.issues().length);
+  /** Issues no control shows, in words: the whole case, or a field the form has no control for. */
   protected readonly caseLevelIssues = computed(() =>
-    this.workspace.issues().filter((i) => this.form.controlFor(i.field) === null || i.field === ''),
+    this.workspace
+      .issues()
+      .filter((i) => this.form.controlFor(i.field) === null || i.field === '')
+      .map((i) => ({ key: i.field + i.message, text: `${i.field ? fieldLabel(i.field) : 'Case'}: ${readableIssue(i, this.units())}` })),
   );
+
+  constructor() {
+    // A refused run links here with the field to fix: focus it once it is rendered.
+    afterRenderEffect(() => {
+      const path = this.workspace.focusRequest();
+      if (path === null) return;
+      this.host.nativeElement.querySelector<HTMLElement>(`[data-field="${path}"]`)?.focus();
+      this.workspace.requestFocus(null);
+    });
+  }
 
   protected readonly summary = computed<SummaryRow[]>(() => {
     const p = this.draft();
@@ -133,6 +144,20 @@ export class RigTab {
     }
     if (averaged.lowerFrequency !== null) {
       rows.push({ label: 'Averaged lower frequency', value: formatIn(averaged.lowerFrequency, 'frequency', units), note: 'at this amplitude' });
+    }
+    if (averaged.uprightSlowFrequency !== null && averaged.uprightSlowFrequency > 0) {
+      // The slow frequency is measured from crossings in the judged part of the run: it needs a few slow swings.
+      const judged = p.run.duration * (1 - p.run.transientFraction);
+      const period = (2 * Math.PI) / averaged.uprightSlowFrequency;
+      const swings = judged / period;
+      rows.push({
+        label: 'Slow swings in the judged time',
+        value: formatNumber(swings, 2),
+        note:
+          swings < MIN_SLOW_SWINGS
+            ? `too few to measure the slow frequency: simulate at least ${formatNumber(Math.ceil((MIN_SLOW_SWINGS * period) / (1 - p.run.transientFraction)))} s`
+            : 'averaged theory; enough to measure the slow frequency',
+      });
     }
     if (averaged.tiltFromDown !== null) {
       rows.push({ label: 'Averaged tilt from hanging', value: formatIn(averaged.tiltFromDown, 'angle', units) });

@@ -1,6 +1,6 @@
 import type { SweepPoint, SweepThreshold, ThresholdProbe } from '../../../../../shared/engine/sweep';
 import type { PlotCsv, PlotSpec } from '../../../ui/plot/plot';
-import { OUTCOME_COLORS, OUTCOME_LABELS } from '../format';
+import { OUTCOME_COLOURS, OUTCOME_WORDS, outcomeWords } from '../../../../../shared/case/display';
 
 /** What the sweep plot needs besides the points: the x axis in display units and the lines to mark. */
 export interface SweepPlotOptions {
@@ -51,22 +51,22 @@ export function probesOnlySeenBisecting(points: readonly SweepPoint[], threshold
 export function sweepPlot(points: readonly SweepPoint[], o: SweepPlotOptions): SweepPlot {
   const data: PlotSpec[] = [];
   const strip = { yaxis: 'y3', y: [] as number[] };
-  for (const outcome of Object.keys(OUTCOME_LABELS)) {
+  for (const outcome of Object.keys(OUTCOME_WORDS)) {
     const mine = points.filter((p) => p.outcome === outcome);
     if (mine.length === 0) continue;
-    const name = OUTCOME_LABELS[outcome];
+    const name = OUTCOME_WORDS[outcome];
     const measured = mine.filter((p) => p.slowFrequencyHz !== null && Number.isFinite(p.slowFrequencyHz));
     data.push({
       type: 'scatter', mode: 'markers', name, legendgroup: outcome, yaxis: strip.yaxis,
       x: mine.map((p) => o.toX(p.value)), y: mine.map(() => 0),
-      marker: { size: 10, symbol: 'square', color: OUTCOME_COLORS[outcome] },
+      marker: { size: 10, symbol: 'square', color: OUTCOME_COLOURS[outcome] },
       hovertemplate: `%{x:.5g} ${o.unit}<br>${name}<extra></extra>`,
     });
     if (measured.length > 0) {
       data.push({
         type: 'scatter', mode: 'markers', name, legendgroup: outcome, showlegend: false,
         x: measured.map((p) => o.toX(p.value)), y: measured.map((p) => p.slowFrequencyHz),
-        marker: { size: 9, color: OUTCOME_COLORS[outcome] },
+        marker: { size: 9, color: OUTCOME_COLOURS[outcome] },
         hovertemplate: `%{x:.5g} ${o.unit}<br>${name}<br>slow %{y:.4g} Hz<extra></extra>`,
       });
     }
@@ -76,8 +76,8 @@ export function sweepPlot(points: readonly SweepPoint[], o: SweepPlotOptions): S
     data.push({
       type: 'scatter', mode: 'markers', name: 'bisection point', yaxis: strip.yaxis,
       x: probes.map((p) => o.toX(p.value)), y: probes.map(() => 0),
-      text: probes.map((p) => (p.outcome === null ? 'invalid' : OUTCOME_LABELS[p.outcome])),
-      marker: { size: 12, symbol: 'diamond-open', line: { width: 2 }, color: probes.map((p) => (p.outcome ? OUTCOME_COLORS[p.outcome] : '#586060')) },
+      text: probes.map((p) => outcomeWords(p.outcome)),
+      marker: { size: 12, symbol: 'diamond-open', line: { width: 2 }, color: probes.map((p) => (p.outcome ? OUTCOME_COLOURS[p.outcome] : '#586060')) },
       hovertemplate: `%{x:.6g} ${o.unit}<br>%{text} (bisection)<extra></extra>`,
     });
   }
@@ -123,7 +123,7 @@ export function sweepPlot(points: readonly SweepPoint[], o: SweepPlotOptions): S
       { header: 'slow frequency', unit: 'Hz' },
       { header: 'largest |multiplier|' },
     ],
-    rows: points.map((p) => [o.toX(p.value), p.outcome ? OUTCOME_LABELS[p.outcome] : 'invalid', p.slowFrequencyHz, p.maxMultiplier]),
+    rows: points.map((p) => [o.toX(p.value), outcomeWords(p.outcome), p.slowFrequencyHz, p.maxMultiplier]),
   };
   const unmeasured = points.filter((p) => p.outcome !== null && (p.slowFrequencyHz === null || !Number.isFinite(p.slowFrequencyHz))).length;
   return { data, layout, csv, unmeasured, total: points.length };

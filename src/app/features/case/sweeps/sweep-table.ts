@@ -6,8 +6,9 @@ import { MatTableDataSource, MatTableModule } from '@angular/material/table';
 
 import type { SweepPoint } from '../../../../../shared/engine/sweep';
 import { downloadText, toCsv, type CsvColumn, type CsvCell } from '../../../ui/csv';
-import { OUTCOME_LABELS, formatNumber } from '../format';
-import { toDisplay, unitLabelOf, type Dimension, type DisplayUnits } from '../rig/rig-form';
+import { outcomeWords } from '../../../../../shared/case/display';
+import { formatNumber } from '../../../core/units/format-number';
+import { toDisplay, unitLabelOf, type Dimension, type DisplayUnits } from '../../../core/units/display-units';
 
 /** A sweep point in display units, one table row. */
 export interface SweepRow {
@@ -26,7 +27,7 @@ export function sweepRows(points: readonly SweepPoint[], dimension: Dimension, u
   return points.map((p) => ({
     index: p.index,
     value: toDisplay(p.value, dimension, units),
-    outcome: p.outcome === null ? `invalid: ${p.error ?? ''}` : (OUTCOME_LABELS[p.outcome] ?? p.outcome),
+    outcome: outcomeWords(p.outcome),
     slowFrequencyHz: p.slowFrequencyHz,
     meanAngle: angle(p.meanAngle),
     maxDeviation: angle(p.maxDeviation),

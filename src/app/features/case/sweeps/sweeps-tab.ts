@@ -1,10 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, effect, inject, signal } from '@angular/core';
 import { FormsModule } from '@angular/forms';
-import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
-import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
-import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 
 import { getField, setField, sweepableFieldsFor, type SweepableField } from '../../../../../shared/case/case-fields';
@@ -13,8 +10,11 @@ import { averagedAnalysis, averagedLowerAmplitude, averagedLowerFrequency } from
 import type { SweepSpec } from '../../../../../shared/engine/sweep';
 import { Plot } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
-import { OUTCOME_LABELS, formatNumber } from '../format';
-import { dimensionOfSiUnit, fromDisplay, toDisplay, unitLabelOf, type Dimension } from '../rig/rig-form';
+import { rangeProblem } from '../range-check';
+import { RunStrip } from '../run-strip';
+import { OUTCOME_WORDS, outcomeWords } from '../../../../../shared/case/display';
+import { formatNumber } from '../../../core/units/format-number';
+import { dimensionOfSiUnit, fromDisplay, toDisplay, unitLabelOf, type Dimension } from '../../../core/units/display-units';
 import { probesOnlySeenBisecting, sweepPlot } from './sweep-plot';
 import { SweepTable } from './sweep-table';
 
@@ -54,13 +54,11 @@ export function averagedThreshold(params: CaseParams, field: string, from: numbe
   selector: 'qp-sweeps-tab',
   imports: [
     FormsModule,
-    MatButtonModule,
     MatFormFieldModule,
-    MatIconModule,
     MatInputModule,
-    MatProgressBarModule,
     MatSelectModule,
     Plot,
+    RunStrip,
     SweepTable,
   ],
   templateUrl: './sweeps-tab.html',
@@ -100,8 +98,18 @@ export class SweepsTab {
       return `Points: a whole number from 2 to ${MAX_SWEEP_POINTS}.`;
     }
     if (this.scale() === 'log' && (from <= 0 || to <= 0)) return 'A log scale needs both ends above zero.';
-    return null;
+    const dimension = this.dimension();
+    const units = this.units();
+    const axis = { field: this.field().path, from: fromDisplay(from, dimension, units), to: fromDisplay(to, dimension, units) };
+    return rangeProblem(this.workspace.draft(), [axis], units);
   });
+
+  /** Progress of the running sweep in points, so the bar and its text tell the same count. */
+  protected readonly steps = computed(() =>
+    this.job.running()
+      ? { done: this.workspace.sweepPartial().length, total: this.workspace.sweepSteps(), noun: 'points', after: 'refining the thresholds' }
+      : null,
+  );
 
   /** The sweep's field description, taken from the result so it stays right when the form changes later. */
   protected readonly shown = computed(() => {
@@ -127,11 +135,11 @@ export class SweepsTab {
         key: `${t.kind}-${i}`,
         kind: t.kind === 'outcome' ? 'outcome changes' : 'largest |μ| crosses 1',
         value: formatNumber(toDisplay(t.value, s.dimension, units), 6),
-        change: `${t.below === null ? 'invalid' : OUTCOME_LABELS[t.below]} → ${t.above === null ? 'invalid' : OUTCOME_LABELS[t.above]}`,
+        change: `${outcomeWords(t.below)} → ${outcomeWords(t.above)}`,
         deviation: deviation === null ? '—' : `${deviation >= 0 ? '+' : '−'}${formatNumber(Math.abs(deviation), 3)} %`,
         probes: probesOnlySeenBisecting(r.value.points, t).map((p) => ({
           value: formatNumber(toDisplay(p.value, s.dimension, units), 6),
-          outcome: p.outcome === null ? 'invalid' : OUTCOME_LABELS[p.outcome],
+          outcome: outcomeWords(p.outcome),
         })),
       };
     });
@@ -162,11 +170,6 @@ export class SweepsTab {
   });
 
   /** Progress of the running sweep from one count, so the percentage and "N of M points" agree. */
-  protected readonly progress = computed(() => {
-    const total = this.workspace.sweepSteps();
-    const done = Math.min(this.workspace.sweepPartial().length, total);
-    return { done, total, percent: total > 0 ? Math.floor((100 * done) / total) : 0, refining: total > 0 && done === total };
-  });
 
   /** The field whose default range was set last; a new field gets a new default range. */
   private rangeFor: string | null = null;
@@ -212,10 +215,6 @@ export class SweepsTab {
       scale: this.scale(),
     };
     this.workspace.runSweep(spec);
-  }
-
-  protected cancel(): void {
-    this.job.cancel();
   }
 
   protected fmt(value: number | null): string {
