@@ -169,8 +169,6 @@ export class SweepsTab {
     });
   });
 
-  /** Progress of the running sweep from one count, so the percentage and "N of M points" agree. */
-
   /** The field whose default range was set last; a new field gets a new default range. */
   private rangeFor: string | null = null;
 
