@@ -93,7 +93,7 @@ describe('authInterceptor', () => {
     http.post('/api/auth/sign-in', { email: 'a@b.c', password: 'x' }).subscribe({ error: () => undefined });
     backend
       .expectOne('/api/auth/sign-in')
-      .flush({ error: { code: 'bad-credentials', message: 'Wrong email or password.' } }, { status: 401, statusText: 'Unauthorized' });
+      .flush({ error: { code: 'bad_credentials', message: 'Wrong email or password.' } }, { status: 401, statusText: 'Unauthorized' });
     expect(navigate).not.toHaveBeenCalled();
   });
 

@@ -1,5 +1,8 @@
 import { HttpErrorResponse } from '@angular/common/http';
 
+import { z } from 'zod';
+
+import { ReplyMismatchError, parseReply } from './api-reply';
 import { apiErrorOf, describeError } from './error-message';
 
 describe('describeError', () => {
@@ -26,5 +29,19 @@ describe('describeError', () => {
     expect(describeError(new TypeError("Cannot read properties of undefined (reading 'x')"))).toBe(
       'Something went wrong on this page. Reload it and try again.',
     );
+  });
+
+  it('says plainly that a reply did not match the contract, without schema words', () => {
+    let caught: unknown;
+    try {
+      parseReply(z.strictObject({ id: z.string() }), 'the case', { id: 7 });
+    } catch (error) {
+      caught = error;
+    }
+    expect(caught).toBeInstanceOf(ReplyMismatchError);
+    expect((caught as ReplyMismatchError).details).toContain('id');
+    const words = describeError(caught);
+    expect(words).toContain("server's reply was not what this page expects");
+    expect(words).not.toContain('id:');
   });
 });

@@ -1,5 +1,7 @@
 import { HttpErrorResponse } from '@angular/common/http';
 
+import { ReplyMismatchError } from './api-reply';
+
 /** The `{ error: { code, message, field? } }` body every API error carries. */
 export interface ApiError {
   readonly code: string;
@@ -24,6 +26,9 @@ export function apiErrorOf(error: unknown): ApiError | null {
 export function describeError(error: unknown): string {
   const api = apiErrorOf(error);
   if (api) return api.message;
+  if (error instanceof ReplyMismatchError) {
+    return "The server's reply was not what this page expects, so nothing is shown rather than a guess. Reload the page; if this stays, the server and this page are of different versions.";
+  }
   if (error instanceof HttpErrorResponse) {
     if (error.status === 0) return 'Quiverpoint cannot reach its server. Check your connection and try again.';
     if (error.status === 401) return 'Your session has ended. Please sign in again.';

@@ -9,7 +9,7 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { forkJoin } from 'rxjs';
 
 import { describeError } from '../../core/error-message';
-import { LibraryApi } from '../library/library-api';
+import { AdminMailApi } from './admin-mail-api';
 
 /** Site admins, local mode: what the local mail sink received, and the state of the outbox that sends it. */
 @Component({
@@ -38,9 +38,9 @@ import { LibraryApi } from '../library/library-api';
             <mat-expansion-panel class="mail">
               <mat-expansion-panel-header>
                 <mat-panel-title class="mail-subject">{{ m.subject || '(no subject)' }}</mat-panel-title>
-                <mat-panel-description>{{ m.to }} · {{ m.receivedAt | date: 'medium' }}</mat-panel-description>
+                <mat-panel-description>{{ m.to.join(', ') }} · {{ m.receivedAt | date: 'medium' }}</mat-panel-description>
               </mat-expansion-panel-header>
-              <p class="mail-head">From {{ m.from }} to {{ m.to }}</p>
+              <p class="mail-head">From {{ m.from }} to {{ m.to.join(', ') }}</p>
               <pre class="mail-body">{{ m.text }}</pre>
             </mat-expansion-panel>
           } @empty {
@@ -78,7 +78,7 @@ import { LibraryApi } from '../library/library-api';
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class AdminMailPage {
-  private readonly api = inject(LibraryApi);
+  private readonly api = inject(AdminMailApi);
 
   protected readonly mail = rxResource({
     stream: () => forkJoin({ mails: this.api.listSinkMails(), outbox: this.api.listOutbox() }),

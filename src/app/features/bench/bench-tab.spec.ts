@@ -8,7 +8,7 @@ import { CaseWorkspace } from '../case/case-workspace';
 import { BenchTab } from './bench-tab';
 
 const TRACE = {
-  id: 't1',
+  id: '00000000-0000-4000-8000-0000000000d1',
   label: 'Bench run 3',
   fileName: 'bench-run-3.csv',
   sizeBytes: 2048,
@@ -17,7 +17,7 @@ const TRACE = {
   angleUnit: 'deg',
   duration: 11.99,
   createdAt: '2026-11-30T10:00:00.000Z',
-  author: { id: 'u2', name: 'Ada Analyst' },
+  author: { id: '00000000-0000-4000-8000-0000000000a1', name: 'Ada Analyst' },
 };
 
 describe('BenchTab', () => {
@@ -40,7 +40,7 @@ describe('BenchTab', () => {
     fixture = TestBed.createComponent(BenchTab);
     host = fixture.nativeElement as HTMLElement;
     fixture.detectChanges();
-    backend.expectOne('/api/cases/c1/bench-traces').flush({ items: [TRACE], total: 1, page: 1, pageSize: 20 });
+    backend.expectOne((r) => r.method === 'GET' && r.url === '/api/cases/c1/bench-traces').flush({ items: [TRACE], total: 1, page: 1, pageSize: 20 });
     fixture.detectChanges();
     await fixture.whenStable();
   }

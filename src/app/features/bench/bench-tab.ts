@@ -18,7 +18,7 @@ import { Plot, PlotCsv, PlotSpec } from '../../ui/plot/plot';
 import { downloadText } from '../../ui/csv';
 import { CaseWorkspace } from '../case/case-workspace';
 import { formatNumber } from '../../core/units/format-number';
-import { LibraryApi } from '../library/library-api';
+import { BenchTraceApi } from './bench-trace-api';
 import type { BenchTrace, BenchTraceSummary } from '../library/library-types';
 import { BenchFit } from './bench-fit';
 import { BenchOverlay } from './bench-overlay';
@@ -57,7 +57,7 @@ export function uploadProblem(error: unknown): string {
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class BenchTab {
-  private readonly api = inject(LibraryApi);
+  private readonly api = inject(BenchTraceApi);
   private readonly workspace = inject(CaseWorkspace);
   private readonly snackBar = inject(MatSnackBar);
   private readonly errorHandler = inject(ErrorHandler);

@@ -11,7 +11,7 @@ import { MatInputModule } from '@angular/material/input';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 
 import { describeError } from '../../core/error-message';
-import { LibraryApi } from '../library/library-api';
+import { CaseLinkApi } from './case-link-api';
 import type { CaseLinkCreated, CaseLinkView } from '../library/library-types';
 
 export interface CaseLinksData {
@@ -112,7 +112,7 @@ export function visitorUrl(token: string, origin = globalThis.location?.origin ?
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class CaseLinksDialog {
-  private readonly api = inject(LibraryApi);
+  private readonly api = inject(CaseLinkApi);
   private readonly clipboard = inject(Clipboard);
   private readonly datePipe = new DatePipe('en-US');
   protected readonly data = inject<CaseLinksData>(MAT_DIALOG_DATA);

@@ -10,7 +10,7 @@ import { describeError } from '../../core/error-message';
 import { linkReportUrl } from '../history/case-report-download';
 import { flattenParams } from '../history/params-diff';
 import { StoredRunsTable } from '../history/stored-runs-table';
-import { LibraryApi } from '../library/library-api';
+import { CaseLinkApi } from './case-link-api';
 import { RerunPanel } from '../recheck/rerun-panel';
 
 /** Why a link cannot be opened, in the visitor's words. */
@@ -36,7 +36,7 @@ export function linkProblem(error: unknown): string {
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class VisitorPage {
-  private readonly api = inject(LibraryApi);
+  private readonly api = inject(CaseLinkApi);
 
   /** Bound from the route. */
   readonly token = input.required<string>();

@@ -1,9 +1,8 @@
 import { provideHttpClient } from '@angular/common/http';
-import { provideHttpClientTesting } from '@angular/common/http/testing';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
 import { Router, provideRouter } from '@angular/router';
 import { RouterTestingHarness } from '@angular/router/testing';
-import { firstValueFrom, map } from 'rxjs';
 
 import { templateCase } from '../../../../shared/case/templates';
 import { WorkerPool } from '../../../../shared/compute/worker-pool';
@@ -14,7 +13,8 @@ import { CASE_REPOSITORY } from './case-repository';
 import { CASE_TABS } from './case-tabs';
 import { CaseWorkspace } from './case-workspace';
 import { caseUrlMatcher } from './case.routes';
-import { LOCAL_CASES_KEY, LocalCaseRepository } from './local-case-repository';
+import { ApiCaseRepository } from '../library/api-case-repository';
+import { FIXTURE_IDS, caseDetailReply, revisionReply } from '../library/reply-fixtures';
 
 function signInAs(role: LabRole): void {
   localStorage.setItem(
@@ -28,14 +28,17 @@ function signInAs(role: LabRole): void {
   );
 }
 
-// The first test loads the tab chunks; on a busy two-core machine that alone can pass the 5 s default.
+/**
+ * The case page against the real API repository; the server's side is played by HttpTestingController with replies
+ * that satisfy the API contract. The first test loads the tab chunks; on a busy two-core machine that alone can pass
+ * the 5 s default.
+ */
 describe('CasePage', { timeout: 30_000 }, () => {
   let harness: RouterTestingHarness;
-  let repository: LocalCaseRepository;
-  let caseId: string;
+  let backend: HttpTestingController;
+  const caseId = FIXTURE_IDS.case;
 
   beforeEach(async () => {
-    localStorage.removeItem(LOCAL_CASES_KEY);
     localStorage.removeItem(SESSION_STORAGE_KEY);
     for (const key of Object.keys(localStorage)) if (key.startsWith('qp.revisionNote.')) localStorage.removeItem(key);
     TestBed.configureTestingModule({
@@ -48,7 +51,7 @@ describe('CasePage', { timeout: 30_000 }, () => {
             children: [
               {
                 matcher: caseUrlMatcher,
-                providers: [{ provide: CASE_REPOSITORY, useExisting: LocalCaseRepository }],
+                providers: [{ provide: CASE_REPOSITORY, useExisting: ApiCaseRepository }],
                 component: CasePage,
                 children: [
                   { path: '', pathMatch: 'full', redirectTo: CASE_TABS[0].path },
@@ -68,13 +71,11 @@ describe('CasePage', { timeout: 30_000 }, () => {
         },
       ],
     });
-    repository = TestBed.inject(LocalCaseRepository);
-    const created = await firstValueFrom(
-      repository.create({ labId: null, title: 'Shared rig', tags: ['teaching'], params: templateCase(), note: '' }),
-    );
-    caseId = created.caseId;
+    backend = TestBed.inject(HttpTestingController);
     harness = await RouterTestingHarness.create();
   });
+
+  afterEach(() => backend.verify());
 
   const host = () => harness.routeNativeElement as HTMLElement;
   const workspace = () => harness.routeDebugElement?.injector.get(CaseWorkspace) ?? null;
@@ -87,11 +88,38 @@ describe('CasePage', { timeout: 30_000 }, () => {
     harness.detectChanges();
   }
 
-  /** The note the browser-local library stored with a revision. */
-  const storedNote = (revision: number): string | undefined => {
-    const library = JSON.parse(localStorage.getItem(LOCAL_CASES_KEY) ?? '{}') as Record<string, { revisions: Array<{ number: number; note: string }> }>;
-    return library[caseId]?.revisions.find((r) => r.number === revision)?.note;
-  };
+  /** Answers the one pending request to `url` (it may be sent a tick later) with `body`; returns what was sent. */
+  async function answer(method: string, url: string, body: object | null, status = 200): Promise<object | null> {
+    let sent: object | null = null;
+    await vi.waitFor(
+      () => {
+        const request = backend.expectOne((r) => r.method === method && r.url === url);
+        sent = request.request.body as object | null;
+        request.flush(body, { status, statusText: status === 200 ? 'OK' : 'Refused' });
+      },
+      { timeout: 10_000, interval: 20 },
+    );
+    // Not whenStable: it would wait for the next request of the same load, which only this spec answers.
+    await new Promise((resolve) => setTimeout(resolve, 0));
+    harness.detectChanges();
+    return sent;
+  }
+
+  /** Opens r`revision` of the shared rig (latest `latest`) through the page, as the server answers it. */
+  async function openRevision(revision: number, latest: number, params = templateCase(), myRole: LabRole = 'analyst'): Promise<void> {
+    const navigated = harness.navigateByUrl(`/cases/${caseId}/r/${revision}/rig`, CasePage);
+    await answer('GET', `/api/cases/${caseId}`, caseDetailReply({ title: 'Shared rig', latestRevision: latest, myRole }));
+    await answer('GET', `/api/cases/${caseId}/revisions/${revision}`, revisionReply(revision, params, { caseTitle: 'Shared rig' }));
+    await navigated;
+    await settle();
+  }
+
+  /** The server's side of a successful save of r`number` with `note`: answers the POST and returns what it got. */
+  async function acceptSave(number: number): Promise<object | null> {
+    const sent = await answer('POST', `/api/cases/${caseId}/revisions`, revisionReply(number));
+    await answer('GET', `/api/cases/${caseId}`, caseDetailReply({ title: 'Shared rig', latestRevision: number }));
+    return sent;
+  }
   const noteField = () => document.querySelector<HTMLTextAreaElement>('[data-testid=revision-note]');
 
   /** Answers the revision note dialog: types `note` (unless null) and saves, or cancels. */
@@ -115,26 +143,25 @@ describe('CasePage', { timeout: 30_000 }, () => {
   }
 
   it('asks for a note before saving a new revision and stores it with the revision', async () => {
-    await harness.navigateByUrl(`/cases/${caseId}/r/1/rig`, CasePage);
-    await settle();
+    await openRevision(1, 1);
     workspace()?.form.group.controls.drive.controls.amplitude.setValue(12);
     button('Save')?.click();
     await answerNote('Stroke 24 mm for the new crank');
+    const sent = await acceptSave(2);
+    expect(sent).toMatchObject({ baseRevision: 1, note: 'Stroke 24 mm for the new crank' });
     await vi.waitFor(async () => {
       await settle();
       expect(TestBed.inject(Router).url).toBe(`/cases/${caseId}/r/2/rig`);
     });
-    expect(storedNote(2)).toBe('Stroke 24 mm for the new crank');
     expect(localStorage.getItem(`qp.revisionNote.${caseId}`)).toBeNull();
   });
 
   it('keeps the note of a cancelled save for the next Save and saves nothing meanwhile', async () => {
-    await harness.navigateByUrl(`/cases/${caseId}/r/1/rig`, CasePage);
-    await settle();
+    await openRevision(1, 1);
     workspace()?.form.group.controls.drive.controls.amplitude.setValue(12);
     button('Save')?.click();
     await answerNote('Half-written note', 'Cancel');
-    expect((await firstValueFrom(repository.open(caseId))).latestRevision).toBe(1);
+    backend.expectNone((r) => r.method === 'POST');
 
     button('Save')?.click();
     await vi.waitFor(async () => {
@@ -142,28 +169,28 @@ describe('CasePage', { timeout: 30_000 }, () => {
       expect(noteField()?.value).toBe('Half-written note');
     });
     await answerNote(null);
-    await vi.waitFor(async () => expect((await firstValueFrom(repository.open(caseId))).latestRevision).toBe(2));
-    expect(storedNote(2)).toBe('Half-written note');
+    expect(await acceptSave(2)).toMatchObject({ note: 'Half-written note' });
   });
 
   it('offers the latest revision after a stale save and opens it with one click', async () => {
-    await harness.navigateByUrl(`/cases/${caseId}/r/1/rig`, CasePage);
-    await settle();
-    const colleague = templateCase();
-    colleague.drive.frequency = 55;
-    await firstValueFrom(repository.saveRevision(caseId, 1, colleague, 'a colleague'));
-
+    await openRevision(1, 1);
     workspace()?.form.group.controls.drive.controls.amplitude.setValue(12);
     button('Save')?.click();
     await answerNote('');
+    const sent = await answer('POST', `/api/cases/${caseId}/revisions`, { error: { code: 'stale_revision', message: 'r2 exists' } }, 409);
+    expect(sent).toMatchObject({ baseRevision: 1 });
     await settle();
 
     const alert = host().querySelector('[role=alert]');
-    expect(alert?.textContent).toMatch(/you edited r1, but r2 was saved since/);
+    expect(alert?.textContent).toMatch(/someone saved a newer revision of this case since you opened r1/);
     const openLatest = host().querySelector<HTMLButtonElement>('[data-testid=open-latest]');
     expect(openLatest?.textContent).toContain('Open latest revision');
 
     openLatest?.click();
+    const colleague = templateCase();
+    colleague.drive.frequency = 55;
+    await answer('GET', `/api/cases/${caseId}`, caseDetailReply({ title: 'Shared rig', latestRevision: 2 }));
+    await answer('GET', `/api/cases/${caseId}/revisions/2`, revisionReply(2, colleague, { caseTitle: 'Shared rig' }));
     await vi.waitFor(async () => {
       await settle();
       expect(TestBed.inject(Router).url).toBe(`/cases/${caseId}/r/2/rig`);
@@ -176,20 +203,28 @@ describe('CasePage', { timeout: 30_000 }, () => {
   });
 
   it('offers no shortcut for a refusal that is not about a newer revision', async () => {
-    await harness.navigateByUrl(`/cases/${caseId}/r/1/rig`, CasePage);
-    await settle();
-    localStorage.removeItem(LOCAL_CASES_KEY);
+    await openRevision(1, 1);
     workspace()?.form.group.controls.drive.controls.amplitude.setValue(12);
     button('Save')?.click();
     await answerNote('');
+    await answer('POST', `/api/cases/${caseId}/revisions`, { error: { code: 'case_not_found', message: 'No such case.', field: 'caseId' } }, 404);
     await settle();
-    expect(host().querySelector('[role=alert]')?.textContent).toContain('That case does not exist in this browser.');
+    expect(host().querySelector('[role=alert]')?.textContent).toContain('No such case.');
     expect(host().querySelector('[data-testid=open-latest]')).toBeNull();
   });
 
-  it('saves a changed title with Save, without a new revision', async () => {
-    await harness.navigateByUrl(`/cases/${caseId}/r/1/rig`, CasePage);
+  it('shows a reply that breaks the contract as an error in words, not as a guessed case', async () => {
+    const navigated = harness.navigateByUrl(`/cases/${caseId}/r/1/rig`, CasePage);
+    const { myRole: _role, ...withoutRole } = caseDetailReply({ title: 'Shared rig' });
+    await answer('GET', `/api/cases/${caseId}`, withoutRole);
+    await navigated;
     await settle();
+    expect(host().textContent).toContain("server's reply was not what this page expects");
+    expect(host().textContent).not.toContain('myRole');
+  });
+
+  it('saves a changed title with Save, without a new revision', async () => {
+    await openRevision(1, 1);
     const input = host().querySelector<HTMLTextAreaElement>('.title-field textarea');
     if (!input) throw new Error('the title of a writable case is editable');
     expect(input.value).toBe('Shared rig');
@@ -199,24 +234,21 @@ describe('CasePage', { timeout: 30_000 }, () => {
     expect(host().textContent).toContain('edited');
 
     button('Save')?.click();
+    const sent = await answer('PATCH', `/api/cases/${caseId}`, caseDetailReply({ title: 'Shared rig, long stroke' }));
+    expect(sent).toEqual({ title: 'Shared rig, long stroke' });
     await vi.waitFor(async () => {
       await settle();
       expect(workspace()?.titleEdited()).toBe(false);
     });
-    const stored = await firstValueFrom(repository.open(caseId));
-    expect(stored.title).toBe('Shared rig, long stroke');
-    expect(stored.tags).toEqual(['teaching']);
-    expect(stored.latestRevision).toBe(1);
+    expect(workspace()?.opened()?.tags).toEqual(['teaching']);
+    expect(workspace()?.opened()?.latestRevision).toBe(1);
     expect(workspace()?.opened()?.title).toBe('Shared rig, long stroke');
     expect(host().querySelector('[data-testid=revision]')?.textContent).toBe('r1');
     await vi.waitFor(() => expect(document.body.textContent).toContain('Title saved.'));
   });
 
   it('gives a role that cannot save no Save, no file loading and no editable field, and says so', async () => {
-    const open = repository.open.bind(repository);
-    vi.spyOn(repository, 'open').mockImplementation((id, rev) => open(id, rev).pipe(map((o) => ({ ...o, readOnly: true }))));
-    await harness.navigateByUrl(`/cases/${caseId}/r/1/rig`, CasePage);
-    await settle();
+    await openRevision(1, 1, templateCase(), 'viewer');
     expect(host().querySelector('h1')?.textContent).toContain('Shared rig');
     expect(host().querySelector('.title-field')).toBeNull();
     expect(button('Save')).toBeNull();

@@ -137,7 +137,7 @@ export class CasePage {
         },
         error: (error: unknown) => {
           this.problem.set(messageOf(error));
-          this.staleSave.set(error instanceof CaseRepositoryError && error.code === 'stale-revision');
+          this.staleSave.set(error instanceof CaseRepositoryError && error.code === 'stale_revision');
         },
       });
   }

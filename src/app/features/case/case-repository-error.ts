@@ -1,4 +1,4 @@
-export type CaseRepositoryErrorCode = 'stale-revision' | 'not-found' | 'invalid' | 'storage';
+export type CaseRepositoryErrorCode = 'stale_revision' | 'not_found' | 'invalid' | 'storage';
 
 /** A refusal from a repository, with a message meant for the user. */
 export class CaseRepositoryError extends Error {

@@ -1,9 +1,8 @@
-import { InjectionToken, inject } from '@angular/core';
+import { InjectionToken } from '@angular/core';
 import type { Observable } from 'rxjs';
 
 import type { CaseParams } from '../../../../shared/case/case-schema';
 import type { RunKind, RunRecord, RunSettings, RunSummary } from '../../../../shared/engine/run-record';
-import { LocalCaseRepository } from './local-case-repository';
 
 export { CaseRepositoryError, type CaseRepositoryErrorCode } from './case-repository-error';
 
@@ -53,14 +52,12 @@ export interface CaseRepository {
   /** The given revision, or the latest when `revision` is absent. */
   open(caseId: string, revision?: number): Observable<OpenedCase>;
   create(input: NewCase): Observable<OpenedCase>;
-  /** A new revision on top of `baseRevision`; fails with code `stale-revision` when that is no longer the latest. */
+  /** A new revision on top of `baseRevision`; fails with code `stale_revision` when that is no longer the latest. */
   saveRevision(caseId: string, baseRevision: number, params: CaseParams, note: string): Observable<OpenedCase>;
   saveRun(caseId: string, revision: number, run: RunRecord): Observable<StoredRun>;
   /** Renames the case (no new revision: the title is not part of the parameters); replaces the tags when given. */
   rename(caseId: string, title: string, tags?: readonly string[]): Observable<CaseLabel>;
 }
 
-export const CASE_REPOSITORY = new InjectionToken<CaseRepository>('CASE_REPOSITORY', {
-  providedIn: 'root',
-  factory: () => inject(LocalCaseRepository),
-});
+/** Provided by the case routes (ApiCaseRepository); specs provide FakeCaseRepository or the API one over HttpTestingController. */
+export const CASE_REPOSITORY = new InjectionToken<CaseRepository>('CASE_REPOSITORY');

@@ -10,7 +10,7 @@ import { templateCase } from '../../../../shared/case/templates';
 import { ENGINE_POOL } from '../../core/compute/engine-pool';
 import { CASE_REPOSITORY } from './case-repository';
 import { CaseWorkspace, messageOf } from './case-workspace';
-import { LOCAL_CASES_KEY, LocalCaseRepository } from './local-case-repository';
+import { FakeCaseRepository } from './fake-case-repository';
 
 /** A worker that runs the real engine request handler on this thread, one macrotask later. */
 class InProcessWorker implements WorkerLike {
@@ -36,13 +36,12 @@ describe('CaseWorkspace', () => {
   let workspace: CaseWorkspace;
 
   beforeEach(() => {
-    localStorage.removeItem(LOCAL_CASES_KEY);
     TestBed.configureTestingModule({
       providers: [
         provideHttpClient(),
         provideHttpClientTesting(),
         CaseWorkspace,
-        { provide: CASE_REPOSITORY, useExisting: LocalCaseRepository },
+        { provide: CASE_REPOSITORY, useExisting: FakeCaseRepository },
         { provide: ENGINE_POOL, useFactory: () => new WorkerPool(() => new InProcessWorker(), 1) },
       ],
     });
@@ -86,7 +85,7 @@ describe('CaseWorkspace', () => {
   });
 
   it('reports a save from a stale revision in words and keeps the edits', async () => {
-    const repository = TestBed.inject(LocalCaseRepository);
+    const repository = TestBed.inject(FakeCaseRepository);
     const created = await firstValueFrom(repository.create({ labId: null, title: 'Shared rig', tags: [], params: templateCase(), note: '' }));
     await firstValueFrom(workspace.open(created.caseId, 1));
     await firstValueFrom(repository.saveRevision(created.caseId, 1, templateCase(), 'a colleague'));
@@ -98,7 +97,7 @@ describe('CaseWorkspace', () => {
   });
 
   it('keeps an opened case unedited through a unit switch and a field put back as it was shown', async () => {
-    const repository = TestBed.inject(LocalCaseRepository);
+    const repository = TestBed.inject(FakeCaseRepository);
     const params = templateCase();
     params.start.angle = 0.15;
     params.drive.amplitude = 0.0123456789;

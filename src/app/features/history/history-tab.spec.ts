@@ -4,27 +4,29 @@ import { signal } from '@angular/core';
 import { ComponentFixture, TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 
-import { templateCase } from '../../../../shared/case';
+import type { LabRole } from '../../../../shared/api/common';
+import type { RunView } from '../../../../shared/api/cases';
+import { templateCase, type CaseParams } from '../../../../shared/case';
 import { CaseWorkspace } from '../case/case-workspace';
 import { DEFAULT_UNITS } from '../../core/units/display-units';
+import { FIXTURE_IDS, caseDetailReply, revisionReply, runReply } from '../library/reply-fixtures';
 import { HistoryTab } from './history-tab';
 
 const R1 = templateCase();
 const R2 = { ...R1, drive: { ...R1.drive, amplitude: 0.012 }, damping: { ...R1.damping, viscousRatio: 0.02 } };
 
-function run(kind: string, summary: object): object {
-  return { id: `${kind}-run`, kind, settings: { kind }, summary, resultDigest: 'a'.repeat(64), engineVersion: '1.0.0', author: null, createdAt: '2026-11-30T10:00:00.000Z' };
+/** One run per kind, with a stable id per kind. */
+const RUN_IDS: Record<string, string> = { motion: '00000000-0000-4000-8000-0000000000e1', margins: '00000000-0000-4000-8000-0000000000e2', sweep: '00000000-0000-4000-8000-0000000000e3' };
+
+function run(kind: string, summary: RunView['summary']): RunView {
+  return runReply({ id: RUN_IDS[kind] ?? '00000000-0000-4000-8000-0000000000e9', kind, settings: { kind }, summary, resultDigest: 'a'.repeat(64), author: null });
 }
 
 /** Stored runs per revision number (none unless a test sets them). */
-let runsOf: Record<number, object[]> = {};
+let runsOf: Record<number, RunView[]> = {};
 
-function revision(number: number, params: object): object {
-  return {
-    caseId: 'c1', caseTitle: 'Teaching rod', number, params, schemaVersion: 1, paramsDigest: `${number}`.repeat(64), note: `note ${number}`,
-    author: { id: 'u2', name: 'Ada Analyst' }, createdAt: '2026-11-30T10:00:00.000Z', recheckState: 'draft', recheckRequest: null,
-    runs: runsOf[number] ?? [], rechecks: [],
-  };
+function revision(number: number, params: CaseParams): object {
+  return revisionReply(number, params, { note: `note ${number}`, runs: runsOf[number] ?? [] });
 }
 
 describe('HistoryTab', () => {
@@ -32,7 +34,7 @@ describe('HistoryTab', () => {
   let backend: HttpTestingController;
   let host: HTMLElement;
 
-  async function open(role: string): Promise<void> {
+  async function open(role: LabRole): Promise<void> {
     TestBed.configureTestingModule({
       imports: [HistoryTab],
       providers: [
@@ -47,16 +49,20 @@ describe('HistoryTab', () => {
     fixture = TestBed.createComponent(HistoryTab);
     host = fixture.nativeElement as HTMLElement;
     fixture.detectChanges();
-    backend.expectOne('/api/cases/c1').flush({
-      id: 'c1', title: 'Teaching rod', tags: [], lab: { id: 'lab-1', name: 'Shaker Lab' }, archived: false, latestRevision: 2, myRole: role,
-      revisions: [
-        { number: 1, paramsDigest: '1'.repeat(64), note: 'first', author: { id: 'u2', name: 'Ada Analyst' }, createdAt: '2026-11-29T10:00:00.000Z', recheckState: 'confirmed' },
-        { number: 2, paramsDigest: '2'.repeat(64), note: 'stronger drive', author: { id: 'u2', name: 'Ada Analyst' }, createdAt: '2026-11-30T10:00:00.000Z', recheckState: 'draft' },
-      ],
-    });
+    const author = { id: FIXTURE_IDS.analyst, name: 'Ada Analyst' };
+    backend.expectOne('/api/cases/c1').flush(
+      caseDetailReply({
+        latestRevision: 2,
+        myRole: role,
+        revisions: [
+          { number: 1, paramsDigest: '1'.repeat(64), note: 'first', author, createdAt: '2026-11-29T10:00:00.000Z', recheckState: 'confirmed' },
+          { number: 2, paramsDigest: '2'.repeat(64), note: 'stronger drive', author, createdAt: '2026-11-30T10:00:00.000Z', recheckState: 'draft' },
+        ],
+      }),
+    );
     backend.expectOne('/api/cases/c1/revisions/1').flush(revision(1, R1));
     for (const request of backend.match('/api/cases/c1/revisions/2')) request.flush(revision(2, R2));
-    backend.expectOne('/api/cases/c1/revisions/2/comments').flush({ items: [] });
+    backend.expectOne((r) => r.url === '/api/cases/c1/revisions/2/comments').flush({ items: [], total: 0, page: 1, pageSize: 500 });
     fixture.detectChanges();
     await fixture.whenStable();
   }

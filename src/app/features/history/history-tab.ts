@@ -19,7 +19,7 @@ import { RouterLink } from '@angular/router';
 import { describeError } from '../../core/error-message';
 import { CaseWorkspace } from '../case/case-workspace';
 import { CaseLinksData, CaseLinksDialog } from '../case-links/case-links-dialog';
-import { LibraryApi } from '../library/library-api';
+import { CaseApi } from '../library/case-api';
 import { ComparisonTable } from '../recheck/comparison-table';
 import { RecheckChip } from '../recheck/recheck-chip';
 import { RecheckRequestData, RecheckRequestDialog } from '../recheck/recheck-request-dialog';
@@ -61,7 +61,7 @@ export function revisionUrl(caseId: string, revision: number, origin = globalThi
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class HistoryTab {
-  private readonly api = inject(LibraryApi);
+  private readonly api = inject(CaseApi);
   private readonly workspace = inject(CaseWorkspace);
   private readonly dialog = inject(MatDialog);
   private readonly snackBar = inject(MatSnackBar);

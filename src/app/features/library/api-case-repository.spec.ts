@@ -5,27 +5,27 @@ import { firstValueFrom } from 'rxjs';
 
 import { templateCase } from '../../../../shared/case';
 import { CaseRepositoryError } from '../case/case-repository-error';
+import { ReplyMismatchError } from '../../core/api-reply';
 import { ApiCaseRepository } from './api-case-repository';
+import { FIXTURE_IDS, caseDetailReply, revisionReply, runReply } from './reply-fixtures';
 
-const DETAIL = {
-  id: 'c1', title: 'Teaching rod', tags: ['teaching'], lab: { id: 'lab-1', name: 'Shaker Lab' }, archived: false, latestRevision: 3,
-  myRole: 'analyst', revisions: [],
-};
+const DETAIL = caseDetailReply({ latestRevision: 3 });
+const OTHER_RUN = '00000000-0000-4000-8000-0000000000e2';
+const HUGE_SWEEP = '00000000-0000-4000-8000-0000000000e3';
 
 function revision(number: number): object {
-  return {
-    caseId: 'c1', caseTitle: 'Teaching rod', number, params: templateCase(), schemaVersion: 1, paramsDigest: 'a'.repeat(64), note: '',
-    author: { id: 'u2', name: 'Ada Analyst' }, createdAt: '2026-11-30T10:00:00.000Z', recheckState: 'draft', recheckRequest: null,
+  return revisionReply(number, templateCase(), {
     runs: [
-      { id: 'r1', kind: 'motion', settings: { kind: 'motion' }, summary: { outcome: 'holds-upright' }, resultDigest: 'b'.repeat(64), engineVersion: '1.0.0', author: null, createdAt: '' },
-      { id: 'r2', kind: 'unknown-kind', settings: {}, summary: {}, resultDigest: '', engineVersion: '', author: null, createdAt: '' },
-      {
-        id: 'r3', kind: 'sweep', settings: { kind: 'sweep', spec: { field: 'drive.amplitude', from: 0.001, to: 0.01, steps: 1e6 } },
-        summary: {}, resultDigest: 'c'.repeat(64), engineVersion: '1.0.0', author: null, createdAt: '',
-      },
+      runReply(),
+      runReply({ id: OTHER_RUN, kind: 'teleport', settings: { kind: 'teleport' }, summary: {} }),
+      runReply({
+        id: HUGE_SWEEP,
+        kind: 'sweep',
+        settings: { kind: 'sweep', spec: { field: 'drive.amplitude', from: 0.001, to: 0.01, steps: 1e6 } },
+        summary: {},
+      }),
     ],
-    rechecks: [],
-  };
+  });
 }
 
 describe('ApiCaseRepository', () => {
@@ -45,11 +45,11 @@ describe('ApiCaseRepository', () => {
     backend.expectOne('/api/cases/c1').flush(DETAIL);
     backend.expectOne('/api/cases/c1/revisions/3').flush(revision(3));
     const value = await opened;
-    expect(value).toMatchObject({ caseId: 'c1', revision: 3, latestRevision: 3, readOnly: false, labId: 'lab-1' });
+    expect(value).toMatchObject({ caseId: FIXTURE_IDS.case, revision: 3, latestRevision: 3, readOnly: false, labId: FIXTURE_IDS.lab });
     expect(value.params.drive.frequency).toBe(40);
     // A run kind this engine does not know, or settings its run registry refuses, is left out rather than offered
     // for a rerun it cannot do.
-    expect(value.runs.map((r) => r.id)).toEqual(['r1']);
+    expect(value.runs.map((r) => r.id)).toEqual([FIXTURE_IDS.run]);
   });
 
   it('opens read-only for a viewer and for an archived case', async () => {
@@ -63,14 +63,23 @@ describe('ApiCaseRepository', () => {
     expect((await archived).readOnly).toBe(true);
   });
 
-  it('turns a stale save (409) into a stale-revision error that says to open the latest revision', async () => {
+  it('refuses a reply that breaks the contract instead of filling in defaults', async () => {
+    const opened = firstValueFrom(repository.open('c1')).catch((e: unknown) => e);
+    const { myRole: _role, ...withoutRole } = DETAIL;
+    backend.expectOne('/api/cases/c1').flush(withoutRole);
+    const error = await opened;
+    expect(error).toBeInstanceOf(ReplyMismatchError);
+    expect((error as ReplyMismatchError).details).toContain('myRole');
+  });
+
+  it('turns a stale save (409) into a stale_revision error that says to open the latest revision', async () => {
     const saved = firstValueFrom(repository.saveRevision('c1', 2, templateCase(), 'tweak'));
     const request = backend.expectOne('/api/cases/c1/revisions');
     expect(request.request.body).toMatchObject({ baseRevision: 2, note: 'tweak' });
-    request.flush({ error: { code: 'stale-revision', message: 'r3 exists' } }, { status: 409, statusText: 'Conflict' });
+    request.flush({ error: { code: 'stale_revision', message: 'r3 exists' } }, { status: 409, statusText: 'Conflict' });
     const error: unknown = await saved.catch((e: unknown) => e);
     expect(error).toBeInstanceOf(CaseRepositoryError);
-    expect((error as CaseRepositoryError).code).toBe('stale-revision');
+    expect((error as CaseRepositoryError).code).toBe('stale_revision');
     expect((error as CaseRepositoryError).message).toMatch(/since you opened r2.*Open the latest revision/);
   });
 

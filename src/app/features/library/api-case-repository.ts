@@ -8,8 +8,8 @@ import type { RunRecord } from '../../../../shared/engine/run-record';
 import { apiErrorOf, describeError } from '../../core/error-message';
 import type { CaseLabel, CaseRepository, NewCase, OpenedCase, StoredRun } from '../case/case-repository';
 import { CaseRepositoryError } from '../case/case-repository-error';
-import { LibraryApi } from './library-api';
-import { CaseDetail, RevisionDetail, RunView, parseCaseDetail } from './library-types';
+import { CaseApi } from './case-api';
+import { CaseDetail, RevisionDetail, RunView, isRecord } from './library-types';
 
 /** Roles that may save revisions and runs (the server enforces the same). */
 const WRITERS: readonly string[] = ['analyst', 'owner'];
@@ -55,7 +55,7 @@ export function repositoryErrorOf(error: unknown, baseRevision?: number): unknow
   if (error.status === 409) {
     const since = baseRevision ? ` since you opened r${baseRevision}` : '';
     return new CaseRepositoryError(
-      'stale-revision',
+      'stale_revision',
       `Not saved: someone saved a newer revision of this case${since}. Open the latest revision, reapply your changes and save again.`,
     );
   }
@@ -63,14 +63,14 @@ export function repositoryErrorOf(error: unknown, baseRevision?: number): unknow
     const field = api?.field?.replace(/^params\./, '');
     return new CaseRepositoryError('invalid', api?.message ?? 'The server refused these parameters.', field);
   }
-  if (error.status === 404) return new CaseRepositoryError('not-found', api?.message ?? 'That case does not exist, or you cannot see it.');
+  if (error.status === 404) return new CaseRepositoryError('not_found', api?.message ?? 'That case does not exist, or you cannot see it.');
   return new CaseRepositoryError('storage', describeError(error));
 }
 
 /** Cases kept by the server: the lab's library, shared with its members. */
 @Injectable({ providedIn: 'root' })
 export class ApiCaseRepository implements CaseRepository {
-  private readonly api = inject(LibraryApi);
+  private readonly api = inject(CaseApi);
 
   open(caseId: string, revision?: number): Observable<OpenedCase> {
     return this.api.getCase(caseId).pipe(
@@ -113,10 +113,7 @@ export class ApiCaseRepository implements CaseRepository {
 
   rename(caseId: string, title: string, tags?: readonly string[]): Observable<CaseLabel> {
     return this.api.updateCase(caseId, { title: title.trim(), ...(tags ? { tags: [...tags] } : {}) }).pipe(
-      map((reply) => {
-        const detail = parseCaseDetail(reply);
-        return { title: detail.title, tags: detail.tags };
-      }),
+      map((detail) => ({ title: detail.title, tags: detail.tags })),
       catchError((error: unknown) => throwError(() => repositoryErrorOf(error))),
     );
   }

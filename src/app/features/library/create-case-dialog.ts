@@ -8,7 +8,7 @@ import { MatSelectModule } from '@angular/material/select';
 
 import { DEMO_RIGS, demoRigCase, templateCase } from '../../../../shared/case';
 import { apiErrorOf, describeError } from '../../core/error-message';
-import { LibraryApi } from './library-api';
+import { CaseApi } from './case-api';
 import type { CaseDetail } from './library-types';
 
 export interface CreateCaseData {
@@ -74,7 +74,7 @@ export function parseTags(value: string): string[] {
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class CreateCaseDialog {
-  private readonly api = inject(LibraryApi);
+  private readonly api = inject(CaseApi);
   private readonly dialogRef = inject<MatDialogRef<CreateCaseDialog, CaseDetail>>(MatDialogRef);
   protected readonly data = inject<CreateCaseData>(MAT_DIALOG_DATA);
 

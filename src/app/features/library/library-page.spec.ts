@@ -22,13 +22,14 @@ function signInAs(role: LabRole): void {
 function casePage(total: number, titles: string[], page = 1, pageSize = 20): object {
   return {
     items: titles.map((title, i) => ({
-      id: `c${i}`,
+      id: `00000000-0000-4000-8000-00000000000${i}`,
       title,
       tags: ['shaker'],
-      labId: 'lab-1',
+      labId: '00000000-0000-4000-8000-00000000000a',
       latestRevision: 2,
       recheckState: i === 0 ? 'awaiting-recheck' : 'confirmed',
-      author: { id: 'u2', name: 'Ada Analyst' },
+      author: { id: '00000000-0000-4000-8000-0000000000a1', name: 'Ada Analyst' },
+      createdAt: '2026-11-29T10:00:00.000Z',
       updatedAt: '2026-11-30T10:00:00.000Z',
       archived: false,
     })),
@@ -48,7 +49,7 @@ const MEMBERS = {
   offset: 0,
 };
 
-describe('LibraryPage', () => {
+describe('LibraryPage', { timeout: 20_000 }, () => {
   let fixture: ComponentFixture<LibraryPage>;
   let backend: HttpTestingController;
   let host: HTMLElement;
@@ -93,7 +94,7 @@ describe('LibraryPage', () => {
     await settle();
     const titles = Array.from(host.querySelectorAll('.case-title'), (e) => e.textContent?.trim());
     expect(titles).toEqual(['Tall rod', 'Bench crank']);
-    expect(host.querySelector('.case-title')?.getAttribute('href')).toBe('/cases/c0/r/2');
+    expect(host.querySelector('.case-title')?.getAttribute('href')).toBe('/cases/00000000-0000-4000-8000-000000000000/r/2');
     expect(host.textContent).toContain('Awaiting recheck');
     expect(host.querySelector('.create-button')).not.toBeNull();
   });

@@ -24,7 +24,7 @@ import { Session } from '../../core/session';
 import { LabMembers } from '../labs/lab-members';
 import { RecheckChip } from '../recheck/recheck-chip';
 import { CreateCaseDialog, CreateCaseData } from './create-case-dialog';
-import { CaseQuery, CaseSort, LibraryApi } from './library-api';
+import { CaseApi, CaseQuery, CaseSort } from './case-api';
 import { CaseSummary, RECHECK_STATES, RecheckState } from './library-types';
 
 /** Pause after the last keystroke before the search goes to the server. */
@@ -68,7 +68,7 @@ export function sortParam(sort: Sort): CaseSort {
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class LibraryPage {
-  private readonly api = inject(LibraryApi);
+  private readonly api = inject(CaseApi);
   private readonly session = inject(Session);
   private readonly labMembers = inject(LabMembers);
   private readonly dialog = inject(MatDialog);

@@ -9,6 +9,8 @@ import { WorkerPool, type WorkerLike } from '../../../../shared/compute/worker-p
 import { computeRun, makeRunRecord } from '../../../../shared/engine/run-record';
 import { ENGINE_POOL } from '../../core/compute/engine-pool';
 import { RecheckPage } from './recheck-page';
+import { caseDetailReply, revisionReply } from '../library/reply-fixtures';
+import type { RunView } from '../library/library-types';
 
 /** The real pool and engine, with the worker boundary replaced by a task on this thread. */
 function inThreadWorker(): WorkerLike {
@@ -26,6 +28,11 @@ const PARAMS = (() => {
   return { ...p, run: { ...p.run, duration: 2, outputPoints: 400 } };
 })();
 
+const RUN_GOOD = '00000000-0000-4000-8000-0000000000e1';
+const RUN_EDITED = '00000000-0000-4000-8000-0000000000e2';
+const ANALYST = { id: '00000000-0000-4000-8000-0000000000a1', name: 'Ada Analyst' };
+const REVIEWER = { id: '00000000-0000-4000-8000-0000000000b1', name: 'Rui Reviewer' };
+
 function storedRuns(): object[] {
   const record = makeRunRecord(PARAMS, { kind: 'motion' }, computeRun(PARAMS, { kind: 'motion' }));
   const maxDeviation = Number(record.summary['maxDeviation']);
@@ -37,16 +44,16 @@ function storedRuns(): object[] {
     resultDigest: record.resultDigest,
     engineVersion: record.engineVersion,
     verification,
-    author: { id: 'u2', name: 'Ada Analyst' },
+    author: ANALYST,
     createdAt: '2026-11-30T10:00:00.000Z',
   });
-  const verified = { state: 'verified', verifiedAt: '2026-11-30T10:00:05.000Z', failure: null, claimed: null, differences: [], resultBytes: { raw: 9000, compressed: 4000 } };
+  const verified = { state: 'verified', verifiedAt: '2026-11-30T10:00:05.000Z', engineVersion: record.engineVersion, failure: null, claimed: null, differences: [], resultBytes: { raw: 9000, compressed: 4000 } };
   const unreproduced = {
     ...verified,
     state: 'unreproduced',
     differences: [{ name: 'maxDeviation', stored: maxDeviation * 1.01, rerun: maxDeviation, difference: maxDeviation * 0.01, tolerance: maxDeviation * 1e-6, match: false }],
   };
-  return [view('run-good', record.summary, verified), view('run-edited', { ...record.summary, maxDeviation: maxDeviation * 1.01 }, unreproduced)];
+  return [view(RUN_GOOD, record.summary, verified), view(RUN_EDITED, { ...record.summary, maxDeviation: maxDeviation * 1.01 }, unreproduced)];
 }
 
 describe('RecheckPage', () => {
@@ -70,16 +77,15 @@ describe('RecheckPage', () => {
     fixture.componentRef.setInput('rev', '2');
     host = fixture.nativeElement as HTMLElement;
     fixture.detectChanges();
-    backend.expectOne('/api/cases/c1').flush({
-      id: 'c1', title: 'Bench rod', tags: [], lab: { id: 'lab-1', name: 'Shaker Lab' }, archived: false, latestRevision: 2,
-      myRole: 'reviewer', revisions: [],
-    });
-    backend.expectOne('/api/cases/c1/revisions/2').flush({
-      caseId: 'c1', caseTitle: 'Bench rod', number: 2, params: PARAMS, schemaVersion: 1, paramsDigest: 'd'.repeat(64), note: '',
-      author: { id: 'u2', name: 'Ada Analyst' }, createdAt: '2026-11-30T10:00:00.000Z', recheckState: 'awaiting-recheck',
-      recheckRequest: { requestedBy: { id: 'u2', name: 'Ada Analyst' }, reviewer: { id: 'u3', name: 'Rui Reviewer' }, message: 'Please check r2', requestedAt: '2026-11-30T10:05:00.000Z' },
-      runs: storedRuns(), rechecks: [],
-    });
+    backend.expectOne('/api/cases/c1').flush(caseDetailReply({ title: 'Bench rod', latestRevision: 2, myRole: 'reviewer' }));
+    backend.expectOne('/api/cases/c1/revisions/2').flush(
+      revisionReply(2, PARAMS, {
+        caseTitle: 'Bench rod',
+        recheckState: 'awaiting-recheck',
+        recheckRequest: { requestedBy: ANALYST, reviewer: REVIEWER, message: 'Please check r2', requestedAt: '2026-11-30T10:05:00.000Z' },
+        runs: storedRuns() as RunView[],
+      }),
+    );
     fixture.detectChanges();
     await fixture.whenStable();
   });
@@ -111,7 +117,7 @@ describe('RecheckPage', () => {
     host.querySelector<HTMLButtonElement>('.dispute')?.click();
     const posted = backend.expectOne('/api/cases/c1/revisions/2/rechecks');
     expect(posted.request.body).toEqual({ verdict: 'disputed', comment: 'maxDeviation moved by 1 %' });
-    posted.flush({ id: 'rc1', reviewer: { id: 'u3', name: 'Rui Reviewer' }, state: 'disputed', digestMatch: true, comparisons: [], comment: '', createdAt: '' });
+    posted.flush({ id: '00000000-0000-4000-8000-0000000000f1', reviewer: REVIEWER, state: 'disputed', digestMatch: true, comparisons: [], comment: 'maxDeviation moved by 1 %', createdAt: '2026-11-30T10:10:00.000Z' });
   });
 
   it('still reruns every stored run in this browser on request and shows each comparison', async () => {

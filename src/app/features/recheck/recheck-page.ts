@@ -12,7 +12,7 @@ import { Router, RouterLink } from '@angular/router';
 import { forkJoin } from 'rxjs';
 
 import { describeError } from '../../core/error-message';
-import { LibraryApi } from '../library/library-api';
+import { CaseApi } from '../library/case-api';
 import type { RecheckVerdict } from '../library/library-types';
 import { RecheckChip } from './recheck-chip';
 import { ComparisonTable } from './comparison-table';
@@ -45,7 +45,7 @@ const PENDING_POLL_MS = 2000;
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class RecheckPage {
-  private readonly api = inject(LibraryApi);
+  private readonly api = inject(CaseApi);
   private readonly snackBar = inject(MatSnackBar);
   private readonly router = inject(Router);
 

@@ -11,7 +11,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { describeError } from '../../core/error-message';
 import { Session } from '../../core/session';
 import { LabMembers } from '../labs/lab-members';
-import { LibraryApi } from '../library/library-api';
+import { CaseApi } from '../library/case-api';
 
 export interface RecheckRequestData {
   readonly caseId: string;
@@ -65,7 +65,7 @@ export interface RecheckRequestData {
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class RecheckRequestDialog {
-  private readonly api = inject(LibraryApi);
+  private readonly api = inject(CaseApi);
   private readonly labMembers = inject(LabMembers);
   private readonly session = inject(Session);
   private readonly dialogRef = inject<MatDialogRef<RecheckRequestDialog, boolean>>(MatDialogRef);

@@ -9,7 +9,7 @@ import { WorkerPool } from '../../../../../shared/compute/worker-pool';
 import { ENGINE_POOL } from '../../../core/compute/engine-pool';
 import { CASE_REPOSITORY } from '../case-repository';
 import { CaseWorkspace } from '../case-workspace';
-import { LocalCaseRepository } from '../local-case-repository';
+import { FakeCaseRepository } from '../fake-case-repository';
 import { RigTab } from './rig-tab';
 
 describe('RigTab', () => {
@@ -23,7 +23,7 @@ describe('RigTab', () => {
         provideHttpClient(),
         provideHttpClientTesting(),
         CaseWorkspace,
-        { provide: CASE_REPOSITORY, useExisting: LocalCaseRepository },
+        { provide: CASE_REPOSITORY, useExisting: FakeCaseRepository },
         // The Rig tab computes nothing in workers; a pool whose workers would fail loudly proves it.
         {
           provide: ENGINE_POOL,

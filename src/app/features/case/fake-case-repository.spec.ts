@@ -5,14 +5,13 @@ import { caseDigest } from '../../../../shared/case/canonical';
 import { templateCase } from '../../../../shared/case/templates';
 import { computeRun, makeRunRecord } from '../../../../shared/engine/run-record';
 import { CaseRepositoryError } from './case-repository-error';
-import { LOCAL_CASES_KEY, LocalCaseRepository } from './local-case-repository';
+import { FakeCaseRepository } from './fake-case-repository';
 
-describe('LocalCaseRepository', () => {
-  let repository: LocalCaseRepository;
+describe('FakeCaseRepository', () => {
+  let repository: FakeCaseRepository;
 
   beforeEach(() => {
-    localStorage.removeItem(LOCAL_CASES_KEY);
-    repository = TestBed.inject(LocalCaseRepository);
+    repository = TestBed.inject(FakeCaseRepository);
   });
 
   it('creates r1, adds r2 on top of it, and opens either', async () => {
@@ -28,12 +27,12 @@ describe('LocalCaseRepository', () => {
     expect(reopened.latestRevision).toBe(2);
   });
 
-  it('refuses a save from a stale revision with stale-revision, writing nothing', async () => {
+  it('refuses a save from a stale revision with stale_revision, writing nothing', async () => {
     const first = await firstValueFrom(repository.create({ labId: null, title: 'Rig B', tags: [], params: templateCase(), note: '' }));
     await firstValueFrom(repository.saveRevision(first.caseId, 1, templateCase(), ''));
     const error: unknown = await firstValueFrom(repository.saveRevision(first.caseId, 1, templateCase(), '')).catch((e: unknown) => e);
     expect(error).toBeInstanceOf(CaseRepositoryError);
-    expect((error as CaseRepositoryError).code).toBe('stale-revision');
+    expect((error as CaseRepositoryError).code).toBe('stale_revision');
     expect((error as CaseRepositoryError).message).toMatch(/r2 was saved since/);
     expect((await firstValueFrom(repository.open(first.caseId))).latestRevision).toBe(2);
   });
@@ -72,6 +71,6 @@ describe('LocalCaseRepository', () => {
     expect((empty as CaseRepositoryError).code).toBe('invalid');
     expect((await firstValueFrom(repository.open(first.caseId))).title).toBe('Rig D');
     const missing: unknown = await firstValueFrom(repository.rename('case-nope', 'X')).catch((e: unknown) => e);
-    expect((missing as CaseRepositoryError).code).toBe('not-found');
+    expect((missing as CaseRepositoryError).code).toBe('not_found');
   });
 });

@@ -8,9 +8,6 @@ import type { RunRecord } from '../../../../shared/engine/run-record';
 import type { CaseLabel, CaseRepository, NewCase, OpenedCase, StoredRun } from './case-repository';
 import { CaseRepositoryError } from './case-repository-error';
 
-/** Storage key of the browser-local case library. */
-export const LOCAL_CASES_KEY = 'quiverpoint.local-cases';
-
 interface LocalRevision {
   number: number;
   params: CaseParams;
@@ -36,18 +33,23 @@ function newId(prefix: string): string {
 }
 
 /**
- * Cases kept in this browser's local storage: the same rules as the API (revisions and runs append-only, a save from
- * a stale revision is refused, a run must belong to its revision's parameters).
+ * Test double of the case repository for specs of the workspace and tabs: cases in memory under the same rules as
+ * the API (revisions and runs append-only, a save from a stale revision is refused, a run must belong to its
+ * revision's parameters). The app itself always uses ApiCaseRepository; the case page's own spec talks to it
+ * through HttpTestingController.
  */
 @Injectable({ providedIn: 'root' })
-export class LocalCaseRepository implements CaseRepository {
+export class FakeCaseRepository implements CaseRepository {
+  /** Copied on every read and write, so callers never share objects with the store (as with a server). */
+  private stored = '{}';
+
   open(caseId: string, revision?: number): Observable<OpenedCase> {
     return defer(() => {
       const stored = this.read()[caseId];
-      if (!stored) return throwError(() => new CaseRepositoryError('not-found', 'That case does not exist in this browser.'));
+      if (!stored) return throwError(() => new CaseRepositoryError('not_found', 'That case does not exist.'));
       const number = revision ?? stored.revisions.length;
       const rev = stored.revisions.find((r) => r.number === number);
-      if (!rev) return throwError(() => new CaseRepositoryError('not-found', `Case "${stored.title}" has no revision r${number}.`));
+      if (!rev) return throwError(() => new CaseRepositoryError('not_found', `Case "${stored.title}" has no revision r${number}.`));
       return of(this.view(stored, rev));
     });
   }
@@ -73,13 +75,13 @@ export class LocalCaseRepository implements CaseRepository {
     return defer(() => {
       const library = this.read();
       const stored = library[caseId];
-      if (!stored) return throwError(() => new CaseRepositoryError('not-found', 'That case does not exist in this browser.'));
+      if (!stored) return throwError(() => new CaseRepositoryError('not_found', 'That case does not exist.'));
       const latest = stored.revisions.length;
       if (baseRevision !== latest) {
         return throwError(
           () =>
             new CaseRepositoryError(
-              'stale-revision',
+              'stale_revision',
               `Not saved: you edited r${baseRevision}, but r${latest} was saved since. Open r${latest}, reapply your changes, and save again.`,
             ),
         );
@@ -95,7 +97,7 @@ export class LocalCaseRepository implements CaseRepository {
     return defer(() => {
       const library = this.read();
       const rev = library[caseId]?.revisions.find((r) => r.number === revision);
-      if (!rev) return throwError(() => new CaseRepositoryError('not-found', `Revision r${revision} does not exist.`));
+      if (!rev) return throwError(() => new CaseRepositoryError('not_found', `Revision r${revision} does not exist.`));
       if (caseDigest(run.params) !== rev.paramsDigest) {
         return throwError(
           () => new CaseRepositoryError('invalid', `This run was computed for other parameters than r${revision}.`),
@@ -120,7 +122,7 @@ export class LocalCaseRepository implements CaseRepository {
     return defer(() => {
       const library = this.read();
       const stored = library[caseId];
-      if (!stored) return throwError(() => new CaseRepositoryError('not-found', 'That case does not exist in this browser.'));
+      if (!stored) return throwError(() => new CaseRepositoryError('not_found', 'That case does not exist.'));
       const trimmed = title.trim();
       if (!trimmed) return throwError(() => new CaseRepositoryError('invalid', 'A case needs a title.', 'title'));
       stored.title = trimmed;
@@ -159,20 +161,10 @@ export class LocalCaseRepository implements CaseRepository {
   }
 
   private read(): LocalLibrary {
-    try {
-      const raw = localStorage.getItem(LOCAL_CASES_KEY);
-      const parsed: unknown = raw ? JSON.parse(raw) : {};
-      return typeof parsed === 'object' && parsed !== null ? (parsed as LocalLibrary) : {};
-    } catch {
-      return {};
-    }
+    return JSON.parse(this.stored) as LocalLibrary;
   }
 
   private write(library: LocalLibrary): void {
-    try {
-      localStorage.setItem(LOCAL_CASES_KEY, JSON.stringify(library));
-    } catch {
-      throw new CaseRepositoryError('storage', 'This browser refused to store the case (storage full or disabled).');
-    }
+    this.stored = JSON.stringify(library);
   }
 }
