@@ -31,7 +31,7 @@ const swing = syntheticTrace(
   { sampleRate: 100, duration: 10, noise: 0.001, offset: 0.02, fromHanging: true, seed: 4 },
 );
 const TRACE: BenchTrace = {
-  id: 't1', label: 'Bench swing', fileName: 'swing.csv', rows: swing.time.length, columns: ['time', 'angle'], duration: 10,
+  id: 't1', label: 'Bench swing', fileName: 'swing.csv', sizeBytes: 4096, rows: swing.time.length, columns: ['time', 'angle'], angleUnit: 'rad', duration: 10,
   createdAt: '2026-12-01T10:00:00.000Z', author: null, time: swing.time, angle: swing.angle, pivot: null,
 };
 

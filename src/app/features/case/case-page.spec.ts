@@ -219,7 +219,8 @@ describe('CasePage', { timeout: 30_000 }, () => {
     await answer('GET', `/api/cases/${caseId}`, withoutRole);
     await navigated;
     await settle();
-    expect(host().textContent).toContain("server's reply was not what this page expects");
+    expect(workspace()?.loadError()).toContain("server's reply was not what this page expects");
+    expect(workspace()?.opened()).toBeNull();
     expect(host().textContent).not.toContain('myRole');
   });
 
