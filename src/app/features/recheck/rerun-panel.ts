@@ -69,7 +69,7 @@ interface RerunRow {
               <strong>{{ c.digestMatch ? 'same digest' : 'different digest' }}</strong>.
               Engine {{ c.engineVersionStored }} stored it; {{ c.engineVersionNow }} reran it.
             </p>
-            <qp-comparison-table [rows]="c.numbers" />
+            <qp-comparison-table [rows]="c.numbers" [kind]="c.kind" [digestMatch]="c.digestMatch" />
           }
         </mat-expansion-panel>
       }
