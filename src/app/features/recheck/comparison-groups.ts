@@ -22,6 +22,28 @@ function valuePath(key: string, sweptField: string | null): string {
 
 const showValue = (path: string, value: unknown): string => formatFieldValue(path, revive(value), DEFAULT_UNITS, COMPARED_DIGITS);
 
+/** Run kinds as the tabs name them. */
+const KIND_WORDS: Readonly<Record<string, string>> = {
+  motion: 'Motion',
+  margins: 'Floquet margins',
+  sweep: 'Sweep',
+  chart: 'Stability chart',
+  map: 'Outcome map',
+  basin: 'Basin of attraction',
+};
+
+export function runKindWords(kind: string | null | undefined): string {
+  return kind ? (KIND_WORDS[kind] ?? kind) : 'Run';
+}
+
+/** The swept field of a run's stored settings, if it is a sweep. */
+export function sweptFieldOf(settings: unknown): string | null {
+  if (typeof settings !== 'object' || settings === null || !('spec' in settings)) return null;
+  const spec = settings.spec;
+  if (typeof spec !== 'object' || spec === null || !('field' in spec)) return null;
+  return typeof spec.field === 'string' ? spec.field : null;
+}
+
 /** One compared number, from a rerun in this browser or from the server's comparison. */
 export interface ComparisonRow {
   readonly name: string;

@@ -1,19 +1,10 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { MatIconModule } from '@angular/material/icon';
 
-import { type ComparisonRow, groupComparison } from './comparison-groups';
+import { type ComparisonRow, groupComparison, runKindWords } from './comparison-groups';
 
 export type { ComparisonRow } from './comparison-groups';
 
-/** Run kinds as the tabs name them. */
-const KIND_WORDS: Readonly<Record<string, string>> = {
-  motion: 'Motion',
-  margins: 'Floquet margins',
-  sweep: 'Sweep',
-  chart: 'Stability chart',
-  map: 'Outcome map',
-  basin: 'Basin of attraction',
-};
 
 /**
  * One run's comparison, grouped: a summary line (digest, how many numbers differ), the tolerance once, the numbers
@@ -25,6 +16,7 @@ const KIND_WORDS: Readonly<Record<string, string>> = {
   imports: [MatIconModule],
   template: `
     @let g = group();
+    @if (showSummary()) {
     <p class="run-summary" [class.bad]="g.differing > 0 || digestMatch() === false" data-testid="run-summary">
       <strong>{{ kindWords() }}</strong>
       @if (digestMatch() !== null) {
@@ -32,6 +24,7 @@ const KIND_WORDS: Readonly<Record<string, string>> = {
       }
       · @if (g.differing === 0) { every number agrees } @else { {{ g.differing }} of {{ g.total }} numbers differ }
     </p>
+    }
     @if (g.tolerance; as tolerance) {
       <p class="tolerance">Tolerance: {{ tolerance }}</p>
     }
@@ -127,10 +120,9 @@ export class ComparisonTable {
   readonly digestMatch = input<boolean | null>(null);
   /** The sweep's field when the rows leave it out (threshold values take its unit). */
   readonly sweptField = input<string | null>(null);
+  /** Off where the page already says how the run compares (the server's verification lists only the differences). */
+  readonly showSummary = input(true);
 
   protected readonly group = computed(() => groupComparison(this.rows(), this.sweptField()));
-  protected readonly kindWords = computed(() => {
-    const kind = this.kind();
-    return kind ? (KIND_WORDS[kind] ?? kind) : 'Run';
-  });
+  protected readonly kindWords = computed(() => runKindWords(this.kind()));
 }

@@ -16,6 +16,7 @@ import { CaseApi } from '../library/case-api';
 import type { RecheckVerdict } from '../library/library-types';
 import { RecheckChip } from './recheck-chip';
 import { ComparisonTable } from './comparison-table';
+import { runKindWords, sweptFieldOf } from './comparison-groups';
 import { RerunPanel } from './rerun-panel';
 
 const PENDING_POLL_MS = 2000;
@@ -77,6 +78,9 @@ export class RecheckPage {
   protected readonly comment = signal('');
   protected readonly submitting = signal(false);
   protected readonly submitError = signal<string | null>(null);
+
+  protected readonly kindWords = runKindWords;
+  protected readonly sweptField = sweptFieldOf;
 
   protected historyLink(): string[] {
     return ['/cases', this.caseId(), 'r', String(this.revision()), 'history'];
