@@ -5,6 +5,7 @@
 import { fieldInfo, fieldLabel, formatFieldValue } from '../../core/units/field-table';
 import { DEFAULT_UNITS } from '../../core/units/display-units';
 import { formatIn, formatNumber, withUnit } from '../../core/units/format-number';
+import { RUN_KIND_LABELS } from '../history/stored-runs-table';
 import type { SummaryValue } from '../library/library-types';
 
 /** A sweep point's summary entry: `point.<i>.<what>`. */
@@ -22,18 +23,9 @@ function valuePath(key: string, sweptField: string | null): string {
 
 const showValue = (path: string, value: unknown): string => formatFieldValue(path, revive(value), DEFAULT_UNITS, COMPARED_DIGITS);
 
-/** Run kinds as the tabs name them. */
-const KIND_WORDS: Readonly<Record<string, string>> = {
-  motion: 'Motion',
-  margins: 'Floquet margins',
-  sweep: 'Sweep',
-  chart: 'Stability chart',
-  map: 'Outcome map',
-  basin: 'Basin of attraction',
-};
-
+/** A run kind as the tabs name it. */
 export function runKindWords(kind: string | null | undefined): string {
-  return kind ? (KIND_WORDS[kind] ?? kind) : 'Run';
+  return kind ? (RUN_KIND_LABELS[kind] ?? kind) : 'Run';
 }
 
 /** The swept field of a run's stored settings, if it is a sweep. */
