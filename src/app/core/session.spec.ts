@@ -1,10 +1,12 @@
 import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
+import { firstValueFrom } from 'rxjs';
 
+import { ReplyMismatchError } from './api-reply';
 import { SESSION_STORAGE_KEY, Session } from './session';
 
-const ADA = { id: 'u1', name: 'Ada Analyst', email: 'analyst@example.org' };
+const ADA = { id: '00000000-0000-4000-8000-0000000000a1', name: 'Ada Analyst', email: 'analyst@example.org', isSiteAdmin: false };
 
 describe('Session', () => {
   function setUp(): { session: Session; backend: HttpTestingController } {
@@ -22,40 +24,57 @@ describe('Session', () => {
     expect(setUp().session.isSignedIn()).toBe(false);
   });
 
-  it('keeps the chosen lab across a refresh while the user still belongs to it', () => {
+  it('keeps the chosen lab across a refresh while the user still belongs to it', async () => {
     localStorage.setItem(
       SESSION_STORAGE_KEY,
-      JSON.stringify({ token: 't', user: ADA, memberships: [], currentLabId: 'lab-2' }),
+      JSON.stringify({ token: 't', user: ADA, memberships: [], currentLabId: '00000000-0000-4000-8000-00000000002a' }),
     );
     const { session, backend } = setUp();
-    session.refresh().subscribe();
+    const refreshed = firstValueFrom(session.refresh());
     backend.expectOne('/api/me').flush({
       user: ADA,
       memberships: [
-        { labId: 'lab-1', labName: 'Bench Lab', role: 'analyst' },
-        { labId: 'lab-2', labName: 'Shaker Lab', role: 'owner' },
+        { labId: '00000000-0000-4000-8000-00000000001a', labName: 'Bench Lab', role: 'analyst' },
+        { labId: '00000000-0000-4000-8000-00000000002a', labName: 'Shaker Lab', role: 'owner' },
       ],
+      tokenExpiresAt: '2030-01-01T00:00:00.000Z',
     });
-    expect(session.currentLab()).toEqual({ id: 'lab-2', name: 'Shaker Lab' });
-    expect(session.roleIn('lab-2')).toBe('owner');
+    await refreshed;
+    expect(session.currentLab()).toEqual({ id: '00000000-0000-4000-8000-00000000002a', name: 'Shaker Lab' });
+    expect(session.roleIn('00000000-0000-4000-8000-00000000002a')).toBe('owner');
     const stored: unknown = JSON.parse(localStorage.getItem(SESSION_STORAGE_KEY) ?? 'null');
-    expect(stored).toMatchObject({ currentLabId: 'lab-2' });
+    expect(stored).toMatchObject({ currentLabId: '00000000-0000-4000-8000-00000000002a' });
   });
 
-  it('falls back to the first lab when the chosen one is gone, and refuses to select a lab it is not in', () => {
+  it('falls back to the first lab when the chosen one is gone, and refuses to select a lab it is not in', async () => {
     localStorage.setItem(
       SESSION_STORAGE_KEY,
       JSON.stringify({ token: 't', user: ADA, memberships: [], currentLabId: 'lab-gone' }),
     );
     const { session, backend } = setUp();
-    session.refresh().subscribe();
+    const refreshed = firstValueFrom(session.refresh());
     backend.expectOne('/api/me').flush({
       user: ADA,
-      memberships: [{ labId: 'lab-1', labName: 'Bench Lab', role: 'viewer' }],
+      memberships: [{ labId: '00000000-0000-4000-8000-00000000001a', labName: 'Bench Lab', role: 'viewer' }],
+      tokenExpiresAt: '2030-01-01T00:00:00.000Z',
     });
-    expect(session.currentLab()?.id).toBe('lab-1');
+    await refreshed;
+    expect(session.currentLab()?.id).toBe('00000000-0000-4000-8000-00000000001a');
     session.selectLab('lab-stranger');
-    expect(session.currentLab()?.id).toBe('lab-1');
+    expect(session.currentLab()?.id).toBe('00000000-0000-4000-8000-00000000001a');
+  });
+
+  it('refuses an account reply that breaks the contract instead of guessing, and keeps what it had', async () => {
+    localStorage.setItem(
+      SESSION_STORAGE_KEY,
+      JSON.stringify({ token: 't', user: ADA, memberships: [{ lab: { id: 'lab-kept', name: 'Bench Lab' }, role: 'owner' }], currentLabId: 'lab-kept' }),
+    );
+    const { session, backend } = setUp();
+    const failure = firstValueFrom(session.refresh()).catch((error: unknown) => error);
+    // A role this build does not know, and no token expiry.
+    backend.expectOne('/api/me').flush({ user: ADA, memberships: [{ labId: '00000000-0000-4000-8000-00000000001a', labName: 'Bench Lab', role: 'admin' }] });
+    expect(await failure).toBeInstanceOf(ReplyMismatchError);
+    expect(session.roleIn('lab-kept')).toBe('owner');
   });
 
   it('forgets the session on sign-out even when the server cannot be reached', () => {

@@ -2,18 +2,20 @@ import { HttpClient } from '@angular/common/http';
 import { Injectable, computed, inject, signal, untracked } from '@angular/core';
 import { Observable, map, switchMap, tap } from 'rxjs';
 
-export type LabRole = 'owner' | 'analyst' | 'reviewer' | 'viewer';
+import type { PublicUser } from '../../../shared/api/auth';
+import type { LabRole } from '../../../shared/api/common';
+import { parseReply } from './api-reply';
+
+/** The contract's schemas bring zod, which stays out of the first download: they load with the first reply. */
+const authContract = () => import('../../../shared/api/auth');
+
+export type { LabRole };
 
 /** Roles that may create and save cases (the server enforces the same on every write). */
 export const CASE_WRITER_ROLES: readonly LabRole[] = ['analyst', 'owner'];
 
-export interface User {
-  readonly id: string;
-  readonly name: string;
-  readonly email: string;
-  /** Site administrators see the local mail sink and outbox; the server checks it on every admin route. */
-  readonly isSiteAdmin: boolean;
-}
+/** Site administrators see the local mail sink and outbox; the server checks it on every admin route. */
+export type User = Readonly<PublicUser>;
 
 export interface Lab {
   readonly id: string;
@@ -63,12 +65,7 @@ export class Session {
 
   signIn(email: string, password: string): Observable<User> {
     return this.http.post<unknown>('/api/auth/sign-in', { email, password }).pipe(
-      map((reply) => {
-        const user = isRecord(reply) ? parseUser(reply['user']) : null;
-        const token = isRecord(reply) ? reply['token'] : null;
-        if (typeof token !== 'string' || !user) throw new Error('The server sent an unexpected sign-in reply.');
-        return { token, user };
-      }),
+      switchMap(async (reply) => parseReply((await authContract()).signedInSchema, 'signing in', reply)),
       tap(({ token, user }) => this.store({ token, user, memberships: [], currentLabId: null })),
       switchMap(() => this.refresh()),
     );
@@ -77,11 +74,11 @@ export class Session {
   /** Reloads the user and their memberships; keeps the chosen lab when it is still one of theirs. */
   refresh(): Observable<User> {
     return this.http.get<unknown>('/api/me').pipe(
-      map((reply) => {
-        const user = isRecord(reply) ? parseUser(reply['user']) : null;
-        if (!isRecord(reply) || !user) throw new Error('The server sent an unexpected reply about your account.');
-        return { user, memberships: parseMeMemberships(reply['memberships']) };
-      }),
+      switchMap(async (reply) => parseReply((await authContract()).meSchema, 'your account', reply)),
+      map(({ user, memberships }) => ({
+        user,
+        memberships: memberships.map(({ labId, labName, role }): Membership => ({ lab: { id: labId, name: labName }, role })),
+      })),
       tap((me) => {
         const current = this.state();
         if (!current) return;
@@ -154,56 +151,38 @@ function isRecord(value: unknown): value is Record<string, unknown> {
   return typeof value === 'object' && value !== null;
 }
 
-/** Ids travel as strings in the client (route parameters are strings), whatever the server sends. */
-function idOf(value: unknown): string | null {
-  if (typeof value === 'string' && value !== '') return value;
-  if (typeof value === 'number' && Number.isFinite(value)) return String(value);
-  return null;
+const LAB_ROLES: readonly LabRole[] = ['owner', 'analyst', 'reviewer', 'viewer'];
+
+function isLabRole(value: unknown): value is LabRole {
+  return typeof value === 'string' && (LAB_ROLES as readonly string[]).includes(value);
 }
 
-export function parseUser(value: unknown): User | null {
+/** A user as this or an older build stored it (server replies themselves are parsed with shared/api). */
+function parseStoredUser(value: unknown): User | null {
   if (!isRecord(value)) return null;
-  const id = idOf(value['id']);
-  const { name, email } = value;
-  if (id === null || typeof name !== 'string' || typeof email !== 'string') return null;
+  const { id, name, email } = value;
+  if (typeof id !== 'string' || id === '' || typeof name !== 'string' || typeof email !== 'string') return null;
   return { id, name, email, isSiteAdmin: value['isSiteAdmin'] === true };
 }
 
-const ROLES: readonly LabRole[] = ['owner', 'analyst', 'reviewer', 'viewer'];
-
-export function isLabRole(value: unknown): value is LabRole {
-  return typeof value === 'string' && (ROLES as readonly string[]).includes(value);
-}
-
-function parseMembership(value: unknown): Membership | null {
+function parseStoredMembership(value: unknown): Membership | null {
   if (!isRecord(value) || !isRecord(value['lab']) || !isLabRole(value['role'])) return null;
-  const id = idOf(value['lab']['id']);
-  const name = value['lab']['name'];
-  if (id === null || typeof name !== 'string') return null;
+  const { id, name } = value['lab'];
+  if (typeof id !== 'string' || id === '' || typeof name !== 'string') return null;
   return { lab: { id, name }, role: value['role'] };
 }
 
-function parseMemberships(value: unknown): Membership[] {
+function parseStoredMemberships(value: unknown): Membership[] {
   const list = Array.isArray(value) ? value : [];
-  return list.map(parseMembership).filter((m): m is Membership => m !== null);
-}
-
-/** `GET /api/me` lists memberships as `{ labId, labName, role }`. */
-function parseMeMemberships(value: unknown): Membership[] {
-  const list = Array.isArray(value) ? value : [];
-  return parseMemberships(
-    list.map((entry: unknown) =>
-      isRecord(entry) ? { lab: { id: entry['labId'], name: entry['labName'] }, role: entry['role'] } : null,
-    ),
-  );
+  return list.map(parseStoredMembership).filter((m): m is Membership => m !== null);
 }
 
 /** Stored data may come from an older build or be tampered with: accept only what parses. */
 function parseStored(value: unknown): StoredSession | null {
   if (!isRecord(value) || typeof value['token'] !== 'string') return null;
-  const user = parseUser(value['user']);
+  const user = parseStoredUser(value['user']);
   if (!user) return null;
-  const memberships = parseMemberships(value['memberships']);
+  const memberships = parseStoredMemberships(value['memberships']);
   const currentLabId = typeof value['currentLabId'] === 'string' ? value['currentLabId'] : null;
   return { token: value['token'], user, memberships, currentLabId };
 }

@@ -2,15 +2,22 @@ import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { Observable, map } from 'rxjs';
 
-import { LabRole, User, isLabRole, parseUser } from '../../core/session';
+import { pagedSchema, type LabRole } from '../../../../shared/api/common';
+import { addMemberResultSchema, invitationSchema, memberSchema, type Invitation, type Member } from '../../../../shared/api/labs';
+import { replyOf } from '../../core/api-reply';
 
+/** A member as the pages show one: the person, their role in the lab and since when (an ISO instant). */
 export interface LabMember {
-  readonly user: User;
+  readonly user: { readonly id: string; readonly name: string; readonly email: string };
   readonly role: LabRole;
+  readonly joinedAt: string;
 }
 
-/** The server's largest page; labs are small teams, so one page shows everyone. */
-const MEMBER_PAGE_SIZE = 500;
+/**
+ * The server's largest page (pageQuerySchema in shared/api); labs are small teams, so one page shows everyone.
+ * The reply's `total` says when a lab has outgrown it.
+ */
+export const MEMBER_PAGE = { page: 1, pageSize: 500 } as const;
 
 export const LAB_ROLES: readonly { readonly value: LabRole; readonly label: string; readonly can: string }[] = [
   { value: 'owner', label: 'Owner', can: 'manages members and everything below' },
@@ -20,62 +27,19 @@ export const LAB_ROLES: readonly { readonly value: LabRole; readonly label: stri
 ];
 
 /** A pending invitation for an address that has no account yet (times are ISO strings). */
-export interface LabInvitation {
-  readonly id: string;
-  readonly email: string;
-  readonly role: LabRole;
-  readonly invitedAt: string;
-  readonly expiresAt: string;
-}
+export type LabInvitation = Invitation;
 
 /** An invitation's mail is queued in the server's outbox with it and sent shortly after. */
 export type AddMemberResult =
   | { readonly kind: 'member'; readonly member: LabMember }
   | { readonly kind: 'invitation'; readonly invitation: LabInvitation; readonly queued: boolean };
 
-function isRecord(value: unknown): value is Record<string, unknown> {
-  return typeof value === 'object' && value !== null;
+function labMemberOf({ userId, name, email, role, joinedAt }: Member): LabMember {
+  return { user: { id: userId, name, email }, role, joinedAt };
 }
 
-/** One `{ userId, name, email, role }` entry of the members page. */
-function parseMember(value: unknown): LabMember | null {
-  if (!isRecord(value) || !isLabRole(value['role'])) return null;
-  const user = parseUser({ id: value['userId'], name: value['name'], email: value['email'] });
-  return user ? { user, role: value['role'] } : null;
-}
-
-/** `GET /api/labs/:labId/members` answers a page: `{ items, total, limit, offset }`. */
-export function parseMembers(reply: unknown): LabMember[] {
-  const items = isRecord(reply) && Array.isArray(reply['items']) ? (reply['items'] as unknown[]) : [];
-  return items.map(parseMember).filter((m): m is LabMember => m !== null);
-}
-
-/** One `{ id, email, role, invitedAt, expiresAt }` invitation. */
-function parseInvitation(value: unknown): LabInvitation | null {
-  if (!isRecord(value)) return null;
-  const { id, email, role, invitedAt, expiresAt } = value;
-  if (typeof id !== 'string' || typeof email !== 'string' || !isLabRole(role)) return null;
-  if (typeof invitedAt !== 'string' || typeof expiresAt !== 'string') return null;
-  return { id, email, role, invitedAt, expiresAt };
-}
-
-/** `GET /api/labs/:labId/invitations` answers a page like the members list. */
-export function parseInvitations(reply: unknown): LabInvitation[] {
-  const items = isRecord(reply) && Array.isArray(reply['items']) ? (reply['items'] as unknown[]) : [];
-  return items.map(parseInvitation).filter((i): i is LabInvitation => i !== null);
-}
-
-export function parseAddResult(reply: unknown): AddMemberResult {
-  if (isRecord(reply) && reply['kind'] === 'member') {
-    const member = parseMember(reply['member']);
-    if (member) return { kind: 'member', member };
-  }
-  if (isRecord(reply) && reply['kind'] === 'invitation') {
-    const invitation = parseInvitation(reply['invitation']);
-    if (invitation) return { kind: 'invitation', invitation, queued: reply['queued'] === true };
-  }
-  throw new Error('The server sent an unexpected reply to adding a member.');
-}
+const membersPage = pagedSchema(memberSchema);
+const invitationsPage = pagedSchema(invitationSchema);
 
 /** The lab membership endpoints. The server enforces who may call which. */
 @Injectable({ providedIn: 'root' })
@@ -84,22 +48,27 @@ export class LabMembers {
 
   list(labId: string): Observable<LabMember[]> {
     return this.http
-      .get<unknown>(`/api/labs/${encodeURIComponent(labId)}/members`, { params: { pageSize: MEMBER_PAGE_SIZE } })
-      .pipe(map(parseMembers));
+      .get<unknown>(`/api/labs/${encodeURIComponent(labId)}/members`, { params: MEMBER_PAGE })
+      .pipe(
+        replyOf(membersPage, 'the lab members'),
+        map((page) => page.items.map(labMemberOf)),
+      );
   }
 
   /** Adds an existing account, or invites an address that has none yet. */
   add(labId: string, email: string, role: LabRole): Observable<AddMemberResult> {
     return this.http
       .post<unknown>(`/api/labs/${encodeURIComponent(labId)}/members`, { email, role })
-      .pipe(map(parseAddResult));
+      .pipe(
+        replyOf(addMemberResultSchema, 'adding a member'),
+        map((result): AddMemberResult => (result.kind === 'member' ? { kind: 'member', member: labMemberOf(result.member) } : result)),
+      );
   }
 
-  changeRole(labId: string, userId: string, role: LabRole): Observable<unknown> {
-    return this.http.patch<unknown>(
-      `/api/labs/${encodeURIComponent(labId)}/members/${encodeURIComponent(userId)}`,
-      { role },
-    );
+  changeRole(labId: string, userId: string, role: LabRole): Observable<LabMember> {
+    return this.http
+      .patch<unknown>(`/api/labs/${encodeURIComponent(labId)}/members/${encodeURIComponent(userId)}`, { role })
+      .pipe(replyOf(memberSchema, 'changing a role'), map(labMemberOf));
   }
 
   /** Owners only; the server answers 409 `last_owner` rather than leave a lab without an owner. */
@@ -110,8 +79,11 @@ export class LabMembers {
   /** Pending invitations (not accepted, not expired), newest first. Owners only. */
   invitations(labId: string): Observable<LabInvitation[]> {
     return this.http
-      .get<unknown>(`/api/labs/${encodeURIComponent(labId)}/invitations`, { params: { pageSize: MEMBER_PAGE_SIZE } })
-      .pipe(map(parseInvitations));
+      .get<unknown>(`/api/labs/${encodeURIComponent(labId)}/invitations`, { params: MEMBER_PAGE })
+      .pipe(
+        replyOf(invitationsPage, 'the pending invitations'),
+        map((page) => page.items),
+      );
   }
 
   revokeInvitation(labId: string, invitationId: string): Observable<unknown> {

@@ -41,12 +41,12 @@ function casePage(total: number, titles: string[], page = 1, pageSize = 20): obj
 
 const MEMBERS = {
   items: [
-    { userId: 'u2', name: 'Ada Analyst', email: 'a@example.org', role: 'analyst' },
-    { userId: 'u3', name: 'Rui Reviewer', email: 'r@example.org', role: 'reviewer' },
+    { userId: '00000000-0000-4000-8000-0000000000a2', name: 'Ada Analyst', email: 'a@example.org', role: 'analyst', joinedAt: '2026-01-01T00:00:00.000Z' },
+    { userId: '00000000-0000-4000-8000-0000000000a3', name: 'Rui Reviewer', email: 'r@example.org', role: 'reviewer', joinedAt: '2026-01-02T00:00:00.000Z' },
   ],
   total: 2,
-  limit: 500,
-  offset: 0,
+  page: 1,
+  pageSize: 500,
 };
 
 describe('LibraryPage', { timeout: 20_000 }, () => {
@@ -152,7 +152,7 @@ describe('LibraryPage', { timeout: 20_000 }, () => {
 
     chooseOption(0, 'Rui Reviewer');
     const byAuthor = casesRequest();
-    expect(byAuthor.request.params.get('author')).toBe('u3');
+    expect(byAuthor.request.params.get('author')).toBe('00000000-0000-4000-8000-0000000000a3');
     expect(byAuthor.request.params.get('recheck')).toBe('disputed');
     byAuthor.flush(casePage(0, []));
     await settle();

@@ -87,7 +87,7 @@ describe('SignInPage', () => {
 
   it('signs in, loads the labs and returns to the page the user came from', async () => {
     const navigate = vi.spyOn(TestBed.inject(Router), 'navigateByUrl').mockResolvedValue(true);
-    fixture.componentRef.setInput('returnUrl', '/labs/lab-2');
+    fixture.componentRef.setInput('returnUrl', '/labs/00000000-0000-4000-8000-00000000002a');
     type('email', 'analyst@example.org');
     type('password', 'right-password');
     await submit();
@@ -95,22 +95,24 @@ describe('SignInPage', () => {
       token: 'jwt-1',
       tokenType: 'Bearer',
       expiresAt: '2030-01-01T00:00:00.000Z',
-      user: { id: 'u1', name: 'Ada Analyst', email: 'analyst@example.org' },
+      user: { id: '00000000-0000-4000-8000-0000000000a1', name: 'Ada Analyst', email: 'analyst@example.org', isSiteAdmin: false },
     });
-    const me = backend.expectOne('/api/me');
+    // The reply is checked against the contract once its schemas have loaded; then the account is asked for.
+    const me = await vi.waitFor(() => backend.expectOne('/api/me'));
     expect(me.request.headers.get('Authorization')).toBe('Bearer jwt-1');
     me.flush({
-      user: { id: 'u1', name: 'Ada Analyst', email: 'analyst@example.org' },
+      user: { id: '00000000-0000-4000-8000-0000000000a1', name: 'Ada Analyst', email: 'analyst@example.org', isSiteAdmin: false },
       memberships: [
-        { labId: 'lab-1', labName: 'Bench Lab', role: 'analyst' },
-        { labId: 'lab-2', labName: 'Shaker Lab', role: 'viewer' },
+        { labId: '00000000-0000-4000-8000-00000000001a', labName: 'Bench Lab', role: 'analyst' },
+        { labId: '00000000-0000-4000-8000-00000000002a', labName: 'Shaker Lab', role: 'viewer' },
       ],
+      tokenExpiresAt: '2030-01-01T00:00:00.000Z',
     });
-    await fixture.whenStable();
+    await vi.waitFor(() => expect(navigate).toHaveBeenCalled());
     const session = TestBed.inject(Session);
     expect(session.user()?.name).toBe('Ada Analyst');
     expect(session.currentLab()?.name).toBe('Bench Lab');
-    expect(navigate).toHaveBeenCalledWith('/labs/lab-2');
+    expect(navigate).toHaveBeenCalledWith('/labs/00000000-0000-4000-8000-00000000002a');
   });
 
   it('ignores a return address that leads outside the app', async () => {
@@ -121,10 +123,15 @@ describe('SignInPage', () => {
     await submit();
     backend.expectOne('/api/auth/sign-in').flush({
       token: 'jwt-1',
-      user: { id: 'u1', name: 'Ada Analyst', email: 'analyst@example.org' },
+      tokenType: 'Bearer',
+      expiresAt: '2030-01-01T00:00:00.000Z',
+      user: { id: '00000000-0000-4000-8000-0000000000a1', name: 'Ada Analyst', email: 'analyst@example.org', isSiteAdmin: false },
     });
-    backend.expectOne('/api/me').flush({ user: { id: 'u1', name: 'Ada Analyst', email: 'analyst@example.org' }, memberships: [] });
-    await fixture.whenStable();
-    expect(navigate).toHaveBeenCalledWith('/');
+    (await vi.waitFor(() => backend.expectOne('/api/me'))).flush({
+      user: { id: '00000000-0000-4000-8000-0000000000a1', name: 'Ada Analyst', email: 'analyst@example.org', isSiteAdmin: false },
+      memberships: [],
+      tokenExpiresAt: '2030-01-01T00:00:00.000Z',
+    });
+    await vi.waitFor(() => expect(navigate).toHaveBeenCalledWith('/'));
   });
 });
