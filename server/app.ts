@@ -37,7 +37,7 @@ import { requireCaseRole } from './middleware/case-access';
 import { requireSiteAdmin } from './middleware/site-admin';
 import { outboxRoute, sinkMailsRoute } from './routes/admin-routes';
 import { deleteTraceRoute, listTracesRoute, receiveTraceFile, traceDownloadRoute, traceRoute, uploadTraceRoute } from './routes/bench-trace-routes';
-import { createLinkRoute, listLinksRoute, publicLinkReportRoute, publicLinkRoute, revokeLinkRoute } from './routes/case-link-routes';
+import { createLinkRoute, listLinksRoute, publicLinkReportRoute, publicLinkRunResultRoute, publicLinkRoute, revokeLinkRoute } from './routes/case-link-routes';
 import {
   addCommentRoute, auditRoute, caseRoute, commentsRoute, createCaseRoute, duplicateCaseRoute, listCasesRoute, patchCaseRoute,
   recheckRequestRoute, recheckRoute, reportRoute, revisionRoute, runResultRoute, saveRevisionRoute, storeRunRoute,
@@ -182,6 +182,8 @@ export function createApp(options: AppOptions): Express {
     route('delete', '/cases/:caseId/links/:linkId', linkSchema, authenticate, caseAuthor, revokeLinkRoute(sequelize)),
     route('get', '/links/:token', publicCaseSchema, publicLinkRoute),
     route('get', '/links/:token/report.pdf', null, publicLinkReportRoute),
+    // the stored result as stored (gzip-compressed encoded text), not a JSON schema reply
+    route('get', '/links/:token/runs/:runId/result', null, publicLinkRunResultRoute),
     route('get', '/cases/:caseId/bench-traces', pagedSchema(traceSummarySchema), authenticate, caseReader, listTracesRoute),
     route('post', '/cases/:caseId/bench-traces', traceSummarySchema, authenticate, caseAuthor, receiveTraceFile, uploadTraceRoute(sequelize)),
     route('get', '/cases/:caseId/bench-traces/:traceId', traceDetailSchema, authenticate, caseReader, traceRoute),

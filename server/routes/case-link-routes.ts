@@ -1,15 +1,15 @@
 import type { RequestHandler } from 'express';
 import type { Sequelize } from 'sequelize';
 import { z } from 'zod';
-import { createLinkBodySchema, linkTokenSchema, pageQuerySchema } from '../../shared/api';
+import { createLinkBodySchema, linkRunParamSchema, linkTokenSchema, pageQuerySchema } from '../../shared/api';
 import { AppError } from '../app-error';
 import type { Config } from '../config';
 import { currentUser } from '../middleware/auth';
 import { caseAccess } from '../middleware/case-access';
 import { parseInput } from '../middleware/validate';
-import { createLink, listLinks, readLink, revokeLink } from '../services/case-link-service';
+import { createLink, linkRunResult, listLinks, readLink, revokeLink } from '../services/case-link-service';
 import { linkReport } from '../services/report-service';
-import { sendReport } from './case-routes';
+import { sendReport, sendStoredResult } from './case-routes';
 
 const linkParam = z.object({ linkId: z.uuid() });
 const tokenParam = z.object({ token: linkTokenSchema });
@@ -57,4 +57,15 @@ export const publicLinkReportRoute: RequestHandler = async (req, res) => {
   const token = linkToken(req.params);
   res.setHeader('Referrer-Policy', 'no-referrer');
   sendReport(res, await linkReport(token));
+};
+
+/**
+ * Public, no sign-in: the stored result of one run of the linked revision (gzip, as stored), under the same 404/410
+ * rules as the link. Not cached: a revoked link must stop serving at once.
+ */
+export const publicLinkRunResultRoute: RequestHandler = async (req, res) => {
+  const token = linkToken(req.params);
+  const { runId } = parseInput(linkRunParamSchema, { runId: (req.params as Record<string, unknown>)['runId'] }, 'path');
+  res.setHeader('Referrer-Policy', 'no-referrer');
+  sendStoredResult(res, await linkRunResult(token, runId), 'no-store');
 };

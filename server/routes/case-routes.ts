@@ -24,6 +24,7 @@ import {
   saveRevision,
   storeRun,
   storedResult,
+  type StoredResultBytes,
   updateCase,
 } from '../services/case-service';
 import { recordRecheck, requestRecheck } from '../services/recheck-service';
@@ -96,17 +97,21 @@ export function storeRunRoute(sequelize: Sequelize, verifier: RunVerifier | unde
  */
 export const runResultRoute: RequestHandler = async (req, res) => {
   const { rev, runId } = parseInput(runParamSchema, req.params, 'path');
-  const stored = await storedResult(caseAccess(req).caseId, rev, runId);
+  sendStoredResult(res, await storedResult(caseAccess(req).caseId, rev, runId), 'private, max-age=31536000, immutable');
+};
+
+/** A stored result as stored (gzip), with the headers that say how to read it. */
+export function sendStoredResult(res: Response, stored: StoredResultBytes, cacheControl: string): void {
   res.set({
     'Content-Type': 'application/json; charset=utf-8',
     'Content-Encoding': 'gzip',
-    'Cache-Control': 'private, max-age=31536000, immutable',
+    'Cache-Control': cacheControl,
     'X-Result-Encoding': stored.encoding,
     'X-Verification': stored.state,
     Vary: 'Authorization',
   });
   res.end(stored.compressed);
-};
+}
 
 export const commentsRoute: RequestHandler = async (req, res) => {
   const { rev } = parseInput(revisionParamSchema, req.params, 'path');

@@ -9,7 +9,7 @@ import { AppError } from '../app-error';
 import type { Config } from '../config';
 import { CaseLink, CaseRecord, Lab, Revision, User } from '../db/models';
 import type { Actor, CaseAccess } from './case-access';
-import { audit, findRevision, revisionDetail } from './case-service';
+import { audit, findRevision, revisionDetail, storedResult, type StoredResultBytes } from './case-service';
 import { offsetOf, paged, type PageQuery, type Paged } from './paging';
 import { hashToken, newToken } from './tokens';
 
@@ -92,8 +92,8 @@ export async function revokeLink(sequelize: Sequelize, actor: Actor, access: Cas
   });
 }
 
-/** The public read of a link: 404 for an unknown token, 410 once expired or revoked. */
-export async function readLink(token: string): Promise<PublicCaseView> {
+/** The live link of a token and its case: 404 for an unknown token, 410 once expired or revoked. */
+async function openLink(token: string): Promise<{ link: CaseLink; record: CaseRecord; number: number }> {
   const link = await CaseLink.findOne({ where: { tokenHash: hashToken(token) }, include: [{ model: Revision, as: 'revision', attributes: ['number'] }] });
   if (!link || !link.revision) throw new AppError('link_not_found', 'This case link does not exist.', 404, 'token');
   const state = linkState(link);
@@ -101,11 +101,23 @@ export async function readLink(token: string): Promise<PublicCaseView> {
   if (state === 'expired') throw new AppError('link_expired', `This case link expired on ${link.expiresAt.toISOString()}.`, 410, 'token');
   const record = await CaseRecord.findByPk(link.caseId, { attributes: ['id', 'labId', 'title'] });
   if (!record) throw new AppError('link_not_found', 'This case link does not exist.', 404, 'token');
+  return { link, record, number: link.revision.number };
+}
+
+/** The public read of a link: 404 for an unknown token, 410 once expired or revoked. */
+export async function readLink(token: string): Promise<PublicCaseView> {
+  const { link, record, number } = await openLink(token);
   const lab = await Lab.findByPk(record.labId, { attributes: ['name'] });
   return {
     caseTitle: record.title,
     labName: lab?.name ?? '',
-    revision: await revisionDetail(record.id, link.revision.number, { withComments: false }),
+    revision: await revisionDetail(record.id, number, { withComments: false }),
     expiresAt: link.expiresAt.toISOString(),
   };
+}
+
+/** The stored result of one run of the linked revision, under the same 404/410 rules as the link. */
+export async function linkRunResult(token: string, runId: string): Promise<StoredResultBytes> {
+  const { record, number } = await openLink(token);
+  return storedResult(record.id, number, runId);
 }

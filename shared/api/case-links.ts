@@ -10,6 +10,11 @@ export const createLinkBodySchema = z.object({
   expiresInDays: z.number().int().min(1).max(MAX_LINK_DAYS).default(30),
 });
 export const linkTokenSchema = z.string().regex(/^[A-Za-z0-9_-]{20,100}$/);
+/**
+ * Path of `GET /api/links/:token/runs/:runId/result`: one stored run of the linked revision, answered as stored
+ * (gzip-compressed text of shared/engine/result-codec.ts, `X-Result-Encoding`, `X-Verification`).
+ */
+export const linkRunParamSchema = z.object({ runId: z.uuid() });
 
 /** Reply of making a link: the only time the token is shown. */
 export const createdLinkSchema = z.strictObject({

@@ -2,6 +2,7 @@ import { createHash } from 'node:crypto';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { caseDigest } from '../../shared/case';
+import { decodeRunResult } from '../../shared/engine/result-codec';
 import { CaseLink } from '../../server/db/models';
 import { errorOf, startApi, type TestApi } from './support';
 import { client, createCaseVia, labWithEveryRole, motionRun, quickCase, type LabFixture } from './library-support';
@@ -75,6 +76,40 @@ describe('case links', () => {
     expect(errorOf(expired)).toMatchObject({ code: 'link_expired', message: expect.stringMatching(/expired/) });
     const list = await as('owner').get(`/api/cases/${caseId}/links?pageSize=200`);
     expect(list.body.items.find((l: { id: string }) => l.id === link.id).state).toBe('expired');
+  });
+
+  it('serves a stored run\'s result through the token, signed out, under the link\'s 404 and 410 rules', async () => {
+    const link = await makeLink(1);
+    const shared = await request(api.app).get(`/api/links/${link.token}`);
+    const runId = shared.body.revision.runs[0].id as string;
+    // The server reruns the run off the request path; its result appears once verified.
+    let res = await request(api.app).get(`/api/links/${link.token}/runs/${runId}/result`).buffer(true);
+    for (let i = 0; res.status === 409 && i < 600; i++) {
+      await new Promise((resolve) => setTimeout(resolve, 100));
+      res = await request(api.app).get(`/api/links/${link.token}/runs/${runId}/result`).buffer(true);
+    }
+    expect(res.status).toBe(200);
+    expect(res.headers['content-encoding']).toBe('gzip');
+    expect(res.headers['cache-control']).toBe('no-store');
+    expect(res.headers['x-verification']).toBe('verified');
+    expect(decodeRunResult(res.text).kind).toBe('motion');
+
+    const otherRun = await request(api.app).get(`/api/links/${link.token}/runs/00000000-0000-4000-8000-000000000000/result`);
+    expect(otherRun.status).toBe(404);
+    expect(errorOf(otherRun).code).toBe('stored_run_not_found');
+    const badRun = await request(api.app).get(`/api/links/${link.token}/runs/not-a-uuid/result`);
+    expect(badRun.status).toBe(400);
+    const unknown = await request(api.app).get(`/api/links/${'x'.repeat(43)}/runs/${runId}/result`);
+    expect(unknown.status).toBe(404);
+    expect(errorOf(unknown).code).toBe('link_not_found');
+    // A run of another revision is not reachable through this revision's link.
+    const second = await makeLink(2);
+    const elsewhere = await request(api.app).get(`/api/links/${second.token}/runs/${runId}/result`);
+    expect(elsewhere.status).toBe(404);
+    await as('analyst').delete(`/api/cases/${caseId}/links/${link.id}`);
+    const revoked = await request(api.app).get(`/api/links/${link.token}/runs/${runId}/result`);
+    expect(revoked.status).toBe(410);
+    expect(errorOf(revoked).code).toBe('link_revoked');
   });
 
   it('stops working once revoked (410), and revoking twice is harmless', async () => {
