@@ -2,6 +2,9 @@ import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { Observable, map } from 'rxjs';
 
+import { decodeRunResult } from '../../../../shared/engine/result-codec';
+import type { RunResult } from '../../../../shared/engine/run-kinds';
+
 import { createdLinkSchema, linkSchema, publicCaseSchema } from '../../../../shared/api/case-links';
 import { pagedSchema } from '../../../../shared/api/common';
 import { replyOf } from '../../core/api-reply';
@@ -38,5 +41,10 @@ export class CaseLinkApi {
       replyOf(publicCaseSchema, 'the shared case'),
       map((reply) => ({ ...reply, revision: revisionView(reply.revision) })),
     );
+  }
+
+  /** A linked run's stored result (the server's, as stored; the browser inflates the gzip body). */
+  linkRunResult(token: string, runId: string): Observable<RunResult> {
+    return this.http.get(`/api/links/${enc(token)}/runs/${enc(runId)}/result`, { responseType: 'text' }).pipe(map(decodeRunResult));
   }
 }

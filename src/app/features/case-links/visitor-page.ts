@@ -2,11 +2,19 @@ import { HttpErrorResponse } from '@angular/common/http';
 import { DatePipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
 import { rxResource } from '@angular/core/rxjs-interop';
+import { catchError, forkJoin, map, of } from 'rxjs';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 
+import type { FloquetAnalysis } from '../../../../shared/engine/floquet';
+import type { MotionResult } from '../../../../shared/engine/motion';
 import { describeError } from '../../core/error-message';
+import { DEFAULT_UNITS } from '../../core/units/display-units';
+import { formatIn } from '../../core/units/format-number';
+import { MarginGauge, bandPosition } from '../case/margins/margin-gauge';
+import { OutcomeCard, type OutcomeView } from '../case/motion/outcome-card';
+import { RigSchematic } from '../case/rig/rig-schematic';
 import { linkReportUrl } from '../history/case-report-download';
 import { flattenParams } from '../history/params-diff';
 import { StoredRunsTable } from '../history/stored-runs-table';
@@ -30,7 +38,7 @@ export function linkProblem(error: unknown): string {
  */
 @Component({
   selector: 'qp-visitor-page',
-  imports: [DatePipe, MatButtonModule, MatIconModule, MatProgressBarModule, RerunPanel, StoredRunsTable],
+  imports: [DatePipe, MarginGauge, MatButtonModule, MatIconModule, MatProgressBarModule, OutcomeCard, RerunPanel, RigSchematic, StoredRunsTable],
   templateUrl: './visitor-page.html',
   styleUrl: './visitor-page.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -49,4 +57,61 @@ export class VisitorPage {
   });
   protected readonly reportUrl = computed(() => linkReportUrl(this.token()));
   protected readonly params = computed(() => flattenParams(this.shared()?.revision.rawParams ?? null));
+  protected readonly units = DEFAULT_UNITS;
+
+  /** The latest stored motion and margins runs' full results, as the server stored them; a missing one stays null. */
+  protected readonly stored = rxResource({
+    params: () => {
+      const s = this.shared();
+      if (!s) return undefined;
+      const latest = (kind: string) => s.revision.runs.filter((r) => r.kind === kind).at(-1)?.id ?? null;
+      return { token: this.token(), motion: latest('motion'), margins: latest('margins') };
+    },
+    stream: ({ params }) => {
+      const fetch = <T>(runId: string | null, kind: string) =>
+        runId === null
+          ? of(null)
+          : this.api.linkRunResult(params.token, runId).pipe(
+              map((r) => (r.kind === kind ? (r.value as T) : null)),
+              catchError(() => of(null)),
+            );
+      return forkJoin({ motion: fetch<MotionResult>(params.motion, 'motion'), margins: fetch<FloquetAnalysis>(params.margins, 'margins') });
+    },
+  });
+  private readonly motion = computed(() => (this.stored.hasValue() ? this.stored.value().motion : null));
+  private readonly margins = computed(() => (this.stored.hasValue() ? this.stored.value().margins : null));
+
+  protected readonly outcomeView = computed<OutcomeView | null>(() => {
+    const m = this.motion();
+    if (!m) return null;
+    const upright = this.margins()?.upright;
+    return {
+      outcome: m.outcome,
+      numbers: m.outcomeNumbers,
+      summary: m.summary,
+      status: m.status,
+      rhsEvaluations: m.rhsEvaluations,
+      uprightMultiplier: this.margins() ? { kind: 'from-margins', value: upright && Number.isFinite(upright.maxMultiplier) ? upright.maxMultiplier : null } : undefined,
+    };
+  });
+
+  /** As on the Margins tab: the gauge follows the drive parameter with the smaller margin. */
+  protected readonly gauge = computed(() => {
+    const r = this.margins();
+    if (!r) return null;
+    const a = r.amplitudeLimits;
+    const f = r.frequencyLimits;
+    const useFrequency = a.marginPercent === null || (f.marginPercent !== null && f.marginPercent < a.marginPercent);
+    const l = useFrequency ? f : a;
+    const dim = useFrequency ? 'frequency' : 'length';
+    const u = this.units;
+    return {
+      margin: r.marginPercent,
+      position: bandPosition(l),
+      lower: l.lower === null ? `none down to ${formatIn(l.scanned[0], dim, u)}` : formatIn(l.lower, dim, u),
+      upper: l.upper === null ? `none up to ${formatIn(l.scanned[1], dim, u)}` : formatIn(l.upper, dim, u),
+      caption: `Smallest change of drive ${useFrequency ? 'frequency' : 'amplitude'} that loses the upright (Floquet, with damping).`,
+      holds: r.uprightHolds,
+    };
+  });
 }
