@@ -144,10 +144,10 @@ describe('case library', () => {
     await page.locator('.meta .note', { hasText: 'Amplitude 9 mm' }).waitFor();
     const changed = page.locator('.diff-table:not(.results-diff) tr.changed');
     await expect.poll(() => changed.count()).toBe(1);
-    expect(await changed.locator('.path').textContent()).toContain('drive.amplitude');
+    expect(await changed.locator('.path').textContent()).toContain('Drive amplitude');
     expect((await changed.locator('.left').textContent())?.trim()).toBe('8');
     expect((await changed.locator('.right').textContent())?.trim()).toBe('9');
-    await expect.poll(() => page.locator('qp-stored-runs-table .kind').allTextContents()).toEqual(['motion']);
+    await expect.poll(() => page.locator('qp-stored-runs-table .kind').allTextContents()).toEqual(['Motion']);
 
     // Results of r1 and r2 side by side: the motion of both, the margins only in r1.
     const results = page.locator('.results-diff tbody tr');
@@ -277,7 +277,7 @@ describe('case library', () => {
     await visitor.getByRole('heading', { name: `${CASE_TITLE} · r2` }).waitFor();
     expect(await visitor.getByText(`Shared by ${DEMO_LAB_NAME}`).count()).toBe(1);
     expect(await visitor.getByRole('button', { name: 'Save' }).count()).toBe(0);
-    expect(await visitor.locator('qp-stored-runs-table .kind').allTextContents()).toEqual(['motion']);
+    expect(await visitor.locator('qp-stored-runs-table .kind').allTextContents()).toEqual(['Motion']);
     const reportHref = await visitor.getByTestId('visitor-report').getAttribute('href');
     const report = await fetch(`${server.baseUrl}${reportHref}`);
     expect(report.status).toBe(200);

@@ -130,7 +130,7 @@ describe('signing in', () => {
     await page.getByRole('heading', { name: `Welcome, ${owner.name}` }).waitFor();
     await page.getByRole('link', { name: 'See lab members' }).click();
     await page.locator('form[aria-label="Add a member"]').waitFor();
-    expect(await page.locator('.members-table mat-select').count()).toBe(DEMO_ACCOUNTS.length);
+    await expect.poll(() => page.locator('.members-table mat-select').count()).toBe(DEMO_ACCOUNTS.length);
     await screenshot(page, 'lab-owner-desktop');
     // The theme follows the system colour scheme; keep the dark variant in view too.
     await page.emulateMedia({ colorScheme: 'dark' });

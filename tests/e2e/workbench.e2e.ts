@@ -71,6 +71,8 @@ describe('workbench', () => {
     // Saving creates the case with r1 and stores the motion run with it.
     await page.getByLabel('Case title').fill('Tall rod, workbench test');
     await page.getByRole('button', { name: /Save/ }).click();
+    await page.getByTestId('revision-note').fill('Tall rod as drawn');
+    await page.getByTestId('save-revision').click();
     await page.waitForURL((url) => /\/cases\/[^/]+\/r\/1\/motion$/.test(url.pathname), { timeout: 30_000 });
     await expect.poll(() => page.getByTestId('revision').textContent()).toBe('r1');
     await expect.poll(() => page.getByText('unsaved run').count()).toBe(0);
@@ -89,6 +91,7 @@ describe('workbench', () => {
 
     // The edited inputs become r2, with the run computed for them.
     await page.getByRole('button', { name: /Save/ }).click();
+    await page.getByTestId('save-revision').click();
     await page.waitForURL((url) => /\/r\/2\/motion$/.test(url.pathname), { timeout: 30_000 });
     await expect.poll(() => page.getByTestId('revision').textContent()).toBe('r2');
   }, 120_000);

@@ -10,11 +10,12 @@ import { forkJoin } from 'rxjs';
 
 import { describeError } from '../../core/error-message';
 import { AdminMailApi } from './admin-mail-api';
+import { ScrollRegion } from '../../ui/scroll-region/scroll-region';
 
 /** Site admins, local mode: what the local mail sink received, and the state of the outbox that sends it. */
 @Component({
   selector: 'qp-admin-mail-page',
-  imports: [DatePipe, MatButtonModule, MatExpansionModule, MatIconModule, MatProgressBarModule],
+  imports: [ScrollRegion, DatePipe, MatButtonModule, MatExpansionModule, MatIconModule, MatProgressBarModule],
   template: `
     <header class="page-header">
       <h1 class="title">Mail</h1>
@@ -50,7 +51,7 @@ import { AdminMailApi } from './admin-mail-api';
       </section>
       <section aria-labelledby="outbox-heading">
         <h2 id="outbox-heading" class="section-title">Outbox</h2>
-        <div class="scroll">
+        <div class="scroll" qpScrollRegion="Outbox">
           <table class="outbox">
             <thead>
               <tr><th scope="col">To</th><th scope="col">Subject</th><th scope="col">State</th><th scope="col">Attempts</th><th scope="col">Last error</th><th scope="col">Queued</th></tr>

@@ -16,6 +16,7 @@ import type { Dimension } from '../../core/units/display-units';
 import type { BenchTrace } from '../library/library-types';
 import { applyFit } from '../../../../shared/engine/apply-fit';
 import { MAX_PLOTTED_POINTS } from './plot-thinning';
+import { ScrollRegion } from '../../ui/scroll-region/scroll-region';
 
 interface EstimateRow {
   name: string;
@@ -35,7 +36,7 @@ const MODELS: ReadonlyArray<{ value: FitModel; label: string }> = [
  */
 @Component({
   selector: 'qp-bench-fit',
-  imports: [MatButtonModule, MatFormFieldModule, MatIconModule, MatProgressBarModule, MatSelectModule, Plot],
+  imports: [ScrollRegion, MatButtonModule, MatFormFieldModule, MatIconModule, MatProgressBarModule, MatSelectModule, Plot],
   templateUrl: './bench-fit.html',
   styleUrl: './bench-tab.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

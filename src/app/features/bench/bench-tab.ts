@@ -23,6 +23,7 @@ import type { BenchTrace, BenchTraceSummary } from '../library/library-types';
 import { BenchFit } from './bench-fit';
 import { BenchOverlay } from './bench-overlay';
 import { MAX_PLOTTED_POINTS } from './plot-thinning';
+import { ScrollRegion } from '../../ui/scroll-region/scroll-region';
 
 /** Largest file the server accepts; checked here too so a wrong file fails at once. */
 export const MAX_TRACE_BYTES = 2 * 1024 * 1024;
@@ -40,6 +41,7 @@ export function uploadProblem(error: unknown): string {
 @Component({
   selector: 'qp-bench-tab',
   imports: [
+    ScrollRegion,
     BenchFit,
     BenchOverlay,
     DatePipe,

@@ -27,6 +27,7 @@ import { CaseReportDownload } from './case-report-download';
 import { diffParams } from './params-diff';
 import { resultsDiff } from './results-diff';
 import { StoredRunsTable } from './stored-runs-table';
+import { ScrollRegion } from '../../ui/scroll-region/scroll-region';
 
 /** The URL of one revision, for lab members (it needs signing in). */
 export function revisionUrl(caseId: string, revision: number, origin = globalThis.location?.origin ?? ''): string {
@@ -40,6 +41,7 @@ export function revisionUrl(caseId: string, revision: number, origin = globalThi
 @Component({
   selector: 'qp-history-tab',
   imports: [
+    ScrollRegion,
     DatePipe,
     FormsModule,
     RouterLink,

@@ -4,6 +4,7 @@ import { MatTableModule } from '@angular/material/table';
 
 import type { RunView } from '../library/library-types';
 import { summaryRows } from '../../core/units/field-table';
+import { ScrollRegion } from '../../ui/scroll-region/scroll-region';
 
 /** The run kinds as the tabs name them. */
 export const RUN_KIND_LABELS: Readonly<Record<string, string>> = {
@@ -32,12 +33,12 @@ export function headlineNumbers(summary: RunView['summary']): string {
 /** The runs stored with a revision: kind, headline numbers, digest and engine version. */
 @Component({
   selector: 'qp-stored-runs-table',
-  imports: [DatePipe, MatTableModule],
+  imports: [ScrollRegion, DatePipe, MatTableModule],
   template: `
     @if (runs().length === 0) {
       <p class="none">No runs are stored with this revision.</p>
     } @else {
-      <div class="scroll">
+      <div class="scroll" qpScrollRegion="Stored runs">
         <table mat-table [dataSource]="rows()" class="runs-table">
           <ng-container matColumnDef="kind">
             <th mat-header-cell *matHeaderCellDef>Kind</th>

@@ -26,6 +26,7 @@ import { RecheckChip } from '../recheck/recheck-chip';
 import { CreateCaseDialog, CreateCaseData } from './create-case-dialog';
 import { CaseApi, CaseQuery, CaseSort } from './case-api';
 import { CaseSummary, RECHECK_STATES, RecheckState } from './library-types';
+import { ScrollRegion } from '../../ui/scroll-region/scroll-region';
 
 /** Pause after the last keystroke before the search goes to the server. */
 export const SEARCH_DEBOUNCE_MS = 300;
@@ -47,6 +48,7 @@ export function sortParam(sort: Sort): CaseSort {
 @Component({
   selector: 'qp-library-page',
   imports: [
+    ScrollRegion,
     DatePipe,
     RouterLink,
     MatButtonModule,

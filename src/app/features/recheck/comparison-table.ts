@@ -2,6 +2,7 @@ import { ChangeDetectionStrategy, Component, computed, input } from '@angular/co
 import { MatIconModule } from '@angular/material/icon';
 
 import { type ComparisonRow, groupComparison, runKindWords } from './comparison-groups';
+import { ScrollRegion } from '../../ui/scroll-region/scroll-region';
 
 export type { ComparisonRow } from './comparison-groups';
 
@@ -13,7 +14,7 @@ export type { ComparisonRow } from './comparison-groups';
  */
 @Component({
   selector: 'qp-comparison-table',
-  imports: [MatIconModule],
+  imports: [ScrollRegion, MatIconModule],
   template: `
     @let g = group();
     @if (showSummary()) {
@@ -29,7 +30,7 @@ export type { ComparisonRow } from './comparison-groups';
       <p class="tolerance">Tolerance: {{ tolerance }}</p>
     }
     @if (g.rows.length > 0) {
-      <div class="scroll">
+      <div class="scroll" qpScrollRegion="Compared numbers">
         <table class="comparison">
           <thead>
             <tr>
@@ -63,7 +64,7 @@ export type { ComparisonRow } from './comparison-groups';
           Sweep points: {{ g.points.length }}
           @if (g.pointsDiffering === 0) { — all agree } @else { — {{ g.pointsDiffering }} differ }
         </summary>
-        <div class="scroll">
+        <div class="scroll" qpScrollRegion="Compared sweep points">
           <table class="comparison compact">
             <thead>
               <tr>

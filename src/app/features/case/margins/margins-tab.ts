@@ -9,6 +9,7 @@ import { RunStrip } from '../run-strip';
 import { formatIn, formatNumber, formatPercent } from '../../../core/units/format-number';
 import { toDisplay, unitLabelOf, type Dimension } from '../../../core/units/display-units';
 import { MarginGauge, bandPosition } from './margin-gauge';
+import { ScrollRegion } from '../../../ui/scroll-region/scroll-region';
 
 interface NumberRow {
   readonly label: string;
@@ -24,7 +25,7 @@ function complexText(z: Complex): string {
 /** The Margins tab: averaged (Kapitza) picture at once, Floquet multipliers and drive limits from a worker. */
 @Component({
   selector: 'qp-margins-tab',
-  imports: [Plot, MarginGauge, RunStrip],
+  imports: [ScrollRegion, Plot, MarginGauge, RunStrip],
   templateUrl: './margins-tab.html',
   styleUrl: '../tab.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

@@ -9,6 +9,7 @@ import { downloadText, toCsv, type CsvColumn, type CsvCell } from '../../../ui/c
 import { outcomeWords } from '../../../../../shared/case/display';
 import { formatNumber } from '../../../core/units/format-number';
 import { toDisplay, unitLabelOf, type Dimension, type DisplayUnits } from '../../../core/units/display-units';
+import { ScrollRegion } from '../../../ui/scroll-region/scroll-region';
 
 /** A sweep point in display units, one table row. */
 export interface SweepRow {
@@ -54,13 +55,13 @@ export function sweepCsv(rows: readonly SweepRow[], fieldLabel: string, fieldUni
 /** The points of a sweep in a sortable table, with CSV export. */
 @Component({
   selector: 'qp-sweep-table',
-  imports: [MatTableModule, MatSortModule, MatButtonModule, MatIconModule],
+  imports: [ScrollRegion, MatTableModule, MatSortModule, MatButtonModule, MatIconModule],
   template: `
     <div class="table-head">
       <h2>Points</h2>
       <button matButton type="button" (click)="exportCsv()" data-testid="sweep-csv"><mat-icon>download</mat-icon> CSV</button>
     </div>
-    <div class="table-scroll">
+    <div class="table-scroll" qpScrollRegion="Sweep points">
       <table mat-table [dataSource]="dataSource" matSort aria-label="Sweep points">
         <ng-container matColumnDef="index">
           <th mat-header-cell *matHeaderCellDef mat-sort-header>#</th>

@@ -17,6 +17,7 @@ import { formatNumber } from '../../../core/units/format-number';
 import { dimensionOfSiUnit, fromDisplay, toDisplay, unitLabelOf, type Dimension } from '../../../core/units/display-units';
 import { probesOnlySeenBisecting, sweepPlot } from './sweep-plot';
 import { SweepTable } from './sweep-table';
+import { ScrollRegion } from '../../../ui/scroll-region/scroll-region';
 
 /** Most points a sweep may have. */
 export const MAX_SWEEP_POINTS = 400;
@@ -53,6 +54,7 @@ export function averagedThreshold(params: CaseParams, field: string, from: numbe
 @Component({
   selector: 'qp-sweeps-tab',
   imports: [
+    ScrollRegion,
     FormsModule,
     MatFormFieldModule,
     MatInputModule,
