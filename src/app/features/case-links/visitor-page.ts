@@ -20,6 +20,7 @@ import { flattenParams } from '../history/params-diff';
 import { StoredRunsTable } from '../history/stored-runs-table';
 import { CaseLinkApi } from './case-link-api';
 import { RerunPanel } from '../recheck/rerun-panel';
+import { ScrollRegion } from '../../ui/scroll-region/scroll-region';
 
 /** Why a link cannot be opened, in the visitor's words. */
 export function linkProblem(error: unknown): string {
@@ -38,7 +39,7 @@ export function linkProblem(error: unknown): string {
  */
 @Component({
   selector: 'qp-visitor-page',
-  imports: [DatePipe, MarginGauge, MatButtonModule, MatIconModule, MatProgressBarModule, OutcomeCard, RerunPanel, RigSchematic, StoredRunsTable],
+  imports: [ScrollRegion, DatePipe, MarginGauge, MatButtonModule, MatIconModule, MatProgressBarModule, OutcomeCard, RerunPanel, RigSchematic, StoredRunsTable],
   templateUrl: './visitor-page.html',
   styleUrl: './visitor-page.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
