@@ -21,7 +21,12 @@ export function toCsv(columns: readonly CsvColumn[], rows: readonly (readonly Cs
 
 /** Offers text to the user as a downloaded file. */
 export function downloadText(fileName: string, text: string, type = 'text/csv'): void {
-  const url = URL.createObjectURL(new Blob([text], { type: `${type};charset=utf-8` }));
+  downloadBlob(fileName, new Blob([text], { type: `${type};charset=utf-8` }));
+}
+
+/** Offers a blob to the user as a downloaded file. */
+export function downloadBlob(fileName: string, blob: Blob): void {
+  const url = URL.createObjectURL(blob);
   const link = document.createElement('a');
   link.href = url;
   link.download = fileName;

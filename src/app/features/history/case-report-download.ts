@@ -1,6 +1,7 @@
 import { HttpClient, HttpResponse } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { Observable, map } from 'rxjs';
+import { downloadBlob } from '../../ui/csv';
 
 /** The case report of a revision (lab members; the interceptor adds the token). */
 export function revisionReportUrl(caseId: string, revision: number): string {
@@ -30,15 +31,7 @@ export class CaseReportDownload {
     return this.http.get(revisionReportUrl(caseId, revision), { observe: 'response', responseType: 'blob' }).pipe(
       map((res: HttpResponse<Blob>) => {
         const fileName = reportFileName(res.headers.get('Content-Disposition'), revision);
-        const url = URL.createObjectURL(res.body ?? new Blob([], { type: 'application/pdf' }));
-        const link = document.createElement('a');
-        link.href = url;
-        link.download = fileName;
-        link.style.display = 'none';
-        document.body.appendChild(link);
-        link.click();
-        link.remove();
-        setTimeout(() => URL.revokeObjectURL(url), 1000);
+        downloadBlob(fileName, res.body ?? new Blob([], { type: 'application/pdf' }));
         return fileName;
       }),
     );
