@@ -10,7 +10,7 @@ import type { CaseParams } from '../../shared/case/case-schema';
 import { CAUTION_DEFERRAL, CAUTION_NOTES, CAUTION_TITLE } from '../../shared/case/caution';
 import {
   OUTCOME_COLOURS, RECHECK_STATE_WORDS, SHOWN_UNITS, fieldDisplay, formatAngle, formatFrequency, formatLength, formatNumber, formatPercent,
-  formatShown, outcomeWords,
+  RUN_KIND_LABELS, formatShown, outcomeWords,
 } from '../../shared/case/display';
 import { averagedAnalysis } from '../../shared/engine/averaged';
 import { bodyProperties } from '../../shared/engine/body';
@@ -85,15 +85,6 @@ export const MAX_RASTER_CELLS = 60;
 const PAGE_WIDTH = 515;
 
 type Row = [label: string, value: string];
-
-const KIND_WORDS: Readonly<Record<string, string>> = {
-  motion: 'Motion',
-  margins: 'Floquet margins',
-  sweep: 'Sweep',
-  chart: 'Stability chart',
-  map: 'Outcome map',
-  basin: 'Basin map',
-};
 
 const num = (v: unknown): number | null => {
   if (typeof v === 'number') return v;
@@ -550,7 +541,7 @@ function runsTable(runs: readonly ReportRun[], results: ReadonlyMap<string, RunR
         ...runs.map((run) => [
           {
             text: [
-              `${KIND_WORDS[run.kind] ?? run.kind}${results.has(run.id) ? '' : ' (summary only)'}`,
+              `${RUN_KIND_LABELS[run.kind] ?? run.kind}${results.has(run.id) ? '' : ' (summary only)'}`,
               ...(run.verification ? [`\n${VERIFICATION_WORDS[run.verification.state] ?? run.verification.state}`] : []),
             ].join(''),
             style: 'value',

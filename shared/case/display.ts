@@ -95,3 +95,13 @@ export function fieldDisplay(path: string): { label: string; unit: ShownUnit } {
   if (!field) return { label: 'Swept value', unit: { unit: '', scale: 1 } };
   return { label: field.label, unit: SI_UNIT_SHOWN[field.unit] ?? { unit: field.unit, scale: 1 } };
 }
+
+/** The run kinds as the tabs name them. */
+export const RUN_KIND_LABELS: Readonly<Record<string, string>> = {
+  motion: 'Motion',
+  margins: 'Floquet margins',
+  sweep: 'Sweep',
+  chart: 'Stability chart',
+  map: 'Outcome map',
+  basin: 'Basin map',
+};

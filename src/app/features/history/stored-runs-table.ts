@@ -5,16 +5,10 @@ import { MatTableModule } from '@angular/material/table';
 import type { RunView } from '../library/library-types';
 import { summaryRows } from '../../core/units/field-table';
 import { ScrollRegion } from '../../ui/scroll-region/scroll-region';
+import { RUN_KIND_LABELS } from '../../../../shared/case/display';
 
-/** The run kinds as the tabs name them. */
-export const RUN_KIND_LABELS: Readonly<Record<string, string>> = {
-  motion: 'Motion',
-  margins: 'Floquet margins',
-  sweep: 'Sweep',
-  chart: 'Stability chart',
-  map: 'Outcome map',
-  basin: 'Basin map',
-};
+/** The run kinds as the tabs name them (one table with the case report). */
+export { RUN_KIND_LABELS };
 
 /** How many summary numbers a row shows; the recheck shows all of them. */
 const HEADLINE_COUNT = 4;
