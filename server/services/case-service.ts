@@ -30,7 +30,6 @@ import type { Actor, CaseAccess } from './case-access';
 import { offsetOf, paged, type PageQuery, type Paged } from './paging';
 
 export type { Actor };
-import { RUN_SETTINGS_LIMITS } from './result-store';
 
 export interface CaseQuery {
   search?: string | undefined;
@@ -439,7 +438,6 @@ export async function storeRun(sequelize: Sequelize, actor: Actor, access: CaseA
   const { params, digest } = validParams(input.params);
   const fit = parseRunSettingsFor(params, input.settings);
   if (!fit.ok) throw new AppError('settings_not_for_case', `settings.${fit.field}: ${fit.message}.`, 422, `settings.${fit.field}`);
-  checkSettingsSize(input.settings);
   return sequelize.transaction(async (transaction) => {
     const revision = await findRevision(access.caseId, number, transaction);
     if (digest !== revision.paramsDigest) {
@@ -463,23 +461,6 @@ export async function storeRun(sequelize: Sequelize, actor: Actor, access: CaseA
     await audit(transaction, actor.id, access.labId, 'run.stored', access.caseId, { revision: number, runId: run.id, kind: run.kind });
     return runView(run, new Map([[actor.id, { id: actor.id, name: actor.name }]]));
   });
-}
-
-/** Refuses settings the server would not rerun or store: more sweep points or grid cells than RUN_SETTINGS_LIMITS. */
-function checkSettingsSize(settings: Record<string, unknown>): void {
-  const spec = settings['spec'];
-  const steps = typeof spec === 'object' && spec !== null ? (spec as Record<string, unknown>)['steps'] : undefined;
-  if (typeof steps === 'number' && steps > RUN_SETTINGS_LIMITS.sweepSteps) {
-    throw new AppError('settings_too_large', `A stored sweep has at most ${RUN_SETTINGS_LIMITS.sweepSteps} points.`, 422, 'settings.spec.steps');
-  }
-  const grid = settings['grid'];
-  for (const axis of ['x', 'y'] as const) {
-    const a = typeof grid === 'object' && grid !== null ? (grid as Record<string, unknown>)[axis] : undefined;
-    const count = typeof a === 'object' && a !== null ? (a as Record<string, unknown>)['count'] : undefined;
-    if (typeof count === 'number' && count > RUN_SETTINGS_LIMITS.gridCount) {
-      throw new AppError('settings_too_large', `A stored chart or map has at most ${RUN_SETTINGS_LIMITS.gridCount} cells along each axis.`, 422, `settings.grid.${axis}.count`);
-    }
-  }
 }
 
 export interface StoredResultBytes {

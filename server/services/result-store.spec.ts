@@ -1,10 +1,11 @@
 import { describe, expect, it } from 'vitest';
 import type { StabilityChart } from '../../shared/engine/chart';
 import { resultDigest, type RunResult } from '../../shared/engine/run-record';
-import type { SweepPoint, SweepResult } from '../../shared/engine/sweep';
+import { MAX_CHART_COUNT, MAX_MAP_COUNT, MAX_SWEEP_STEPS } from '../../shared/engine/run-kinds';
+import type { CellMap, MapCell, SweepPoint, SweepResult } from '../../shared/engine/sweep';
 import { ENGINE_VERSION } from '../../shared/engine/version';
 import {
-  RESULT_MAX_COMPRESSED_BYTES, RESULT_MAX_RAW_BYTES, RUN_SETTINGS_LIMITS, ResultTooLargeError, compressResult, decompressResult,
+  RESULT_MAX_COMPRESSED_BYTES, RESULT_MAX_RAW_BYTES, ResultTooLargeError, compressResult, decompressResult,
 } from './result-store';
 
 // Full-entropy doubles: the worst case for compression, so a size that fits here fits for any real result.
@@ -43,9 +44,39 @@ function sweepOf(steps: number): RunResult {
   return { kind: 'sweep', value };
 }
 
+/** An outcome map with every cell's numbers filled (the basin map's cells are the same shape). */
+function mapOf(n: number): RunResult {
+  const axis = (field: string) => ({ field, from: 1, to: 2, count: n });
+  const outcomes = ['holds-upright', 'falls', 'tumbles', 'settles-tilted', 'irregular'] as const;
+  const cells: MapCell[] = Array.from({ length: n * n }, (_, i) => ({
+    outcome: outcomes[i % outcomes.length], meanAngle: noise(), maxDeviation: noise(), slowFrequencyHz: i % 11 === 0 ? null : noise(),
+  }));
+  const value = {
+    engineVersion: ENGINE_VERSION,
+    grid: { x: axis('drive.frequency'), y: axis('drive.amplitude') },
+    xValues: Float64Array.from({ length: n }, noise),
+    yValues: Float64Array.from({ length: n }, noise),
+    cells,
+  } as CellMap;
+  return { kind: 'map', value };
+}
+
+describe('the run registry and the stored-result limits agree', () => {
+  // A run the registry accepts must be storable: the largest of each kind fits both size limits.
+  it.each([
+    [`a ${MAX_SWEEP_STEPS}-point sweep`, () => sweepOf(MAX_SWEEP_STEPS)],
+    [`a ${MAX_CHART_COUNT}x${MAX_CHART_COUNT} chart`, () => chartOf(MAX_CHART_COUNT)],
+    [`a ${MAX_MAP_COUNT}x${MAX_MAP_COUNT} outcome map`, () => mapOf(MAX_MAP_COUNT)],
+  ])('stores %s, the largest the registry accepts', (_name, make) => {
+    const stored = compressResult(make());
+    expect(stored.rawBytes).toBeLessThan(RESULT_MAX_RAW_BYTES);
+    expect(stored.compressedBytes).toBeLessThan(RESULT_MAX_COMPRESSED_BYTES);
+  });
+});
+
 describe('stored result size and round trip', () => {
-  it(`keeps a ${RUN_SETTINGS_LIMITS.gridCount}x${RUN_SETTINGS_LIMITS.gridCount} chart within the limits, bit for bit`, () => {
-    const chart = chartOf(RUN_SETTINGS_LIMITS.gridCount);
+  it(`keeps a ${MAX_CHART_COUNT}x${MAX_CHART_COUNT} chart within the limits, bit for bit`, () => {
+    const chart = chartOf(MAX_CHART_COUNT);
     const stored = compressResult(chart);
     expect(stored.rawBytes).toBeLessThan(RESULT_MAX_RAW_BYTES);
     expect(stored.compressedBytes).toBeLessThan(RESULT_MAX_COMPRESSED_BYTES);

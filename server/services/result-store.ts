@@ -3,9 +3,10 @@
  * table, with the size limits every stored result must meet.
  *
  * Limits: at most RESULT_MAX_RAW_BYTES of encoded text and RESULT_MAX_COMPRESSED_BYTES after gzip. The largest
- * results the API accepts fit with room to spare (a motion at the case limit of 200,000 output points is about
- * 13 MB of text; a 200x200 stability chart about 0.45 MB; a 200-point sweep about 0.05 MB; a 200x200 outcome map
- * about 5 MB before compression). Run settings are bounded when a run is posted (RUN_SETTINGS_LIMITS).
+ * results the run registry accepts (shared/engine/run-kinds.ts: MAX_SWEEP_STEPS, MAX_CHART_COUNT, MAX_MAP_COUNT)
+ * fit with room to spare (a motion at the case limit of 200,000 output points is about 13 MB of text; a 200x200
+ * stability chart about 0.45 MB; a 400-point sweep about 0.1 MB; a 200x200 outcome map about 5 MB before
+ * compression), so a run the registry accepts is a run the server stores.
  */
 import { gunzipSync, gzipSync } from 'node:zlib';
 import { RESULT_ENCODING, decodeRunResult, encodeRunResult } from '../../shared/engine/result-codec';
@@ -13,9 +14,6 @@ import type { RunResult } from '../../shared/engine/run-record';
 
 export const RESULT_MAX_RAW_BYTES = 32 * 1024 * 1024;
 export const RESULT_MAX_COMPRESSED_BYTES = 16 * 1024 * 1024;
-
-/** Largest settings a stored run may have: they bound both the server's rerun time and the result's size. */
-export const RUN_SETTINGS_LIMITS = { sweepSteps: 400, gridCount: 200 } as const;
 
 export interface CompressedResult {
   encoding: string;

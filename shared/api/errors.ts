@@ -65,7 +65,6 @@ export const ERROR_STATUS = {
   settings_not_for_case: 422,
   reviewer_not_eligible: 422,
   unexpected_field: 422,
-  settings_too_large: 422,
   bad_csv: 422,
   angle_unit_conflict: 422,
   invalid_text: 422,

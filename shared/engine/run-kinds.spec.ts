@@ -104,7 +104,7 @@ describe('run settings schema', () => {
     ['a sweep that does not move', { kind: 'sweep', spec: { field: 'drive.amplitude', from: 0.01, to: 0.01, steps: 5 } }, 'spec.to', /differ/],
     ['a field that is not sweepable', { kind: 'sweep', spec: { field: 'run.duration', from: 1, to: 2, steps: 5 } }, 'spec.field', /one of/],
     ['a log sweep through zero', { kind: 'sweep', spec: { field: 'start.angle', from: -1, to: 1, steps: 5, scale: 'log' } }, 'spec.from', /above zero/],
-    ['a chart beyond 1000 x 1000', { kind: 'chart', grid: { x: { field: 'drive.frequency', from: 10, to: 20, count: MAX_CHART_COUNT + 1 }, y: { field: 'drive.amplitude', from: 0.001, to: 0.01, count: 10 } } }, 'grid.x.count', new RegExp(`${MAX_CHART_COUNT}`)],
+    [`a chart beyond ${MAX_CHART_COUNT} x ${MAX_CHART_COUNT}`, { kind: 'chart', grid: { x: { field: 'drive.frequency', from: 10, to: 20, count: MAX_CHART_COUNT + 1 }, y: { field: 'drive.amplitude', from: 0.001, to: 0.01, count: 10 } } }, 'grid.x.count', new RegExp(`${MAX_CHART_COUNT}`)],
     ['a map beyond its limit', { kind: 'map', grid: { x: { field: 'drive.frequency', from: 10, to: 20, count: 3 }, y: { field: 'drive.amplitude', from: 0.001, to: 0.01, count: MAX_MAP_COUNT + 1 } } }, 'grid.y.count', new RegExp(`${MAX_MAP_COUNT}`)],
     ['a map over one field twice', { kind: 'map', grid: { x: { field: 'drive.frequency', from: 10, to: 20, count: 3 }, y: { field: 'drive.frequency', from: 30, to: 40, count: 3 } } }, 'grid.y.field', /differ/],
     ['a basin over other fields', { kind: 'basin', grid: { x: { field: 'drive.frequency', from: 10, to: 20, count: 3 }, y: { field: 'start.rate', from: -1, to: 1, count: 3 } } }, 'grid.x.field', /.+/],

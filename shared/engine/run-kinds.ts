@@ -20,12 +20,14 @@ import {
   type CellMap, type ChunkHooks, type MapCell, type SweepPoint, type SweepResult,
 } from './sweep';
 
+// One rule for every client: a run these limits accept can be stored with a revision, rerun by the server and kept
+// within the stored-result size limit (server/services/result-store.ts checks the largest of each kind fits).
 /** Most points of a 1-D sweep (each point is a full motion run plus an upright Floquet analysis). */
-export const MAX_SWEEP_STEPS = 1000;
-/** Most samples per axis of a stability chart (1000 x 1000 cells at most). */
-export const MAX_CHART_COUNT = 1000;
+export const MAX_SWEEP_STEPS = 400;
+/** Most samples per axis of a stability chart (200 x 200 cells at most). */
+export const MAX_CHART_COUNT = 200;
 /** Most samples per axis of an outcome or basin map (each cell is a full motion run). */
-export const MAX_MAP_COUNT = 500;
+export const MAX_MAP_COUNT = 200;
 
 /** Rows per task of charts and maps, points per task of sweeps: fixed, so the split never depends on the pool. */
 export const CHART_ROWS_PER_CHUNK = 8;

@@ -9,7 +9,7 @@ import { decodeRunResult } from '../../shared/engine/result-codec';
 import { computeRun, makeRunRecord, resultDigest, type RunRecord, type RunSettings } from '../../shared/engine/run-record';
 import { createApp } from '../../server/app';
 import { Run, RunVerification } from '../../server/db/models';
-import { RUN_SETTINGS_LIMITS } from '../../server/services/result-store';
+import { MAX_CHART_COUNT, MAX_SWEEP_STEPS } from '../../shared/engine/run-kinds';
 import { errorOf, startApi, type TestApi } from './support';
 import { client, createCaseVia, labWithEveryRole, motionRun, quickCase, type LabFixture } from './library-support';
 
@@ -117,16 +117,18 @@ describe('the server reproduces every stored run', () => {
     expect(result.value.points).toHaveLength(200);
   });
 
-  it('refuses settings beyond what the server reruns and stores, naming the field', async () => {
+  it('refuses settings beyond the run registry (the limits it stores and reruns), naming the field', async () => {
     const id = await newCase('Too big');
-    const sweep = { ...motionRun(params), kind: 'sweep', settings: { kind: 'sweep', spec: { field: 'drive.amplitude', from: 0.001, to: 0.01, steps: RUN_SETTINGS_LIMITS.sweepSteps + 1 } } };
+    const sweep = { ...motionRun(params), kind: 'sweep', settings: { kind: 'sweep', spec: { field: 'drive.amplitude', from: 0.001, to: 0.01, steps: MAX_SWEEP_STEPS + 1 } } };
     const res = await as('analyst').post(`/api/cases/${id}/revisions/1/runs`, sweep);
-    expect(res.status).toBe(422);
-    expect(errorOf(res)).toMatchObject({ code: 'settings_too_large', field: 'settings.spec.steps' });
-    const axis = { field: 'drive.frequency', from: 10, to: 50, count: RUN_SETTINGS_LIMITS.gridCount + 1 };
+    expect(res.status).toBe(400);
+    expect(errorOf(res)).toMatchObject({ code: 'invalid_field', field: 'settings.spec.steps' });
+    expect(errorOf(res).message).toContain(`at most ${MAX_SWEEP_STEPS}`);
+    const axis = { field: 'drive.frequency', from: 10, to: 50, count: MAX_CHART_COUNT + 1 };
     const chart = { ...motionRun(params), kind: 'chart', settings: { kind: 'chart', grid: { x: { ...axis, field: 'drive.amplitude', from: 0.001, to: 0.01, count: 10 }, y: axis } } };
     const res2 = await as('analyst').post(`/api/cases/${id}/revisions/1/runs`, chart);
-    expect(errorOf(res2)).toMatchObject({ code: 'settings_too_large', field: 'settings.grid.y.count' });
+    expect(res2.status).toBe(400);
+    expect(errorOf(res2)).toMatchObject({ code: 'invalid_field', field: 'settings.grid.y.count' });
   });
 
   it('keeps a run pending while no server reruns it, answers 409 for its result, and verifies it on the next start', async () => {

@@ -7,6 +7,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { getField, setField, sweepableFieldsFor, type SweepableField } from '../../../../../shared/case/case-fields';
 import type { CaseParams } from '../../../../../shared/case/case-schema';
 import { averagedAnalysis, averagedLowerAmplitude, averagedLowerFrequency } from '../../../../../shared/engine/averaged';
+import { MAX_SWEEP_STEPS } from '../../../../../shared/engine/run-kinds';
 import type { SweepSpec } from '../../../../../shared/engine/sweep';
 import { Plot } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
@@ -19,8 +20,6 @@ import { probesOnlySeenBisecting, sweepPlot } from './sweep-plot';
 import { SweepTable } from './sweep-table';
 import { ScrollRegion } from '../../../ui/scroll-region/scroll-region';
 
-/** Most points a sweep may have. */
-export const MAX_SWEEP_POINTS = 400;
 
 /**
  * Where averaged theory puts the upright's lower limit along a field: the closed forms for drive amplitude and
@@ -73,7 +72,7 @@ export class SweepsTab {
   protected readonly units = this.workspace.units;
   protected readonly result = this.workspace.sweep;
   protected readonly stale = computed(() => this.workspace.isStale(this.result()));
-  protected readonly maxPoints = MAX_SWEEP_POINTS;
+  protected readonly maxPoints = MAX_SWEEP_STEPS;
 
   protected readonly fields = computed(() => sweepableFieldsFor(this.workspace.draft()));
   protected readonly fieldPath = signal('drive.amplitude');
@@ -96,8 +95,8 @@ export class SweepsTab {
     const count = this.count();
     if (from === null || to === null || !Number.isFinite(from) || !Number.isFinite(to)) return 'Enter both ends of the range.';
     if (from === to) return 'The range needs two different ends.';
-    if (count === null || !Number.isInteger(count) || count < 2 || count > MAX_SWEEP_POINTS) {
-      return `Points: a whole number from 2 to ${MAX_SWEEP_POINTS}.`;
+    if (count === null || !Number.isInteger(count) || count < 2 || count > MAX_SWEEP_STEPS) {
+      return `Points: a whole number from 2 to ${MAX_SWEEP_STEPS}.`;
     }
     if (this.scale() === 'log' && (from <= 0 || to <= 0)) return 'A log scale needs both ends above zero.';
     const dimension = this.dimension();
