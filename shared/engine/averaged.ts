@@ -2,6 +2,7 @@ import type { CaseParams, Drive } from '../case/case-schema';
 import { assertCase } from '../case/validate';
 import { bodyProperties } from './body';
 import { driveKinematics } from './drive';
+import * as pm from './portable-math';
 
 export interface AveragedEquilibrium {
   /** rad from the upright, in (-pi, pi] */
@@ -60,16 +61,16 @@ function meanSquareVelocity(drive: Drive): number {
  * Reference: P. L. Kapitza (1951); Landau & Lifshitz, Mechanics, section 30.
  */
 export function effectivePotential(theta: number, g: number, L: number, msv: number, beta: number): number {
-  const s = Math.sin(theta - beta);
-  return (g / L) * Math.cos(theta) + (msv * s * s) / (2 * L * L);
+  const s = pm.sin(theta - beta);
+  return (g / L) * pm.cos(theta) + (msv * s * s) / (2 * L * L);
 }
 
 function dPotential(theta: number, g: number, L: number, msv: number, beta: number): number {
-  return -(g / L) * Math.sin(theta) + (msv / (2 * L * L)) * Math.sin(2 * (theta - beta));
+  return -(g / L) * pm.sin(theta) + (msv / (2 * L * L)) * pm.sin(2 * (theta - beta));
 }
 
 function d2Potential(theta: number, g: number, L: number, msv: number, beta: number): number {
-  return -(g / L) * Math.cos(theta) + (msv / (L * L)) * Math.cos(2 * (theta - beta));
+  return -(g / L) * pm.cos(theta) + (msv / (L * L)) * pm.cos(2 * (theta - beta));
 }
 
 function wrap(angle: number): number {
@@ -191,8 +192,8 @@ export function averagedAnalysis(input: CaseParams): AveragedAnalysis {
     value[i] = effectivePotential(theta[i], g, L, msv, beta);
   }
   const equilibria = findEquilibria(g, L, msv, beta);
-  const vertical = Math.abs(Math.sin(beta)) < VERTICAL_TOLERANCE;
-  const horizontal = Math.abs(Math.cos(beta)) < VERTICAL_TOLERANCE;
+  const vertical = Math.abs(pm.sin(beta)) < VERTICAL_TOLERANCE;
+  const horizontal = Math.abs(pm.cos(beta)) < VERTICAL_TOLERANCE;
   const uprightCurvature = d2Potential(0, g, L, msv, beta);
   const uprightStable = vertical ? uprightCurvature > 0 : null;
   let tiltFromDown: number | null = null;

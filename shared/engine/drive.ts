@@ -1,4 +1,5 @@
 import type { Drive } from '../case/case-schema';
+import * as pm from './portable-math';
 
 /** Pivot displacement along the drive line as a function of drive phase phi (rad), with its phi-derivatives. */
 export interface DriveShape {
@@ -58,9 +59,9 @@ export function driveShape(drive: Drive): DriveShape {
   switch (w.kind) {
     case 'sine':
       return {
-        position: (phi) => a * Math.cos(phi),
-        dPhase: (phi) => -a * Math.sin(phi),
-        d2Phase: (phi) => -a * Math.cos(phi),
+        position: (phi) => a * pm.cos(phi),
+        dPhase: (phi) => -a * pm.sin(phi),
+        d2Phase: (phi) => -a * pm.cos(phi),
       };
     case 'crank-slider': {
       const r = a;
@@ -69,17 +70,17 @@ export function driveShape(drive: Drive): DriveShape {
       const r2 = r * r;
       return {
         position: (phi) => {
-          const s = Math.sin(phi);
-          return r * Math.cos(phi) + Math.sqrt(l2 - r2 * s * s) - l;
+          const s = pm.sin(phi);
+          return r * pm.cos(phi) + Math.sqrt(l2 - r2 * s * s) - l;
         },
         dPhase: (phi) => {
-          const s = Math.sin(phi);
-          const c = Math.cos(phi);
+          const s = pm.sin(phi);
+          const c = pm.cos(phi);
           return -r * s - (r2 * s * c) / Math.sqrt(l2 - r2 * s * s);
         },
         d2Phase: (phi) => {
-          const s = Math.sin(phi);
-          const c = Math.cos(phi);
+          const s = pm.sin(phi);
+          const c = pm.cos(phi);
           const d2 = l2 - r2 * s * s;
           const d = Math.sqrt(d2);
           return -r * c - (r2 * (c * c - s * s)) / d - (r2 * r2 * s * s * c * c) / (d2 * d);
@@ -94,17 +95,17 @@ export function driveShape(drive: Drive): DriveShape {
       return {
         position: (phi) => {
           let sum = 0;
-          for (let i = 0; i < n; i++) sum += amp[i] * Math.cos(k[i] * phi + ph[i]);
+          for (let i = 0; i < n; i++) sum += amp[i] * pm.cos(k[i] * phi + ph[i]);
           return sum;
         },
         dPhase: (phi) => {
           let sum = 0;
-          for (let i = 0; i < n; i++) sum -= amp[i] * k[i] * Math.sin(k[i] * phi + ph[i]);
+          for (let i = 0; i < n; i++) sum -= amp[i] * k[i] * pm.sin(k[i] * phi + ph[i]);
           return sum;
         },
         d2Phase: (phi) => {
           let sum = 0;
-          for (let i = 0; i < n; i++) sum -= amp[i] * k[i] * k[i] * Math.cos(k[i] * phi + ph[i]);
+          for (let i = 0; i < n; i++) sum -= amp[i] * k[i] * k[i] * pm.cos(k[i] * phi + ph[i]);
           return sum;
         },
       };
@@ -184,9 +185,9 @@ export function driveKinematics(drive: Drive): DriveKinematics {
     const a = drive.amplitude;
     const aw = a * omega;
     const aw2 = aw * omega;
-    position = (t) => a * Math.cos(omega * t);
-    velocity = (t) => -aw * Math.sin(omega * t);
-    acceleration = (t) => -aw2 * Math.cos(omega * t);
+    position = (t) => a * pm.cos(omega * t);
+    velocity = (t) => -aw * pm.sin(omega * t);
+    acceleration = (t) => -aw2 * pm.cos(omega * t);
   } else {
     position = (t) => shape.position(phase(t));
     velocity = (t) => shape.dPhase(phase(t)) * phaseRate(t);
