@@ -225,6 +225,13 @@ describe('case library', () => {
     await page.locator('.run-panel').first().click();
     await expect.poll(() => page.locator('qp-comparison-table tr.mismatch').count()).toBe(0);
     expect(await page.locator('qp-comparison-table tbody tr').count()).toBeGreaterThan(5);
+    // Grouped and labelled: one summary line per run, the tolerance once, names and units as in the tabs.
+    expect(await page.locator('.run-panel [data-testid="run-summary"]').first().textContent()).toMatch(/Motion\s+·\s+same digest\s+·\s+every number agrees/);
+    expect(await page.locator('.run-panel qp-comparison-table .tolerance').count()).toBe(1);
+    const labels = await page.locator('qp-comparison-table tbody th').allTextContents();
+    expect(labels.map((l) => l.trim())).toContain('Largest slow deviation from upright');
+    expect(labels.join(' ')).not.toMatch(/maxDeviation|slowFrequencyHz|finalTheta/);
+    expect(await page.locator('qp-comparison-table tbody td').allTextContents()).toContainEqual(expect.stringMatching(/\d°$/));
     await page.getByLabel('Comment').fill('Reran motion here: identical digest.');
     // The server's own rerun decides whether Confirm is open; the page looks again until it has verified the run.
     await page.locator('.server-run.ok').waitFor({ timeout: 90_000 });
@@ -278,6 +285,13 @@ describe('case library', () => {
     expect(await visitor.getByText(`Shared by ${DEMO_LAB_NAME}`).count()).toBe(1);
     expect(await visitor.getByRole('button', { name: 'Save' }).count()).toBe(0);
     expect(await visitor.locator('qp-stored-runs-table .kind').allTextContents()).toEqual(['Motion']);
+    // The stored outcome and the rig by name in user units, no internal keys.
+    await visitor.locator('qp-outcome-card').waitFor();
+    expect(await visitor.locator('qp-rig-schematic svg').count()).toBe(1);
+    const visitorText = (await visitor.locator('main').textContent()) ?? '';
+    expect(visitorText).toMatch(/holds upright|settles tilted|falls|tumbles|irregular/);
+    expect(visitorText).toContain('Drive amplitude');
+    expect(visitorText).not.toMatch(/start\.rate|damping\.viscousRatio|schemaVersion/);
     const reportHref = await visitor.getByTestId('visitor-report').getAttribute('href');
     const report = await fetch(`${server.baseUrl}${reportHref}`);
     expect(report.status).toBe(200);
