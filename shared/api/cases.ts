@@ -5,9 +5,13 @@ import {
   hex64Schema, idSchema, instantSchema, labRoleSchema, pageQuerySchema, personRefSchema, recheckStateSchema, scalarSchema, serialIdSchema,
 } from './common';
 
-const title = z.string().trim().min(1).max(200);
-const tags = z.array(z.string().trim().min(1).max(40)).max(20);
-const note = z.string().trim().max(2000);
+export const MAX_TAGS = 20;
+export const MAX_TAG_LENGTH = 40;
+// Messages in words: they reach the user beside the field (title, tags, revision note) as they are.
+const title = z.string().trim().min(1, { message: 'must not be empty' }).max(200, { message: 'must be at most 200 characters' });
+const tag = z.string().trim().min(1, { message: 'must not be empty' }).max(MAX_TAG_LENGTH, { message: `must be at most ${MAX_TAG_LENGTH} characters` });
+const tags = z.array(tag).max(MAX_TAGS, { message: `at most ${MAX_TAGS} tags` });
+const note = z.string().trim().max(2000, { message: 'must be at most 2000 characters' });
 /** Case parameters as JSON; the server checks them against the case schema (422 `invalid_params`). */
 const params = z.record(z.string(), z.unknown());
 
@@ -16,7 +20,7 @@ export type CaseSort = (typeof CASE_SORTS)[number];
 
 export const caseListQuerySchema = pageQuerySchema.extend({
   search: z.string().trim().max(200).optional(),
-  tag: z.string().trim().min(1).max(40).optional(),
+  tag: tag.optional(),
   author: z.uuid().optional(),
   recheck: recheckStateSchema.optional(),
   archived: z.enum(['true', 'false']).default('false'),

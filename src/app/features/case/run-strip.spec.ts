@@ -76,6 +76,16 @@ describe('RunStrip', () => {
     expect(host.querySelector('[data-testid=run-motion-progress]')?.textContent).toBe('0 %');
   });
 
+  it('names the other fields that need attention, each once', () => {
+    const { host, detect } = render();
+    workspace.form.group.controls.drive.controls.frequency.setValue(0);
+    workspace.form.group.controls.drive.controls.amplitude.setValue(-1);
+    detect();
+    const text = host.querySelector('[data-testid=run-refusal]')?.textContent ?? '';
+    expect(text).toMatch(/Drive amplitude: must be at least 0 mm\s+Also to fix: Drive frequency\./);
+    expect(text).not.toMatch(/\(\d+ more\)/);
+  });
+
   it('states a cross-field limit with its reason, in the unit the user chose', () => {
     workspace.setUnits({ length: 'mm', frequency: 'rpm', angle: 'deg' });
     const { host, detect } = render();

@@ -51,7 +51,7 @@ export interface RunStripJob {
         <mat-icon aria-hidden="true">block</mat-icon>
         <span>
           Not run while a Rig field is invalid. <strong>{{ f.label }}</strong>: {{ f.message }}
-          @if (f.more > 0) { ({{ f.more }} more) }
+          @if (f.others.length > 0) { Also to fix: {{ f.others.join(', ') }}. }
         </span>
         @if (f.formPath) {
           <a matButton [routerLink]="['..', 'rig']" (click)="workspace.requestFocus(f.formPath)" data-testid="go-to-field">Go to {{ f.label }}</a>
@@ -114,7 +114,10 @@ export class RunStrip {
       label: first.field === '' ? 'The case' : fieldLabel(first.field),
       message: message.charAt(0).toLowerCase() + message.slice(1),
       formPath,
-      more: issues.length - 1,
+      // Other fields by name (a field can carry several issues; the case-wide ones are "the case").
+      others: [...new Set(issues.slice(1).map((i) => (i.field === '' ? 'the case' : fieldLabel(i.field))))].filter(
+        (label) => label !== (first.field === '' ? 'the case' : fieldLabel(first.field)),
+      ),
     };
   });
 

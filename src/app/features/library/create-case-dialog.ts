@@ -1,11 +1,12 @@
 import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
-import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
+import { NonNullableFormBuilder, ReactiveFormsModule, Validators, type AbstractControl, type ValidationErrors } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MAT_DIALOG_DATA, MatDialogModule, MatDialogRef } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatInputModule } from '@angular/material/input';
 import { MatSelectModule } from '@angular/material/select';
 
+import { MAX_TAG_LENGTH, MAX_TAGS } from '../../../../shared/api/cases';
 import { DEMO_RIGS, demoRigCase, templateCase } from '../../../../shared/case';
 import { apiErrorOf, describeError } from '../../core/error-message';
 import { CaseApi } from './case-api';
@@ -21,6 +22,23 @@ const TEMPLATE_ID = 'template';
 /** Splits "a, b ,c" into trimmed, distinct, non-empty tags. */
 export function parseTags(value: string): string[] {
   return [...new Set(value.split(',').map((t) => t.trim()).filter((t) => t !== ''))];
+}
+
+/** What is wrong with the tags typed, in words naming the tag; null when the library takes them. */
+export function tagsProblem(value: string): string | null {
+  const tags = parseTags(value);
+  if (tags.length > MAX_TAGS) return `At most ${MAX_TAGS} tags; this has ${tags.length}.`;
+  const long = tags.find((t) => t.length > MAX_TAG_LENGTH);
+  return long ? `“${long.slice(0, 24)}…” is ${long.length} characters long; a tag holds at most ${MAX_TAG_LENGTH}.` : null;
+}
+
+function tagsValidator(control: AbstractControl<string>): ValidationErrors | null {
+  const problem = tagsProblem(control.value);
+  return problem ? { tags: problem } : null;
+}
+
+function sentence(reason: string): string {
+  return reason.charAt(0).toUpperCase() + reason.slice(1) + (reason.endsWith('.') ? '' : '.');
 }
 
 /** Title, tags and a starting point; closes with the created case. */
@@ -44,7 +62,9 @@ export function parseTags(value: string): string[] {
           <mat-label>Tags</mat-label>
           <input matInput formControlName="tags" placeholder="shaker, upright" />
           <mat-hint>Separate tags with commas.</mat-hint>
-          @if (form.controls.tags.getError('server'); as message) {
+          @if (form.controls.tags.getError('tags'); as message) {
+            <mat-error>{{ message }}</mat-error>
+          } @else if (form.controls.tags.getError('server'); as message) {
             <mat-error>{{ message }}</mat-error>
           }
         </mat-form-field>
@@ -82,7 +102,7 @@ export class CreateCaseDialog {
   protected readonly templateId = TEMPLATE_ID;
   protected readonly form = inject(NonNullableFormBuilder).group({
     title: ['', [Validators.required]],
-    tags: [''],
+    tags: ['', [tagsValidator]],
     start: [TEMPLATE_ID],
   });
   protected readonly saving = signal(false);
@@ -104,7 +124,8 @@ export class CreateCaseDialog {
         const api = apiErrorOf(error);
         const field = api?.field?.split('.')[0];
         if (api && (field === 'title' || field === 'tags')) {
-          this.form.controls[field].setErrors({ server: api.message });
+          // The server's message starts with its key ("tags.2: …"); the form shows the reason beside the field.
+          this.form.controls[field].setErrors({ server: sentence(api.message.replace(/^[\w.]+: /, '')) });
         } else {
           this.error.set(describeError(error));
         }
