@@ -370,6 +370,32 @@ describe('case library', () => {
     }
   }, 120_000);
 
+  it('shows a forged run as unreproduced in History and on the recheck page, in words', async () => {
+    const analyst = await tokenOf('analyst');
+    const params = demoRigCase('shaker-tall-rod');
+    if (!params) throw new Error('demo rig missing');
+    params.run.duration = 2;
+    const saved = await api<{ number: number }>(`/api/cases/${caseId}/revisions`, { token: analyst, body: { baseRevision: 2, params, note: 'forged run' } });
+    expect(saved.status).toBe(201);
+    const rev = saved.body.number;
+    const honest = engineRun(params, { kind: 'motion' });
+    const forged = { ...honest, summary: { ...honest.summary, maxDeviation: (honest.summary['maxDeviation'] as number) * 2 } };
+    expect((await api(`/api/cases/${caseId}/revisions/${rev}/runs`, { token: analyst, body: forged })).status).toBe(201);
+
+    const page = await browser.newPage(DESKTOP);
+    await signIn(page, 'analyst', `/cases/${caseId}/r/${rev}/history`);
+    const check = page.locator('qp-stored-runs-table td.check');
+    await expect.poll(async () => { await page.reload(); await check.first().waitFor(); return (await check.first().textContent())?.trim(); }, { timeout: 60_000, intervals: [2_000] })
+      .toBe('Unreproduced: 1 number differs');
+    await screenshot(page, 'history-unreproduced-desktop');
+
+    await page.goto(`${server.baseUrl}/cases/${caseId}/r/${rev}/recheck`);
+    await page.locator('.server-run.bad').waitFor();
+    const labels = await page.locator('.server-run qp-comparison-table tbody th').allTextContents();
+    expect(labels.map((l) => l.trim())).toEqual(['Largest slow deviation from upright']);
+    await screenshot(page, 'recheck-unreproduced-desktop');
+  }, 120_000);
+
   it('tells a visitor when a link was revoked, and when it never existed', async () => {
     const analyst = await tokenOf('analyst');
     const { body } = await api<{ items: { id: string; state: string }[] }>(`/api/cases/${caseId}/links`, { token: analyst });

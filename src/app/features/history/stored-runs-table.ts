@@ -3,6 +3,7 @@ import { ChangeDetectionStrategy, Component, computed, input } from '@angular/co
 import { MatTableModule } from '@angular/material/table';
 
 import type { RunView } from '../library/library-types';
+import { verificationWords } from '../library/verification-words';
 import { summaryRows } from '../../core/units/field-table';
 import { ScrollRegion } from '../../ui/scroll-region/scroll-region';
 import { RUN_KIND_LABELS } from '../../../../shared/case/display';
@@ -42,6 +43,10 @@ export function headlineNumbers(summary: RunView['summary']): string {
             <th mat-header-cell *matHeaderCellDef>Summary</th>
             <td mat-cell *matCellDef="let row" class="summary">{{ row.headline }}</td>
           </ng-container>
+          <ng-container matColumnDef="check">
+            <th mat-header-cell *matHeaderCellDef>Server check</th>
+            <td mat-cell *matCellDef="let row" class="check" [class]="row.check.tone">{{ row.check.text }}</td>
+          </ng-container>
           <ng-container matColumnDef="digest">
             <th mat-header-cell *matHeaderCellDef>Result digest</th>
             <td mat-cell *matCellDef="let row"><code [attr.title]="row.run.resultDigest">{{ row.run.resultDigest.slice(0, 12) }}…</code></td>
@@ -68,6 +73,9 @@ export function headlineNumbers(summary: RunView['summary']): string {
     .kind { font-weight: 500; }
     .summary { font-variant-numeric: tabular-nums; }
     .when { white-space: nowrap; }
+    .check.ok { color: var(--mat-sys-primary); }
+    .check.bad { color: var(--mat-sys-error); font-weight: 500; }
+    .check.pending { color: var(--mat-sys-on-surface-variant); }
     code { font-size: 0.85em; }
     .none { color: var(--mat-sys-on-surface-variant); margin: 0; }
   `,
@@ -75,6 +83,6 @@ export function headlineNumbers(summary: RunView['summary']): string {
 })
 export class StoredRunsTable {
   readonly runs = input.required<readonly RunView[]>();
-  protected readonly columns = ['kind', 'summary', 'digest', 'engine', 'stored'];
-  protected readonly rows = computed(() => this.runs().map((run) => ({ run, kind: RUN_KIND_LABELS[run.kind] ?? run.kind, headline: headlineNumbers(run.summary) })));
+  protected readonly columns = ['kind', 'summary', 'check', 'digest', 'engine', 'stored'];
+  protected readonly rows = computed(() => this.runs().map((run) => ({ run, kind: RUN_KIND_LABELS[run.kind] ?? run.kind, headline: headlineNumbers(run.summary), check: verificationWords(run.verification) })));
 }
