@@ -27,6 +27,7 @@ import { apiNotFound, jsonErrors } from './middleware/errors';
 import { jsonBody } from './middleware/json-body';
 import { ANY_LAB_ROLE, requireLabRole } from './middleware/roles';
 import { signInRoute, signOutRoute } from './routes/auth-routes';
+import { CaseListCache } from './services/case-list-cache';
 import { SignInBackoff } from './services/sign-in-backoff';
 import { healthRoute } from './routes/health-routes';
 import {
@@ -82,6 +83,8 @@ export function createApp(options: AppOptions): Express {
   const { config, sequelize } = options;
   const logger = options.logger ?? createLogger(config.logLevel);
   const authenticate = createAuthenticator(config.jwtSecret);
+  // Case-list pages by (lab, library version, query); the version comes with the caller's memberships.
+  const caseListCache = new CaseListCache();
   const signInLimiter = rateLimit({
     windowMs: config.signInWindowMs,
     limit: config.signInLimit,
@@ -160,7 +163,7 @@ export function createApp(options: AppOptions): Express {
     route('get', '/labs/:labId/invitations', pagedSchema(invitationSchema), authenticate, owner, invitationsRoute),
     route('delete', '/labs/:labId/invitations/:invitationId', null, authenticate, owner, revokeInvitationRoute(sequelize)),
     // case library
-    route('get', '/labs/:labId/cases', pagedSchema(caseListItemSchema), authenticate, anyRole, listCasesRoute),
+    route('get', '/labs/:labId/cases', pagedSchema(caseListItemSchema), authenticate, anyRole, listCasesRoute(caseListCache)),
     route('post', '/labs/:labId/cases', caseDetailSchema, authenticate, labAuthor, createCaseRoute(sequelize)),
     route('get', '/cases/:caseId', caseDetailSchema, authenticate, caseReader, caseRoute),
     route('patch', '/cases/:caseId', caseDetailSchema, authenticate, caseAuthor, patchCaseRoute(sequelize)),

@@ -17,6 +17,8 @@ declare global {
     interface User extends PublicUser {
       /** the user's role in each of their labs, by lab id, read with the token (requireLabRole, requireCaseRole) */
       labRoles: Record<string, LabRole>;
+      /** each of those labs' library version, read in the same query (the case-list cache's key) */
+      libraryVersions: Record<string, number>;
       /** the access token's id and expiry, for sign-out */
       tokenId: string;
       tokenExp: number;
@@ -71,7 +73,7 @@ export function createAuthenticator(jwtSecret: string): RequestHandler {
           const holder = await tokenHolder(sub, jti);
           if (holder?.revoked) return done(null, false, { code: 'token_revoked', message: 'This session was signed out; sign in again.' });
           if (!holder) return done(null, false, { code: 'invalid_token', message: 'The account for this token no longer exists.' });
-          return done(null, { ...holder.user, labRoles: holder.labRoles, tokenId: jti, tokenExp: exp });
+          return done(null, { ...holder.user, labRoles: holder.labRoles, libraryVersions: holder.libraryVersions, tokenId: jti, tokenExp: exp });
         })().catch((err: unknown) => done(err));
       },
     ),

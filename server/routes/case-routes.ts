@@ -27,6 +27,7 @@ import {
   type StoredResultBytes,
   updateCase,
 } from '../services/case-service';
+import type { CaseListCache } from '../services/case-list-cache';
 import { recordRecheck, requestRecheck } from '../services/recheck-service';
 import type { RunVerifier } from '../services/run-verifier';
 import { revisionReport, type CaseReport } from '../services/report-service';
@@ -36,10 +37,14 @@ function actorOf(req: Express.Request): Actor {
   return { id: user.id, name: user.name };
 }
 
-export const listCasesRoute: RequestHandler = async (req, res) => {
-  const q = parseInput(caseListQuerySchema, req.query, 'query');
-  res.json(await listCases(labMembership(req).labId, { ...q, archived: q.archived === 'true' }));
-};
+export function listCasesRoute(cache: CaseListCache): RequestHandler {
+  return async (req, res) => {
+    const q = parseInput(caseListQuerySchema, req.query, 'query');
+    const query = { ...q, archived: q.archived === 'true' };
+    const { labId } = labMembership(req);
+    res.json(await cache.page(labId, currentUser(req).libraryVersions[labId], query, () => listCases(labId, query)));
+  };
+}
 
 export function createCaseRoute(sequelize: Sequelize): RequestHandler {
   return async (req, res) => {

@@ -3,7 +3,7 @@ import { currentUser } from '../middleware/auth';
 import { labsOf } from '../services/lab-service';
 
 export const meRoute: RequestHandler = async (req, res) => {
-  const { tokenId: _tokenId, tokenExp, labRoles: _labRoles, ...user } = currentUser(req);
+  const { tokenId: _tokenId, tokenExp, labRoles: _labRoles, libraryVersions: _libraryVersions, ...user } = currentUser(req);
   const labs = await labsOf(user.id, { page: 1, pageSize: 1000 });
   res.json({
     user,

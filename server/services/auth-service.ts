@@ -64,6 +64,8 @@ export interface TokenHolder {
   user: PublicUser;
   /** the user's role in each of their labs, by lab id */
   labRoles: Record<string, LabRole>;
+  /** each of those labs' library version (migration 0004), the key of the case-list cache */
+  libraryVersions: Record<string, number>;
   revoked: boolean;
 }
 
@@ -74,16 +76,18 @@ export interface TokenHolder {
 export async function tokenHolder(sub: string, jti: string): Promise<TokenHolder | null> {
   const sequelize = User.sequelize;
   if (!sequelize) throw new Error('models are not bound to a database');
-  const [row] = await sequelize.query<{ id: string; email: string; name: string; is_site_admin: boolean; lab_roles: Record<string, LabRole>; revoked: boolean }>(
+  const [row] = await sequelize.query<{ id: string; email: string; name: string; is_site_admin: boolean; lab_roles: Record<string, LabRole>; library_versions: Record<string, number>; revoked: boolean }>(
     `SELECT u.id, u.email, u.name, u.is_site_admin,
             EXISTS (SELECT 1 FROM revoked_tokens WHERE jti = :jti) AS revoked,
-            COALESCE((SELECT json_object_agg(m.lab_id, m.role) FROM memberships m WHERE m.user_id = u.id), '{}') AS lab_roles
+            COALESCE((SELECT json_object_agg(m.lab_id, m.role) FROM memberships m WHERE m.user_id = u.id), '{}') AS lab_roles,
+            COALESCE((SELECT json_object_agg(m.lab_id, l.library_version) FROM memberships m JOIN labs l ON l.id = m.lab_id
+                       WHERE m.user_id = u.id), '{}') AS library_versions
        FROM users u
       WHERE u.id = :sub`,
     { replacements: { sub, jti }, type: QueryTypes.SELECT },
   );
   if (!row) return null;
-  return { user: { id: row.id, email: row.email, name: row.name, isSiteAdmin: row.is_site_admin }, labRoles: row.lab_roles, revoked: row.revoked };
+  return { user: { id: row.id, email: row.email, name: row.name, isSiteAdmin: row.is_site_admin }, labRoles: row.lab_roles, libraryVersions: row.library_versions, revoked: row.revoked };
 }
 
 export async function isRevoked(jti: string): Promise<boolean> {
