@@ -7,12 +7,18 @@ import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 
+import type { StabilityChart } from '../../../../shared/engine/chart';
 import type { FloquetAnalysis } from '../../../../shared/engine/floquet';
 import type { MotionResult } from '../../../../shared/engine/motion';
+import type { SweepResult } from '../../../../shared/engine/sweep';
 import { describeError } from '../../core/error-message';
 import { DEFAULT_UNITS } from '../../core/units/display-units';
 import { formatIn } from '../../core/units/format-number';
+import { stabilityChartPlot } from '../case/map/stability-chart-plot';
 import { MarginGauge, bandPosition } from '../case/margins/margin-gauge';
+import { angleTimePlot, phasePortraitPlot } from '../case/motion/motion-plots';
+import { sweepAxis, sweepResultPlot } from '../case/sweeps/sweep-plot';
+import { Plot } from '../../ui/plot/plot';
 import { OutcomeCard, type OutcomeView } from '../case/motion/outcome-card';
 import { RigSchematic } from '../case/rig/rig-schematic';
 import { linkReportUrl } from '../history/case-report-download';
@@ -39,7 +45,10 @@ export function linkProblem(error: unknown): string {
  */
 @Component({
   selector: 'qp-visitor-page',
-  imports: [ScrollRegion, DatePipe, MarginGauge, MatButtonModule, MatIconModule, MatProgressBarModule, OutcomeCard, RerunPanel, RigSchematic, StoredRunsTable],
+  imports: [
+    ScrollRegion, DatePipe, MarginGauge, MatButtonModule, MatIconModule, MatProgressBarModule, OutcomeCard, Plot, RerunPanel, RigSchematic,
+    StoredRunsTable,
+  ],
   templateUrl: './visitor-page.html',
   styleUrl: './visitor-page.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -60,13 +69,16 @@ export class VisitorPage {
   protected readonly params = computed(() => flattenParams(this.shared()?.revision.rawParams ?? null));
   protected readonly units = DEFAULT_UNITS;
 
-  /** The latest stored motion and margins runs' full results, as the server stored them; a missing one stays null. */
+  /**
+   * The latest stored motion, margins, sweep and chart runs' full results, as the server stored them (its own
+   * rerun's); a missing one, or one the server has not settled yet, stays null.
+   */
   protected readonly stored = rxResource({
     params: () => {
       const s = this.shared();
       if (!s) return undefined;
-      const latest = (kind: string) => s.revision.runs.filter((r) => r.kind === kind).at(-1)?.id ?? null;
-      return { token: this.token(), motion: latest('motion'), margins: latest('margins') };
+      const latest = (kind: string) => s.revision.runs.filter((r) => r.kind === kind && r.verification.state !== 'pending').at(-1)?.id ?? null;
+      return { token: this.token(), motion: latest('motion'), margins: latest('margins'), sweep: latest('sweep'), chart: latest('chart') };
     },
     stream: ({ params }) => {
       const fetch = <T>(runId: string | null, kind: string) =>
@@ -76,11 +88,40 @@ export class VisitorPage {
               map((r) => (r.kind === kind ? (r.value as T) : null)),
               catchError(() => of(null)),
             );
-      return forkJoin({ motion: fetch<MotionResult>(params.motion, 'motion'), margins: fetch<FloquetAnalysis>(params.margins, 'margins') });
+      return forkJoin({
+        motion: fetch<MotionResult>(params.motion, 'motion'),
+        margins: fetch<FloquetAnalysis>(params.margins, 'margins'),
+        sweep: fetch<SweepResult>(params.sweep, 'sweep'),
+        chart: fetch<StabilityChart>(params.chart, 'chart'),
+      });
     },
   });
   private readonly motion = computed(() => (this.stored.hasValue() ? this.stored.value().motion : null));
   private readonly margins = computed(() => (this.stored.hasValue() ? this.stored.value().margins : null));
+  private readonly sweep = computed(() => (this.stored.hasValue() ? this.stored.value().sweep : null));
+  private readonly chart = computed(() => (this.stored.hasValue() ? this.stored.value().chart : null));
+
+  /** The stored plots, drawn by the same builders as the case tabs. */
+  protected readonly timePlot = computed(() => {
+    const m = this.motion();
+    return m ? angleTimePlot(m, this.units) : null;
+  });
+  protected readonly phasePlot = computed(() => {
+    const m = this.motion();
+    return m ? phasePortraitPlot(m, this.units) : null;
+  });
+  protected readonly sweepPlot = computed(() => {
+    const s = this.sweep();
+    const params = this.shared()?.revision.params;
+    return s && params ? sweepResultPlot(s, sweepAxis(s, params, this.units), this.units) : null;
+  });
+  protected readonly chartPlot = computed(() => {
+    const c = this.chart();
+    return c ? stabilityChartPlot(c, this.units) : null;
+  });
+  protected readonly hasResults = computed(
+    () => this.outcomeView() !== null || this.gauge() !== null || this.sweepPlot() !== null || this.chartPlot() !== null,
+  );
 
   protected readonly outcomeView = computed<OutcomeView | null>(() => {
     const m = this.motion();

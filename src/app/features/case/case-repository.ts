@@ -1,8 +1,9 @@
 import { InjectionToken } from '@angular/core';
 import type { Observable } from 'rxjs';
 
+import type { VerificationView } from '../../../../shared/api/cases';
 import type { CaseParams } from '../../../../shared/case/case-schema';
-import type { RunKind, RunRecord, RunSettings, RunSummary } from '../../../../shared/engine/run-record';
+import type { RunKind, RunRecord, RunResult, RunSettings, RunSummary } from '../../../../shared/engine/run-record';
 
 export { CaseRepositoryError, type CaseRepositoryErrorCode } from './case-repository-error';
 
@@ -16,6 +17,8 @@ export interface StoredRun {
   readonly engineVersion: string;
   readonly author?: { readonly id: string; readonly name: string };
   readonly createdAt: string;
+  /** The server's own rerun of the run: its full result is stored once this is no longer `pending`. */
+  readonly verification: VerificationView;
 }
 
 /** One revision of a case as the case page sees it. */
@@ -55,6 +58,8 @@ export interface CaseRepository {
   /** A new revision on top of `baseRevision`; fails with code `stale_revision` when that is no longer the latest. */
   saveRevision(caseId: string, baseRevision: number, params: CaseParams, note: string): Observable<OpenedCase>;
   saveRun(caseId: string, revision: number, run: RunRecord): Observable<StoredRun>;
+  /** The full result the server stored for a run (its own rerun's); fails while the run is still `pending`. */
+  runResult(caseId: string, revision: number, runId: string): Observable<RunResult>;
   /** Renames the case (no new revision: the title is not part of the parameters); replaces the tags when given. */
   rename(caseId: string, title: string, tags?: readonly string[]): Observable<CaseLabel>;
 }

@@ -1,15 +1,16 @@
 import { provideHttpClient } from '@angular/common/http';
 import { provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
-import { firstValueFrom } from 'rxjs';
+import { firstValueFrom, of } from 'rxjs';
 
 import { handleEngineRequest } from '../../../../shared/compute/handle-request';
 import type { EngineRequest, EngineResponse } from '../../../../shared/compute/protocol';
 import { WorkerPool, type WorkerLike } from '../../../../shared/compute/worker-pool';
 import { templateCase } from '../../../../shared/case/templates';
+import { computeRun, makeRunRecord, type RunSettings } from '../../../../shared/engine/run-record';
 import { ENGINE_POOL } from '../../core/compute/engine-pool';
-import { CASE_REPOSITORY } from './case-repository';
-import { CaseWorkspace, messageOf } from './case-workspace';
+import { CASE_REPOSITORY, type StoredRun } from './case-repository';
+import { CaseWorkspace, messageOf, storedRunsToShow } from './case-workspace';
 import { FakeCaseRepository } from './fake-case-repository';
 
 /** A worker that runs the real engine request handler on this thread, one macrotask later. */
@@ -32,17 +33,45 @@ class InProcessWorker implements WorkerLike {
   }
 }
 
+describe('storedRunsToShow', () => {
+  const run = (id: string, kind: StoredRun['kind'], createdAt: string, state: StoredRun['verification']['state']): StoredRun =>
+    ({ id, kind, createdAt, verification: { state }, settings: { kind }, summary: {}, resultDigest: 'x', engineVersion: 'v' }) as StoredRun;
+
+  it('picks the latest settled run of each shown kind and lists kinds whose runs are all still pending', () => {
+    const runs = [
+      run('m1', 'motion', '2026-12-01T10:00:00Z', 'verified'),
+      run('m2', 'motion', '2026-12-01T11:00:00Z', 'unreproduced'),
+      run('m3', 'motion', '2026-12-01T12:00:00Z', 'pending'),
+      run('s1', 'sweep', '2026-12-01T10:00:00Z', 'pending'),
+      run('o1', 'map', '2026-12-01T10:00:00Z', 'verified'),
+    ];
+    const { show, pending } = storedRunsToShow(runs);
+    expect(show.map((r) => r.id)).toEqual(['m2']);
+    expect(pending).toEqual(['sweep']);
+  });
+});
+
 describe('CaseWorkspace', () => {
   let workspace: CaseWorkspace;
+  /** Engine workers the pool has made: a stored result must be shown without any. */
+  let workersMade = 0;
 
   beforeEach(() => {
+    workersMade = 0;
     TestBed.configureTestingModule({
       providers: [
         provideHttpClient(),
         provideHttpClientTesting(),
         CaseWorkspace,
         { provide: CASE_REPOSITORY, useExisting: FakeCaseRepository },
-        { provide: ENGINE_POOL, useFactory: () => new WorkerPool(() => new InProcessWorker(), 1) },
+        {
+          provide: ENGINE_POOL,
+          useFactory: () =>
+            new WorkerPool(() => {
+              workersMade++;
+              return new InProcessWorker();
+            }, 1),
+        },
       ],
     });
     workspace = TestBed.inject(CaseWorkspace);
@@ -132,5 +161,84 @@ describe('CaseWorkspace', () => {
     expect(workspace.sweepJob.cancelled()).toBe(true);
     expect(workspace.sweep()).toBeNull();
     expect(workspace.runs()).toHaveLength(0);
+  });
+
+  describe('stored runs of an opened revision', () => {
+    const params = (() => {
+      const p = templateCase();
+      return { ...p, run: { ...p.run, duration: 1, outputPoints: 200 } };
+    })();
+
+    /** A revision with a motion run and a sweep run the server has settled (their full results stored). */
+    async function storedRevision(): Promise<{ caseId: string; motionId: string }> {
+      const repository = TestBed.inject(FakeCaseRepository);
+      const created = await firstValueFrom(repository.create({ labId: null, title: 'Stored rig', tags: [], params, note: '' }));
+      const a = params.drive.amplitude;
+      const runs: RunSettings[] = [{ kind: 'motion' }, { kind: 'sweep', spec: { field: 'drive.amplitude', from: a / 2, to: a * 1.5, steps: 3 } }];
+      let motionId = '';
+      for (const settings of runs) {
+        const result = computeRun(params, settings);
+        const stored = await firstValueFrom(repository.saveRun(created.caseId, 1, makeRunRecord(params, settings, result)));
+        repository.settleRun(created.caseId, 1, stored.id, result);
+        if (settings.kind === 'motion') motionId = stored.id;
+      }
+      return { caseId: created.caseId, motionId };
+    }
+
+    it('shows them marked with the revision and the server verdict, without starting a worker job', async () => {
+      const { caseId, motionId } = await storedRevision();
+      await firstValueFrom(workspace.open(caseId, 1));
+      await vi.waitFor(() => expect(workspace.sweep()).not.toBeNull());
+      expect(workspace.motion()?.stored).toMatchObject({ runId: motionId, kind: 'motion', revision: 1, verification: { state: 'verified' } });
+      expect(workspace.motion()?.value.outcome).toBeTruthy();
+      expect(workspace.sweep()?.value.points).toHaveLength(3);
+      expect(workspace.sweep()?.stored?.kind).toBe('sweep');
+      expect(workspace.margins()).toBeNull();
+      expect(workspace.isStale(workspace.motion())).toBe(false);
+      expect(workspace.storedNotes()).toEqual({});
+      expect(workspace.motionJob.running()).toBe(false);
+      expect(workersMade).toBe(0);
+    });
+
+    it('turns a stored view stale on an edit, and a fresh run replaces it only when asked', async () => {
+      const { caseId } = await storedRevision();
+      await firstValueFrom(workspace.open(caseId, 1));
+      await vi.waitFor(() => expect(workspace.motion()?.stored).toBeDefined());
+      const amplitude = workspace.form.group.controls.drive.controls.amplitude;
+      const shown = amplitude.value;
+      amplitude.setValue(Number(shown) * 1.1);
+      expect(workspace.isStale(workspace.motion())).toBe(true);
+      expect(workspace.motion()?.stored).toBeDefined();
+      amplitude.setValue(shown);
+      expect(workspace.isStale(workspace.motion())).toBe(false);
+
+      workspace.runMotion();
+      expect(workspace.motion()?.stored).toBeDefined();
+      await vi.waitFor(() => expect(workspace.motion()?.stored).toBeUndefined(), { timeout: 20_000 });
+      expect(workersMade).toBeGreaterThan(0);
+      expect(workspace.sweep()?.stored).toBeDefined();
+    });
+
+    it('shows none when the parameters read here have another digest than the one the runs were stored for', async () => {
+      const { caseId } = await storedRevision();
+      const repository = TestBed.inject(FakeCaseRepository);
+      const opened = await firstValueFrom(repository.open(caseId, 1));
+      vi.spyOn(repository, 'open').mockReturnValue(of({ ...opened, paramsDigest: 'f'.repeat(64) }));
+      const runResult = vi.spyOn(repository, 'runResult');
+      await firstValueFrom(workspace.open(caseId, 1));
+      expect(runResult).not.toHaveBeenCalled();
+      expect(workspace.motion()).toBeNull();
+      expect(workspace.storedNotes().motion).toMatch(/Motion stored with r1: not shown/);
+    });
+
+    it('says which stored runs the server is still rerunning', async () => {
+      const repository = TestBed.inject(FakeCaseRepository);
+      const created = await firstValueFrom(repository.create({ labId: null, title: 'Pending rig', tags: [], params, note: '' }));
+      const settings: RunSettings = { kind: 'motion' };
+      await firstValueFrom(repository.saveRun(created.caseId, 1, makeRunRecord(params, settings, computeRun(params, settings))));
+      await firstValueFrom(workspace.open(created.caseId, 1));
+      expect(workspace.motion()).toBeNull();
+      expect(workspace.storedNotes().motion).toMatch(/Motion stored with r1: the server is still rerunning it/);
+    });
   });
 });

@@ -1,15 +1,17 @@
 import { DestroyRef, Injectable, computed, inject, signal } from '@angular/core';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
-import { Observable, catchError, finalize, forkJoin, map, of, switchMap, tap, throwError } from 'rxjs';
+import { EMPTY, Observable, Subscription, catchError, finalize, forkJoin, map, merge, of, switchMap, tap, throwError } from 'rxjs';
 
+import type { VerificationView } from '../../../../shared/api/cases';
 import { caseDigest } from '../../../../shared/case/canonical';
+import { RUN_KIND_LABELS } from '../../../../shared/case/display';
 import type { CaseParams } from '../../../../shared/case/case-schema';
 import { demoRigCase, templateCase } from '../../../../shared/case/templates';
 import type { CaseIssue } from '../../../../shared/case/validate';
 import type { Grid2, StabilityChart } from '../../../../shared/engine/chart';
 import type { FloquetAnalysis } from '../../../../shared/engine/floquet';
 import type { MotionResult } from '../../../../shared/engine/motion';
-import { makeRunRecord, type RunRecord, type RunResult, type RunSettings } from '../../../../shared/engine/run-record';
+import { makeRunRecord, type RunKind, type RunRecord, type RunResult, type RunSettings } from '../../../../shared/engine/run-record';
 import type { CellMap, MapCell, SweepPoint, SweepResult, SweepSpec } from '../../../../shared/engine/sweep';
 import { ENGINE_POOL } from '../../core/compute/engine-pool';
 import { describeError } from '../../core/error-message';
@@ -20,12 +22,46 @@ import { PoolJob, type RowsDone } from './pool-job';
 import { RigForm } from './rig/rig-form';
 import { DEFAULT_UNITS, type DisplayUnits } from '../../core/units/display-units';
 
+/** Where a shown result came from when it was read from the opened revision instead of computed on this page. */
+export interface StoredOrigin {
+  readonly runId: string;
+  readonly kind: RunKind;
+  readonly revision: number;
+  /** When the run was stored (ISO instant). */
+  readonly computedAt: string;
+  /** Who stored it; null for a former member. */
+  readonly authorName: string | null;
+  /** The server's own rerun of the run. */
+  readonly verification: VerificationView;
+}
+
 /** A result together with the case it was computed for. */
 export interface Computed<T> {
   readonly value: T;
   readonly params: CaseParams;
   readonly paramsDigest: string;
   readonly settings: RunSettings;
+  /** Present when the result is a stored run of the opened revision (no computation on this page). */
+  readonly stored?: StoredOrigin;
+}
+
+/** Run kinds a case tab shows (the outcome map has no tab of its own). */
+export const SHOWN_STORED_KINDS: readonly RunKind[] = ['motion', 'margins', 'sweep', 'chart', 'basin'];
+
+/**
+ * For each kind a tab shows, the stored run whose result to show: the latest the server has settled (verified or
+ * unreproduced; only those have a stored result). `pending` lists kinds whose only runs are still being rerun.
+ */
+export function storedRunsToShow(runs: readonly StoredRun[]): { show: StoredRun[]; pending: RunKind[] } {
+  const show: StoredRun[] = [];
+  const pending: RunKind[] = [];
+  for (const kind of SHOWN_STORED_KINDS) {
+    const mine = runs.filter((r) => r.kind === kind).sort((a, b) => a.createdAt.localeCompare(b.createdAt));
+    const settled = mine.filter((r) => r.verification.state !== 'pending').at(-1);
+    if (settled) show.push(settled);
+    else if (mine.length > 0) pending.push(kind);
+  }
+  return { show, pending };
 }
 
 /** A save that went through: the revision now shown and how many runs were stored with it. */
@@ -67,6 +103,8 @@ export class CaseWorkspace {
   private readonly sweepPartialState = signal<readonly SweepPoint[]>([]);
   private readonly sweepStepsState = signal(0);
   private readonly focusRequestState = signal<string | null>(null);
+  private readonly storedNotesState = signal<Partial<Record<RunKind, string>>>({});
+  private storedLoad: Subscription | null = null;
 
   readonly form = new RigForm(templateCase(), DEFAULT_UNITS);
   readonly title = signal('New case');
@@ -112,6 +150,12 @@ export class CaseWorkspace {
   readonly sweepSteps = this.sweepStepsState.asReadonly();
   readonly chart = this.chartState.asReadonly();
   readonly basin = this.basinState.asReadonly();
+  /**
+   * Per run kind, why the opened revision's stored result is not (yet) shown: loading, still being rerun by the
+   * server, failed to load, or not shown because it may not belong to the values on screen. Tabs show it while they
+   * have no result.
+   */
+  readonly storedNotes = this.storedNotesState.asReadonly();
   /** A form path the Rig tab should focus when it shows (set by a refused run's link). */
   readonly focusRequest = this.focusRequestState.asReadonly();
 
@@ -125,6 +169,7 @@ export class CaseWorkspace {
     this.form.group.valueChanges.pipe(takeUntilDestroyed(this.destroyRef)).subscribe(() => this.readForm());
     this.destroyRef.onDestroy(() => {
       for (const job of this.jobs()) job.cancel();
+      this.storedLoad?.unsubscribe();
     });
   }
 
@@ -153,6 +198,7 @@ export class CaseWorkspace {
         this.openedState.set(opened);
         this.title.set(opened.title);
         this.applyParams(opened.params);
+        this.showStoredResults(opened);
       }),
       catchError((error: unknown) => {
         this.loadErrorState.set(messageOf(error));
@@ -160,6 +206,83 @@ export class CaseWorkspace {
       }),
       finalize(() => this.loadingState.set(false)),
     );
+  }
+
+  /**
+   * Shows the revision's stored runs in their tabs, read from the server (its own rerun's full result): no worker
+   * job starts. Only when the revision's parameters, as this page reads them, have the digest the runs were stored
+   * for: a result is never shown beside values it was not computed from. A result arriving after the user has
+   * computed that kind here is dropped: a fresh run replaces the stored view, never the other way round.
+   */
+  private showStoredResults(opened: OpenedCase): void {
+    const { show, pending } = storedRunsToShow(opened.runs);
+    const notes: Partial<Record<RunKind, string>> = {};
+    const where = (kind: RunKind) => `${RUN_KIND_LABELS[kind] ?? kind} stored with r${opened.revision}`;
+    if (caseDigest(opened.params) !== opened.paramsDigest) {
+      for (const run of show) {
+        notes[run.kind] = `${where(run.kind)}: not shown, because this version of the app reads the revision's parameters differently from when the run was stored. Run it again to see results for the values on screen.`;
+      }
+      this.storedNotesState.set(notes);
+      return;
+    }
+    for (const kind of pending) notes[kind] = `${where(kind)}: the server is still rerunning it; reopen the revision in a moment to see it.`;
+    for (const run of show) notes[run.kind] = `${where(run.kind)}: loading…`;
+    this.storedNotesState.set(notes);
+    const loads = show.map((run) =>
+      this.repository.runResult(opened.caseId, opened.revision, run.id).pipe(
+        tap((result) => {
+          this.setNote(run.kind, null);
+          this.showStored(result, run, opened);
+        }),
+        catchError((error: unknown) => {
+          this.setNote(run.kind, `${where(run.kind)}: could not be loaded. ${messageOf(error)}`);
+          return EMPTY;
+        }),
+      ),
+    );
+    this.storedLoad = merge(...loads).subscribe();
+  }
+
+  private setNote(kind: RunKind, note: string | null): void {
+    this.storedNotesState.update((notes) => {
+      const next = { ...notes };
+      if (note === null) delete next[kind];
+      else next[kind] = note;
+      return next;
+    });
+  }
+
+  private showStored(result: RunResult, run: StoredRun, opened: OpenedCase): void {
+    if (result.kind !== run.kind) return;
+    const stored: StoredOrigin = {
+      runId: run.id,
+      kind: run.kind,
+      revision: opened.revision,
+      computedAt: run.createdAt,
+      authorName: run.author?.name ?? null,
+      verification: run.verification,
+    };
+    const base = { params: opened.params, paramsDigest: opened.paramsDigest, settings: run.settings, stored };
+    // Each kind's view is set only while empty: a result computed here in the meantime stays.
+    switch (result.kind) {
+      case 'motion':
+        if (!this.motionState()) this.motionState.set({ ...base, value: result.value });
+        break;
+      case 'margins':
+        if (!this.marginsState()) this.marginsState.set({ ...base, value: result.value });
+        break;
+      case 'sweep':
+        if (!this.sweepState()) this.sweepState.set({ ...base, value: result.value });
+        break;
+      case 'chart':
+        if (!this.chartState()) this.chartState.set({ ...base, value: result.value });
+        break;
+      case 'basin':
+        if (!this.basinState()) this.basinState.set({ ...base, value: result.value });
+        break;
+      case 'map':
+        break;
+    }
   }
 
   /** Replaces the whole case (preset, uploaded file, opened revision): fills the form and the draft. */
@@ -346,6 +469,9 @@ export class CaseWorkspace {
 
   private reset(): void {
     for (const job of this.jobs()) job.cancel();
+    this.storedLoad?.unsubscribe();
+    this.storedLoad = null;
+    this.storedNotesState.set({});
     this.motionState.set(null);
     this.marginsState.set(null);
     this.sweepState.set(null);

@@ -4,7 +4,8 @@ import { Observable, defer, of, throwError } from 'rxjs';
 import { caseDigest } from '../../../../shared/case/canonical';
 import type { CaseParams } from '../../../../shared/case/case-schema';
 import { parseCase } from '../../../../shared/case/validate';
-import type { RunRecord } from '../../../../shared/engine/run-record';
+import { decodeRunResult, encodeRunResult } from '../../../../shared/engine/result-codec';
+import type { RunRecord, RunResult } from '../../../../shared/engine/run-record';
 import type { CaseLabel, CaseRepository, NewCase, OpenedCase, StoredRun } from './case-repository';
 import { CaseRepositoryError } from './case-repository-error';
 
@@ -42,6 +43,8 @@ function newId(prefix: string): string {
 export class FakeCaseRepository implements CaseRepository {
   /** Copied on every read and write, so callers never share objects with the store (as with a server). */
   private stored = '{}';
+  /** Full results by run id, in the server's text encoding; a run without one is still `pending`. */
+  private readonly results = new Map<string, string>();
 
   open(caseId: string, revision?: number): Observable<OpenedCase> {
     return defer(() => {
@@ -111,10 +114,36 @@ export class FakeCaseRepository implements CaseRepository {
         resultDigest: run.resultDigest,
         engineVersion: run.engineVersion,
         createdAt: new Date().toISOString(),
+        verification: { state: 'pending', verifiedAt: null, engineVersion: null, failure: null, claimed: null, differences: [], resultBytes: null },
       };
       rev.runs.push(stored);
       this.write(library);
       return of(stored);
+    });
+  }
+
+  /** What the server's rerun does: keeps the run's full result and settles it as `state`. */
+  settleRun(caseId: string, revision: number, runId: string, result: RunResult, state: 'verified' | 'unreproduced' = 'verified'): void {
+    const library = this.read();
+    const run = library[caseId]?.revisions.find((r) => r.number === revision)?.runs.find((r) => r.id === runId);
+    if (!run) throw new Error(`no run ${runId} in r${revision}`);
+    (run as { verification: StoredRun['verification'] }).verification = {
+      ...run.verification,
+      state,
+      verifiedAt: new Date().toISOString(),
+      engineVersion: run.engineVersion,
+    };
+    this.results.set(runId, encodeRunResult(result));
+    this.write(library);
+  }
+
+  runResult(caseId: string, revision: number, runId: string): Observable<RunResult> {
+    return defer(() => {
+      const rev = this.read()[caseId]?.revisions.find((r) => r.number === revision);
+      if (!rev?.runs.some((r) => r.id === runId)) return throwError(() => new CaseRepositoryError('not_found', `r${revision} has no such run.`));
+      const text = this.results.get(runId);
+      if (text === undefined) return throwError(() => new CaseRepositoryError('storage', 'The server is still rerunning this run.'));
+      return of(decodeRunResult(text));
     });
   }
 

@@ -4,7 +4,7 @@ import { Observable, catchError, map, switchMap, throwError } from 'rxjs';
 
 import type { CaseParams } from '../../../../shared/case/case-schema';
 import { parseRunSettings } from '../../../../shared/engine/run-kinds';
-import type { RunRecord } from '../../../../shared/engine/run-record';
+import type { RunRecord, RunResult } from '../../../../shared/engine/run-record';
 import { apiErrorOf, describeError } from '../../core/error-message';
 import type { CaseLabel, CaseRepository, NewCase, OpenedCase, StoredRun } from '../case/case-repository';
 import { CaseRepositoryError } from '../case/case-repository-error';
@@ -27,6 +27,7 @@ export function storedRunOf(run: RunView): StoredRun | null {
     engineVersion: run.engineVersion,
     author: run.author ?? undefined,
     createdAt: run.createdAt,
+    verification: run.verification,
   };
 }
 
@@ -109,6 +110,13 @@ export class ApiCaseRepository implements CaseRepository {
       }),
       catchError((error: unknown) => throwError(() => repositoryErrorOf(error))),
     );
+  }
+
+  runResult(caseId: string, revision: number, runId: string): Observable<RunResult> {
+    // A 409 here is a run still being rerun by the server, not a stale save: the server's words say so.
+    return this.api
+      .runResult(caseId, revision, runId)
+      .pipe(catchError((error: unknown) => throwError(() => new CaseRepositoryError('storage', describeError(error)))));
   }
 
   rename(caseId: string, title: string, tags?: readonly string[]): Observable<CaseLabel> {

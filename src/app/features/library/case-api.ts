@@ -1,6 +1,6 @@
-import { HttpClient, HttpParams } from '@angular/common/http';
+import { HttpClient, HttpErrorResponse, HttpParams } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
-import { Observable, map } from 'rxjs';
+import { Observable, catchError, map, throwError } from 'rxjs';
 
 import { pagedSchema } from '../../../../shared/api/common';
 import {
@@ -13,7 +13,8 @@ import {
   type CaseSort,
 } from '../../../../shared/api/cases';
 import type { CaseParams } from '../../../../shared/case';
-import type { RunRecord } from '../../../../shared/engine/run-record';
+import { decodeRunResult } from '../../../../shared/engine/result-codec';
+import type { RunRecord, RunResult } from '../../../../shared/engine/run-record';
 import { replyOf } from '../../core/api-reply';
 import {
   CaseDetail,
@@ -59,6 +60,17 @@ export interface RecheckSubmission {
 export const WHOLE_LIST = 500;
 
 const enc = encodeURIComponent;
+
+/** A refusal to a text request carries the API's error JSON as text: parsed, so describeError can read it. */
+export function withJsonError(error: unknown): unknown {
+  if (!(error instanceof HttpErrorResponse) || typeof error.error !== 'string') return error;
+  try {
+    const body: unknown = JSON.parse(error.error);
+    return new HttpErrorResponse({ error: body, headers: error.headers, status: error.status, statusText: error.statusText, url: error.url ?? undefined });
+  } catch {
+    return error;
+  }
+}
 
 export function caseQueryParams(query: CaseQuery): HttpParams {
   let params = new HttpParams()
@@ -122,6 +134,13 @@ export class CaseApi {
     return this.http
       .post<unknown>(`/api/cases/${enc(caseId)}/revisions/${revision}/runs`, run)
       .pipe(replyOf(runSchema, 'the stored run'));
+  }
+
+  /** A stored run's full result as the server stored it (the browser inflates the gzip body; result-codec text). */
+  runResult(caseId: string, revision: number, runId: string): Observable<RunResult> {
+    return this.http
+      .get(`/api/cases/${enc(caseId)}/revisions/${revision}/runs/${enc(runId)}/result`, { responseType: 'text' })
+      .pipe(map(decodeRunResult), catchError((error: unknown) => throwError(() => withJsonError(error))));
   }
 
   /** Oldest first. */

@@ -1,6 +1,6 @@
 import type { StabilityChart } from '../../../../../shared/engine/chart';
 import { DEFAULT_UNITS } from '../../../core/units/display-units';
-import { stabilityChartPlot } from './map-tab';
+import { stabilityChartPlot } from './stability-chart-plot';
 import { MULTIPLIER_CLIP, STABILITY_COLORS, stabilityColorscale, stabilityLevel } from './stability-scale';
 
 /** The colour the scale gives a drawn level (Plotly interpolates between stops; here we read the nearest stop). */

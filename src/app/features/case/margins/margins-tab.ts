@@ -6,6 +6,7 @@ import type { Complex } from '../../../../../shared/engine/monodromy';
 import { Plot, type PlotCsv, type PlotSpec } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
 import { RunStrip } from '../run-strip';
+import { StoredMark } from '../stored-mark';
 import { formatIn, formatNumber, formatPercent } from '../../../core/units/format-number';
 import { toDisplay, unitLabelOf, type Dimension } from '../../../core/units/display-units';
 import { MarginGauge, bandPosition } from './margin-gauge';
@@ -25,7 +26,7 @@ function complexText(z: Complex): string {
 /** The Margins tab: averaged (Kapitza) picture at once, Floquet multipliers and drive limits from a worker. */
 @Component({
   selector: 'qp-margins-tab',
-  imports: [ScrollRegion, Plot, MarginGauge, RunStrip],
+  imports: [ScrollRegion, Plot, MarginGauge, RunStrip, StoredMark],
   templateUrl: './margins-tab.html',
   styleUrl: '../tab.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

@@ -1,6 +1,63 @@
-import type { SweepPoint, SweepThreshold, ThresholdProbe } from '../../../../../shared/engine/sweep';
+import { setField, sweepableFieldsFor } from '../../../../../shared/case/case-fields';
+import type { CaseParams } from '../../../../../shared/case/case-schema';
+import { averagedAnalysis, averagedLowerAmplitude, averagedLowerFrequency } from '../../../../../shared/engine/averaged';
+import type { SweepPoint, SweepResult, SweepThreshold, ThresholdProbe } from '../../../../../shared/engine/sweep';
+import { dimensionOfSiUnit, toDisplay, unitLabelOf, type Dimension, type DisplayUnits } from '../../../core/units/display-units';
 import type { PlotCsv, PlotSpec } from '../../../ui/plot/plot';
 import { OUTCOME_COLOURS, OUTCOME_WORDS, outcomeWords } from '../../../../../shared/case/display';
+
+/**
+ * Where averaged theory puts the upright's lower limit along a field: the closed forms for drive amplitude and
+ * frequency, otherwise the first change of the averaged verdict on a fine scan of the range. Vertical drive only.
+ */
+export function averagedThreshold(params: CaseParams, field: string, from: number, to: number): number | null {
+  if (Math.abs(Math.sin(params.drive.direction)) > 1e-9) return null;
+  if (field === 'drive.amplitude') return averagedLowerAmplitude(params, params.drive.frequency);
+  if (field === 'drive.frequency') return averagedLowerFrequency(params, params.drive.amplitude);
+  const n = 240;
+  let previous: boolean | null = null;
+  let previousValue = from;
+  for (let i = 0; i <= n; i++) {
+    const value = from + ((to - from) * i) / n;
+    let holds: boolean | null;
+    try {
+      holds = averagedAnalysis(setField(params, field, value)).uprightStable;
+    } catch {
+      holds = null;
+    }
+    if (holds !== null && previous !== null && holds !== previous) return (previousValue + value) / 2;
+    if (holds !== null) {
+      previous = holds;
+      previousValue = value;
+    }
+  }
+  return null;
+}
+
+/** The swept field of a sweep result as shown: label, dimension and unit, and the averaged-theory limit (SI). */
+export interface SweepAxis {
+  readonly label: string;
+  readonly dimension: Dimension;
+  readonly unit: string;
+  readonly averaged: number | null;
+}
+
+/** The swept field of a result, taken from the result and the case it was computed for (not the form). */
+export function sweepAxis(value: SweepResult, params: CaseParams, units: DisplayUnits): SweepAxis {
+  const spec = value.spec;
+  const field = sweepableFieldsFor(params).find((f) => f.path === spec.field);
+  const dimension = dimensionOfSiUnit(field?.unit ?? '');
+  const unit = dimension === 'plain' ? (field?.unit ?? '') : unitLabelOf(dimension, units);
+  return { label: field?.label ?? spec.field, dimension, unit, averaged: averagedThreshold(params, spec.field, spec.from, spec.to) };
+}
+
+/** The plot of a finished sweep (the Sweeps tab and the case-link page). */
+export function sweepResultPlot(value: SweepResult, axis: SweepAxis, units: DisplayUnits): SweepPlot {
+  return sweepPlot(value.points, {
+    label: axis.label, unit: axis.unit, toX: (v) => toDisplay(v, axis.dimension, units), logX: value.spec.scale === 'log',
+    thresholds: value.thresholds, averaged: axis.averaged,
+  });
+}
 
 /** What the sweep plot needs besides the points: the x axis in display units and the lines to mark. */
 export interface SweepPlotOptions {

@@ -1,53 +1,24 @@
-import { ChangeDetectionStrategy, Component, computed, effect, inject, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, signal, untracked } from '@angular/core';
 import { FormsModule } from '@angular/forms';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatInputModule } from '@angular/material/input';
 import { MatSelectModule } from '@angular/material/select';
 
-import { getField, setField, sweepableFieldsFor, type SweepableField } from '../../../../../shared/case/case-fields';
-import type { CaseParams } from '../../../../../shared/case/case-schema';
-import { averagedAnalysis, averagedLowerAmplitude, averagedLowerFrequency } from '../../../../../shared/engine/averaged';
+import { getField, sweepableFieldsFor, type SweepableField } from '../../../../../shared/case/case-fields';
 import { MAX_SWEEP_STEPS } from '../../../../../shared/engine/run-kinds';
 import type { SweepSpec } from '../../../../../shared/engine/sweep';
 import { Plot } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
 import { rangeProblem } from '../range-check';
 import { RunStrip } from '../run-strip';
+import { StoredMark } from '../stored-mark';
 import { OUTCOME_WORDS, outcomeWords } from '../../../../../shared/case/display';
 import { formatNumber } from '../../../core/units/format-number';
 import { dimensionOfSiUnit, fromDisplay, toDisplay, unitLabelOf, type Dimension } from '../../../core/units/display-units';
-import { probesOnlySeenBisecting, sweepPlot } from './sweep-plot';
+import { probesOnlySeenBisecting, sweepAxis, sweepPlot, sweepResultPlot } from './sweep-plot';
 import { SweepTable } from './sweep-table';
 import { ScrollRegion } from '../../../ui/scroll-region/scroll-region';
 
-
-/**
- * Where averaged theory puts the upright's lower limit along a field: the closed forms for drive amplitude and
- * frequency, otherwise the first change of the averaged verdict on a fine scan of the range. Vertical drive only.
- */
-export function averagedThreshold(params: CaseParams, field: string, from: number, to: number): number | null {
-  if (Math.abs(Math.sin(params.drive.direction)) > 1e-9) return null;
-  if (field === 'drive.amplitude') return averagedLowerAmplitude(params, params.drive.frequency);
-  if (field === 'drive.frequency') return averagedLowerFrequency(params, params.drive.amplitude);
-  const n = 240;
-  let previous: boolean | null = null;
-  let previousValue = from;
-  for (let i = 0; i <= n; i++) {
-    const value = from + ((to - from) * i) / n;
-    let holds: boolean | null;
-    try {
-      holds = averagedAnalysis(setField(params, field, value)).uprightStable;
-    } catch {
-      holds = null;
-    }
-    if (holds !== null && previous !== null && holds !== previous) return (previousValue + value) / 2;
-    if (holds !== null) {
-      previous = holds;
-      previousValue = value;
-    }
-  }
-  return null;
-}
 
 /** The Sweeps tab: one case field varied over a range, every point a full motion run across the worker pool. */
 @Component({
@@ -60,6 +31,7 @@ export function averagedThreshold(params: CaseParams, field: string, from: numbe
     MatSelectModule,
     Plot,
     RunStrip,
+    StoredMark,
     SweepTable,
   ],
   templateUrl: './sweeps-tab.html',
@@ -115,14 +87,7 @@ export class SweepsTab {
   /** The sweep's field description, taken from the result so it stays right when the form changes later. */
   protected readonly shown = computed(() => {
     const r = this.result();
-    if (!r) return null;
-    const spec = r.value.spec;
-    const field = sweepableFieldsFor(r.params).find((f) => f.path === spec.field);
-    const dimension = dimensionOfSiUnit(field?.unit ?? '');
-    const units = this.units();
-    const unit = dimension === 'plain' ? (field?.unit ?? '') : unitLabelOf(dimension, units);
-    const averaged = averagedThreshold(r.params, spec.field, spec.from, spec.to);
-    return { label: field?.label ?? spec.field, dimension, unit, averaged, params: r.params };
+    return r ? { ...sweepAxis(r.value, r.params, this.units()), params: r.params } : null;
   });
 
   protected readonly thresholds = computed(() => {
@@ -149,12 +114,7 @@ export class SweepsTab {
   protected readonly plot = computed(() => {
     const r = this.result();
     const s = this.shown();
-    if (!r || !s) return null;
-    const units = this.units();
-    return sweepPlot(r.value.points, {
-      label: s.label, unit: s.unit, toX: (v) => toDisplay(v, s.dimension, units), logX: r.value.spec.scale === 'log',
-      thresholds: r.value.thresholds, averaged: s.averaged,
-    });
+    return r && s ? sweepResultPlot(r.value, s, this.units()) : null;
   });
 
   /** The points of the running sweep finished so far, drawn while the rest are computed. */
@@ -174,17 +134,20 @@ export class SweepsTab {
   private rangeFor: string | null = null;
 
   constructor() {
-    // Coming back to the tab shows the settings of the sweep on screen.
-    const shown = this.result()?.value.spec;
-    if (shown) {
-      const dimension = dimensionOfSiUnit(sweepableFieldsFor(this.workspace.draft()).find((f) => f.path === shown.field)?.unit ?? '');
-      this.fieldPath.set(shown.field);
-      this.count.set(shown.steps);
-      this.scale.set(shown.scale ?? 'linear');
-      this.from.set(toDisplay(shown.from, dimension, this.units()));
-      this.to.set(toDisplay(shown.to, dimension, this.units()));
-      this.rangeFor = shown.field;
-    }
+    // The settings show the sweep on screen: on coming back to the tab, and when a stored sweep arrives.
+    effect(() => {
+      const shown = this.result()?.value.spec;
+      if (!shown) return;
+      untracked(() => {
+        const dimension = dimensionOfSiUnit(sweepableFieldsFor(this.workspace.draft()).find((f) => f.path === shown.field)?.unit ?? '');
+        this.rangeFor = shown.field;
+        this.fieldPath.set(shown.field);
+        this.count.set(shown.steps);
+        this.scale.set(shown.scale ?? 'linear');
+        this.from.set(toDisplay(shown.from, dimension, this.units()));
+        this.to.set(toDisplay(shown.to, dimension, this.units()));
+      });
+    });
     // A new field (or a first visit) gets a sensible default range around the case's value.
     effect(() => {
       const path = this.field().path;

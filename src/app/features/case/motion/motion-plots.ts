@@ -1,0 +1,78 @@
+import type { MotionResult } from '../../../../../shared/engine/motion';
+import { toDisplay, unitLabelOf, type DisplayUnits } from '../../../core/units/display-units';
+import type { PlotCsv, PlotSpec } from '../../../ui/plot/plot';
+
+/** A plot's traces, layout and CSV (the inputs of `qp-plot`). */
+export interface MotionPlot {
+  readonly data: PlotSpec[];
+  readonly layout: PlotSpec;
+  readonly csv: PlotCsv;
+}
+
+function scaled(values: Float64Array, factor: number): number[] {
+  return Array.from(values, (v) => v * factor);
+}
+
+function angleUnits(units: DisplayUnits): { factor: number; unit: string; rateUnit: string } {
+  return { factor: toDisplay(1, 'angle', units), unit: unitLabelOf('angle', units), rateUnit: unitLabelOf('rate', units) };
+}
+
+/** Angle against time with the slow motion (period mean) overlaid; the Motion tab and the case-link page. */
+export function angleTimePlot(r: MotionResult, units: DisplayUnits): MotionPlot {
+  const { factor, unit, rateUnit } = angleUnits(units);
+  const data: PlotSpec[] = [
+    { type: 'scatter', mode: 'lines', name: 'angle θ', x: r.series.t, y: scaled(r.series.theta, factor), line: { width: 1, color: '#7a8fa6' } },
+    { type: 'scatter', mode: 'lines', name: 'slow motion (period mean)', x: r.slow.t, y: scaled(r.slow.theta, factor), line: { width: 2.5, color: '#0b6e69' } },
+  ];
+  const layout: PlotSpec = {
+    xaxis: { title: { text: 'time t (s)' } },
+    yaxis: { title: { text: `angle from upright θ (${unit})` } },
+  };
+  const csv: PlotCsv = {
+    columns: [{ header: 't', unit: 's' }, { header: 'theta', unit }, { header: 'rate', unit: rateUnit }, { header: 'pivot position', unit: 'm' }],
+    rows: Array.from(r.series.t, (t, i) => [t, r.series.theta[i] * factor, r.series.rate[i] * factor, r.series.pivotPosition[i]]),
+  };
+  return { data, layout, csv };
+}
+
+/** Rate against angle, full and slow motion. */
+export function phasePortraitPlot(r: MotionResult, units: DisplayUnits): MotionPlot {
+  const { factor, unit, rateUnit } = angleUnits(units);
+  const data: PlotSpec[] = [
+    { type: 'scatter', mode: 'lines', name: 'full motion', x: scaled(r.series.theta, factor), y: scaled(r.series.rate, factor), line: { width: 1, color: '#7a8fa6' } },
+    { type: 'scatter', mode: 'lines', name: 'slow motion', x: scaled(r.slow.theta, factor), y: scaled(r.slow.rate, factor), line: { width: 2, color: '#0b6e69' } },
+  ];
+  const layout: PlotSpec = {
+    xaxis: { title: { text: `angle θ (${unit})` } },
+    yaxis: { title: { text: `rate θ̇ (${rateUnit})` } },
+  };
+  const csv: PlotCsv = {
+    columns: [{ header: 't', unit: 's' }, { header: 'theta', unit }, { header: 'rate', unit: rateUnit }],
+    rows: Array.from(r.series.t, (t, i) => [t, r.series.theta[i] * factor, r.series.rate[i] * factor]),
+  };
+  return { data, layout, csv };
+}
+
+/** The stroboscopic section: angle and rate once per drive period, coloured by time. */
+export function strobePlot(r: MotionResult, units: DisplayUnits): MotionPlot {
+  const { factor, unit, rateUnit } = angleUnits(units);
+  const data: PlotSpec[] = [
+    {
+      type: 'scatter',
+      mode: 'markers',
+      name: 'once per drive period',
+      x: scaled(r.strobe.theta, factor),
+      y: scaled(r.strobe.rate, factor),
+      marker: { size: 5, color: Array.from(r.strobe.t), colorscale: 'Viridis', colorbar: { title: { text: 't (s)' }, thickness: 10 } },
+    },
+  ];
+  const layout: PlotSpec = {
+    xaxis: { title: { text: `angle θ at the strobe phase (${unit})` } },
+    yaxis: { title: { text: `rate θ̇ (${rateUnit})` } },
+  };
+  const csv: PlotCsv = {
+    columns: [{ header: 't', unit: 's' }, { header: 'theta', unit }, { header: 'rate', unit: rateUnit }],
+    rows: Array.from(r.strobe.t, (t, i) => [t, r.strobe.theta[i] * factor, r.strobe.rate[i] * factor]),
+  };
+  return { data, layout, csv };
+}
