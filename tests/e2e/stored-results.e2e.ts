@@ -59,10 +59,10 @@ async function countWorkerUse(page: Page): Promise<void> {
     const counts = { made: 0, posted: 0 };
     (window as unknown as { __qpWorkers: typeof counts }).__qpWorkers = counts;
     const post = Worker.prototype.postMessage;
-    Worker.prototype.postMessage = function (this: Worker, ...args: Parameters<Worker['postMessage']>) {
+    Worker.prototype.postMessage = function (this: Worker, ...args: unknown[]) {
       counts.posted++;
-      return post.apply(this, args as [unknown, StructuredSerializeOptions?]);
-    };
+      return (post as (...a: unknown[]) => void).apply(this, args);
+    } as Worker['postMessage'];
     window.Worker = new Proxy(window.Worker, {
       construct(target, args: ConstructorParameters<typeof Worker>) {
         counts.made++;
