@@ -177,7 +177,7 @@ describe('stored results', () => {
 
     expect(await workerUse(page)).toEqual({ made: 0, posted: 0 });
 
-    // An edit makes the stored view stale like any result; only Run computes, and its result replaces the stored one.
+    // An edit makes the stored view stale like any result; only Run computes, and the fresh result takes its place.
     await page.getByRole('tab', { name: 'Rig', exact: true }).click();
     const amplitude = page.locator('input[data-field="drive.amplitude"]');
     await amplitude.fill('9');
@@ -187,7 +187,9 @@ describe('stored results', () => {
     expect(await page.getByTestId('stored-mark').count()).toBe(1);
     expect((await workerUse(page)).posted).toBe(0);
     await page.getByTestId('run-motion').click();
-    await expect.poll(() => page.getByTestId('stored-mark').count(), { timeout: 60_000 }).toBe(0);
+    await page.getByTestId('outcome').waitFor({ state: 'detached' });
+    await page.getByTestId('outcome').waitFor({ timeout: 60_000 });
+    expect(await page.getByTestId('stored-mark').count()).toBe(0);
     expect(await page.getByText('These results belong to earlier inputs').count()).toBe(0);
     expect((await workerUse(page)).posted).toBeGreaterThan(0);
   });

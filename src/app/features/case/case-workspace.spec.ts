@@ -219,6 +219,20 @@ describe('CaseWorkspace', () => {
       expect(workspace.sweep()?.stored).toBeDefined();
     });
 
+    it('drops a stale stored view when Run asks for the inputs on screen, and keeps the other tabs\' views', async () => {
+      const { caseId } = await storedRevision();
+      await firstValueFrom(workspace.open(caseId, 1));
+      await vi.waitFor(() => expect(workspace.sweep()?.stored).toBeDefined());
+      const amplitude = workspace.form.group.controls.drive.controls.amplitude;
+      amplitude.setValue(Number(amplitude.value) * 1.1);
+      workspace.runMotion();
+      expect(workspace.motion()).toBeNull();
+      expect(workspace.sweep()?.stored).toBeDefined();
+      await vi.waitFor(() => expect(workspace.motion()).not.toBeNull(), { timeout: 20_000 });
+      expect(workspace.motion()?.stored).toBeUndefined();
+      expect(workspace.isStale(workspace.motion())).toBe(false);
+    });
+
     it('shows none when the parameters read here have another digest than the one the runs were stored for', async () => {
       const { caseId } = await storedRevision();
       const repository = TestBed.inject(FakeCaseRepository);

@@ -1,4 +1,4 @@
-import { DestroyRef, Injectable, computed, inject, signal } from '@angular/core';
+import { DestroyRef, Injectable, computed, inject, signal, type WritableSignal } from '@angular/core';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { EMPTY, Observable, Subscription, catchError, finalize, forkJoin, map, merge, of, switchMap, tap, throwError } from 'rxjs';
 
@@ -326,6 +326,7 @@ export class CaseWorkspace {
     if (!this.canRun()) return;
     const params = this.draftState();
     const settings: RunSettings = { kind: 'motion' };
+    this.dropStale(this.motionState);
     this.motionJob.start(this.pool.motion(params), (value) => {
       this.motionState.set(this.computed(value, params, settings));
       this.record(params, settings, { kind: 'motion', value });
@@ -336,6 +337,7 @@ export class CaseWorkspace {
     if (!this.canRun()) return;
     const params = this.draftState();
     const settings: RunSettings = { kind: 'margins', relTolerance };
+    this.dropStale(this.marginsState);
     this.marginsJob.start(this.pool.margins(params, relTolerance), (value) => {
       this.marginsState.set(this.computed(value, params, settings));
       this.record(params, settings, { kind: 'margins', value });
@@ -346,6 +348,7 @@ export class CaseWorkspace {
     if (!this.canRun()) return;
     const params = this.draftState();
     const settings: RunSettings = { kind: 'sweep', spec };
+    this.dropStale(this.sweepState);
     this.sweepPartialState.set([]);
     this.sweepStepsState.set(spec.steps);
     this.sweepJob.start(
@@ -362,6 +365,7 @@ export class CaseWorkspace {
     if (!this.canRun()) return;
     const params = this.draftState();
     const settings: RunSettings = { kind: 'chart', grid };
+    this.dropStale(this.chartState);
     this.chartJob.start(this.pool.chart(params, grid), (value) => {
       this.chartState.set(this.computed(value, params, settings));
       this.record(params, settings, { kind: 'chart', value });
@@ -372,10 +376,19 @@ export class CaseWorkspace {
     if (!this.canRun()) return;
     const params = this.draftState();
     const settings: RunSettings = { kind: 'basin', grid };
+    this.dropStale(this.basinState);
     this.basinJob.start(this.pool.basin(params, grid), (value) => {
       this.basinState.set(this.computed(value, params, settings));
       this.record(params, settings, { kind: 'basin', value });
     });
+  }
+
+  /**
+   * Run asks for results of the inputs on screen: a shown result of other inputs (stored or computed) goes at once,
+   * so it is never read as the answer while the new one is computed. A current result stays until replaced.
+   */
+  private dropStale<T>(state: WritableSignal<Computed<T> | null>): void {
+    if (this.isStale(state())) state.set(null);
   }
 
   /** True when a result was computed for other inputs than the current draft. */
