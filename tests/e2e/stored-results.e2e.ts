@@ -162,7 +162,7 @@ describe('stored results', () => {
     if (timing.revisionAt === null || timing.shownAt === null) throw new Error('no timing of the revision or the stored result');
     expect(timing.shownAt - timing.revisionAt).toBeLessThan(1000);
     expect(await mark.textContent()).toMatch(/Stored r1 · Motion, computed \d{1,2} \w{3} \d{4} \d\d:\d\d by Ada Analyst/);
-    expect((await page.getByTestId('stored-verification').textContent())?.trim()).toBe('verified by the server');
+    expect((await page.getByTestId('stored-verification').textContent())?.trim()).toBe('Verified by the server');
     expect(await page.getByTestId('outcome').textContent()).toBe('holds upright');
     await expectDrawn(page, 'Angle against time');
     await expectDrawn(page, 'Phase portrait');
