@@ -146,5 +146,10 @@ describe('VisitorPage', () => {
     expect(text).toMatch(/\d mm/);
     expect(text).toMatch(/\d Hz/);
     expect(text).not.toMatch(/start\.rate|damping\.viscousRatio|schemaVersion|drive\.amplitude/);
+    // Settings read as the tabs show them: no file-format bookkeeping, degrees written against the number.
+    const settings = Array.from(host.querySelectorAll('.params-table tbody tr'), (tr) => tr.textContent?.trim() ?? '');
+    expect(settings.some((row) => row.startsWith('Case format version'))).toBe(false);
+    expect(settings.find((row) => row.startsWith('Drive direction'))).toMatch(/\d°$/);
+    expect(host.querySelector('.params-table [title]')).toBeNull();
   }, 60_000);
 });

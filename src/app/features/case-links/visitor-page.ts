@@ -13,7 +13,7 @@ import type { MotionResult } from '../../../../shared/engine/motion';
 import type { SweepResult } from '../../../../shared/engine/sweep';
 import { describeError } from '../../core/error-message';
 import { DEFAULT_UNITS } from '../../core/units/display-units';
-import { formatIn } from '../../core/units/format-number';
+import { formatIn, withUnit } from '../../core/units/format-number';
 import { stabilityChartPlot } from '../case/map/stability-chart-plot';
 import { MarginGauge, bandPosition } from '../case/margins/margin-gauge';
 import { angleTimePlot, phasePortraitPlot } from '../case/motion/motion-plots';
@@ -66,7 +66,12 @@ export class VisitorPage {
     return error ? linkProblem(error.cause ?? error) : null;
   });
   protected readonly reportUrl = computed(() => linkReportUrl(this.token()));
-  protected readonly params = computed(() => flattenParams(this.shared()?.revision.rawParams ?? null));
+  /** The rig's settings by name with their units; the case-file format version is bookkeeping, not a setting. */
+  protected readonly params = computed(() =>
+    flattenParams(this.shared()?.revision.rawParams ?? null)
+      .filter((p) => p.path !== 'schemaVersion')
+      .map((p) => ({ ...p, shown: withUnit(p.value, p.unit) })),
+  );
   protected readonly units = DEFAULT_UNITS;
 
   /**

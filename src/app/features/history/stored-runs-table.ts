@@ -71,7 +71,8 @@ export function headlineNumbers(summary: RunView['summary']): string {
     .scroll { overflow-x: auto; }
     .runs-table { width: 100%; min-width: 640px; background: transparent; }
     .kind { font-weight: 500; }
-    .summary { font-variant-numeric: tabular-nums; }
+    .summary { font-variant-numeric: tabular-nums; min-width: 16em; }
+    .check { min-width: 9em; }
     .when { white-space: nowrap; }
     .check.ok { color: var(--mat-sys-primary); }
     .check.bad { color: var(--mat-sys-error); font-weight: 500; }
