@@ -10,7 +10,7 @@ import { templateCase } from '../../../../shared/case/templates';
 import { computeRun, makeRunRecord, type RunSettings } from '../../../../shared/engine/run-record';
 import { ENGINE_POOL } from '../../core/compute/engine-pool';
 import { CASE_REPOSITORY, type StoredRun } from './case-repository';
-import { CaseWorkspace, messageOf, storedRunsToShow } from './case-workspace';
+import { CaseWorkspace, STORED_PENDING_RECHECK_MS, messageOf, storedRunsToShow } from './case-workspace';
 import { FakeCaseRepository } from './fake-case-repository';
 
 /** A worker that runs the real engine request handler on this thread, one macrotask later. */
@@ -245,14 +245,31 @@ describe('CaseWorkspace', () => {
       expect(workspace.storedNotes().motion).toMatch(/Motion stored with r1: not shown/);
     });
 
-    it('says which stored runs the server is still rerunning', async () => {
-      const repository = TestBed.inject(FakeCaseRepository);
-      const created = await firstValueFrom(repository.create({ labId: null, title: 'Pending rig', tags: [], params, note: '' }));
-      const settings: RunSettings = { kind: 'motion' };
-      await firstValueFrom(repository.saveRun(created.caseId, 1, makeRunRecord(params, settings, computeRun(params, settings))));
-      await firstValueFrom(workspace.open(created.caseId, 1));
-      expect(workspace.motion()).toBeNull();
-      expect(workspace.storedNotes().motion).toMatch(/Motion stored with r1: the server is still rerunning it/);
+    it('says which stored runs the server is still checking, and shows each once the server has settled it', async () => {
+      vi.useFakeTimers();
+      try {
+        const repository = TestBed.inject(FakeCaseRepository);
+        const created = await firstValueFrom(repository.create({ labId: null, title: 'Pending rig', tags: [], params, note: '' }));
+        const settings: RunSettings = { kind: 'motion' };
+        const result = computeRun(params, settings);
+        const run = await firstValueFrom(repository.saveRun(created.caseId, 1, makeRunRecord(params, settings, result)));
+        await firstValueFrom(workspace.open(created.caseId, 1));
+        expect(workspace.motion()).toBeNull();
+        expect(workspace.storedNotes().motion).toMatch(/Motion stored with r1: the server is still checking it/);
+
+        await vi.advanceTimersByTimeAsync(STORED_PENDING_RECHECK_MS);
+        expect(workspace.motion()).toBeNull();
+        const reads = vi.spyOn(repository, 'open');
+        repository.settleRun(created.caseId, 1, run.id, result);
+        await vi.advanceTimersByTimeAsync(STORED_PENDING_RECHECK_MS);
+        expect(workspace.motion()?.stored?.verification.state).toBe('verified');
+        expect(workspace.storedNotes()).toEqual({});
+        await vi.advanceTimersByTimeAsync(5 * STORED_PENDING_RECHECK_MS);
+        expect(reads).toHaveBeenCalledTimes(1);
+        expect(workersMade).toBe(0);
+      } finally {
+        vi.useRealTimers();
+      }
     });
   });
 });

@@ -1,6 +1,9 @@
 import { DestroyRef, Injectable, computed, inject, signal, type WritableSignal } from '@angular/core';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
-import { EMPTY, Observable, Subscription, catchError, finalize, forkJoin, map, merge, of, switchMap, tap, throwError } from 'rxjs';
+import {
+  EMPTY, Observable, Subscription, catchError, exhaustMap, finalize, forkJoin, map, merge, mergeMap, of, switchMap, take, takeWhile, tap,
+  throwError, timer,
+} from 'rxjs';
 
 import type { VerificationView } from '../../../../shared/api/cases';
 import { caseDigest } from '../../../../shared/case/canonical';
@@ -44,6 +47,10 @@ export interface Computed<T> {
   /** Present when the result is a stored run of the opened revision (no computation on this page). */
   readonly stored?: StoredOrigin;
 }
+
+/** How often an opened revision is read again while the server still reruns some of its stored runs, and how many times. */
+export const STORED_PENDING_RECHECK_MS = 3000;
+export const STORED_PENDING_RECHECKS = 200;
 
 /** Run kinds a case tab shows (the outcome map has no tab of its own). */
 export const SHOWN_STORED_KINDS: readonly RunKind[] = ['motion', 'margins', 'sweep', 'chart', 'basin'];
@@ -225,10 +232,10 @@ export class CaseWorkspace {
       this.storedNotesState.set(notes);
       return;
     }
-    for (const kind of pending) notes[kind] = `${where(kind)}: the server is still rerunning it; reopen the revision in a moment to see it.`;
+    for (const kind of pending) notes[kind] = `${where(kind)}: the server is still checking it; it shows here once the check is done.`;
     for (const run of show) notes[run.kind] = `${where(run.kind)}: loading…`;
     this.storedNotesState.set(notes);
-    const loads = show.map((run) =>
+    const load = (run: StoredRun) =>
       this.repository.runResult(opened.caseId, opened.revision, run.id).pipe(
         tap((result) => {
           this.setNote(run.kind, null);
@@ -238,9 +245,24 @@ export class CaseWorkspace {
           this.setNote(run.kind, `${where(run.kind)}: could not be loaded. ${messageOf(error)}`);
           return EMPTY;
         }),
-      ),
-    );
-    this.storedLoad = merge(...loads).subscribe();
+      );
+    // Kinds whose runs the server is still rerunning: read the revision again until it has settled them.
+    const requested = new Set<string>();
+    const settledLater$ =
+      pending.length === 0
+        ? EMPTY
+        : timer(STORED_PENDING_RECHECK_MS, STORED_PENDING_RECHECK_MS).pipe(
+            take(STORED_PENDING_RECHECKS),
+            exhaustMap(() => this.repository.open(opened.caseId, opened.revision).pipe(catchError(() => EMPTY))),
+            map((again) => storedRunsToShow(again.runs)),
+            takeWhile((now) => now.pending.some((kind) => pending.includes(kind)), true),
+            mergeMap((now) => now.show.filter((run) => pending.includes(run.kind) && !requested.has(run.id))),
+            mergeMap((run) => {
+              requested.add(run.id);
+              return load(run);
+            }),
+          );
+    this.storedLoad = merge(...show.map(load), settledLater$).subscribe();
   }
 
   private setNote(kind: RunKind, note: string | null): void {
