@@ -175,7 +175,11 @@ describe('workbench', () => {
       }
       return out;
     });
-    expect(Math.max(...lags)).toBeLessThan(250);
+    // A main thread doing the sweep would lag by seconds; on 2 shared cores the OS alone can delay one timer by a
+    // few hundred ms, so the typical lag must be small and none may approach a blocked thread's.
+    const sorted = [...lags].sort((a, b) => a - b);
+    expect(sorted[Math.floor(sorted.length / 2)]).toBeLessThan(50);
+    expect(sorted.at(-1)).toBeLessThan(1000);
     await openTab(page, 'Rig');
     await openTab(page, 'Sweeps');
     await expect.poll(() => page.getByTestId('run-sweep-cancel').count()).toBe(1);
