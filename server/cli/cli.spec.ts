@@ -157,4 +157,25 @@ describe('cli', () => {
     expect(field.stderr).toContain('--field: this case has no field body.rodLength');
     expect(steps.stdout + field.stdout).toBe('');
   }, 60_000);
+
+  it('works on chains: the two-link demo holds with all four multipliers listed, motion CSV has every joint', () => {
+    const demo = demoRigCase('two-link-shaker');
+    if (!demo) throw new Error('two-link demo missing');
+    expect(json(cli('template', '--demo', 'three-link-beads').stdout)['body']).toEqual(demoRigCase('three-link-beads')?.body);
+    const path = writeCase('two-link.json', { ...demo, run: { ...demo.run, duration: 2, outputPoints: 200 } });
+    const margins = cli('margins', path, '--csv');
+    expect(margins.code).toBe(0);
+    const [header, upright] = margins.stdout.trim().split('\n');
+    expect(header).toContain('mu4_re,mu4_im,max_abs_mu');
+    const cells = upright.split(',');
+    expect(cells[0]).toBe('upright');
+    expect(Number(cells[cells.length - 2])).toBeLessThan(1);
+    const motion = cli('motion', path, '--csv');
+    expect(motion.code).toBe(0);
+    const lines = motion.stdout.trim().split('\n');
+    expect(lines[0]).toBe('t_s,theta1_rad,rate1_rad_s,theta2_rad,rate2_rad_s,pivot_m,energy_J,pivot_force_N');
+    // the demo starts link 2 bent 0.05 rad from link 1
+    const first = lines[1].split(',').map(Number);
+    expect(first[3] - first[1]).toBeCloseTo(0.05, 12);
+  }, 120_000);
 });

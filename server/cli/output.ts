@@ -30,18 +30,29 @@ export function toCsv(result: RunResult): string {
   switch (result.kind) {
     case 'motion': {
       const s = result.value.series;
+      const chain = result.value.chain;
       const body: unknown[][] = [];
+      if (chain) {
+        // every link's absolute angle and rate, link 1 on the pivot
+        const links = Array.from({ length: chain.links }, (_, k) => k);
+        for (let i = 0; i < s.t.length; i++) {
+          body.push([s.t[i], ...links.flatMap((k) => [chain.theta[k][i], chain.rate[k][i]]), s.pivotPosition[i], s.energy[i], s.pivotForce[i]]);
+        }
+        return rows(['t_s', ...links.flatMap((k) => [`theta${k + 1}_rad`, `rate${k + 1}_rad_s`]), 'pivot_m', 'energy_J', 'pivot_force_N'], body);
+      }
       for (let i = 0; i < s.t.length; i++) body.push([s.t[i], s.theta[i], s.rate[i], s.pivotPosition[i], s.energy[i], s.pivotForce[i]]);
       return rows(['t_s', 'theta_rad', 'rate_rad_s', 'pivot_m', 'energy_J', 'pivot_force_N'], body);
     }
     case 'margins': {
       const f = result.value;
+      // 2 multipliers for a single body, 2N for a chain of N links
+      const count = Math.max(2, ...f.periodicMotions.map((m) => m.multipliers.length));
+      const ks = Array.from({ length: count }, (_, k) => k);
       const body = f.periodicMotions.map((m) => [
-        m.kind, m.meanAngle, m.angle, m.rate, m.multipliers[0].re, m.multipliers[0].im, m.multipliers[1].re, m.multipliers[1].im,
-        m.maxMultiplier, m.stable,
+        m.kind, m.meanAngle, m.angle, m.rate, ...ks.flatMap((k) => [m.multipliers[k]?.re, m.multipliers[k]?.im]), m.maxMultiplier, m.stable,
       ]);
       return rows(
-        ['kind', 'mean_angle_rad', 'section_angle_rad', 'section_rate_rad_s', 'mu1_re', 'mu1_im', 'mu2_re', 'mu2_im', 'max_abs_mu', 'stable'],
+        ['kind', 'mean_angle_rad', 'section_angle_rad', 'section_rate_rad_s', ...ks.flatMap((k) => [`mu${k + 1}_re`, `mu${k + 1}_im`]), 'max_abs_mu', 'stable'],
         body,
       );
     }

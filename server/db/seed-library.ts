@@ -220,6 +220,7 @@ export async function seedLibrary(sequelize: Sequelize, labId: string): Promise<
       const latest = demo.revisions[demo.revisions.length - 1]?.params ?? first.params;
       const fit = fitFreeSwing(parsed.series, { model: 'viscous', gravity: latest.gravity, frictionSmoothing: latest.damping.frictionSmoothing });
       const applied = applyFit(latest, fit, traces.swingLabel);
+      if (!applied) throw new Error('the teaching demo with a trace must be a single body');
       await saveRevision(sequelize, author, access(demo.author), { baseRevision: number, params: applied.params, note: applied.note });
       number++;
       await storeVerifiedRun(sequelize, author, access(demo.author), number, applied.params, motion);

@@ -9,7 +9,7 @@
 import type { CaseParams } from '../../shared/case/case-schema';
 import { CAUTION_DEFERRAL, CAUTION_NOTES, CAUTION_TITLE } from '../../shared/case/caution';
 import {
-  OUTCOME_COLOURS, RECHECK_STATE_WORDS, SHOWN_UNITS, fieldDisplay, formatAngle, formatFrequency, formatLength, formatNumber, formatPercent,
+  OUTCOME_COLOURS, RECHECK_STATE_WORDS, SHOWN_UNITS, chainLinkWords, fieldDisplay, formatAngle, formatFrequency, formatLength, formatNumber, formatPercent,
   RUN_KIND_LABELS, formatShown, outcomeWords,
 } from '../../shared/case/display';
 import { averagedAnalysis } from '../../shared/engine/averaged';
@@ -143,10 +143,13 @@ function rigRows(p: CaseParams): Row[] {
       ['Bob radius', formatLength(b.bobRadius)],
       ['Pivot to bob centre', formatLength(b.bobDistance)],
     );
+  } else if (b.kind === 'chain') {
+    rows.push(['Body', `Chain of ${b.links.length} links, hinged end to end`]);
+    b.links.forEach((link, i) => rows.push([`Link ${i + 1}`, chainLinkWords(link, i).replace(/^Link \d+: /, '')]));
   } else {
     rows.push(['Body', 'Measured free swing'], ['Free swing frequency (hanging)', formatFrequency(b.swingFrequency)], ['Mass', `${formatNumber(b.mass)} kg`]);
   }
-  rows.push(['Equivalent length L', formatLength(bodyProperties(b, p.gravity).equivalentLength)]);
+  rows.push([b.kind === 'chain' ? 'Equivalent length L (joints locked)' : 'Equivalent length L', formatLength(bodyProperties(b, p.gravity).equivalentLength)]);
   const w = d.waveform;
   rows.push(['Waveform', w.kind === 'sine' ? 'Sine' : w.kind === 'crank-slider' ? 'Crank and connecting rod' : `Sum of ${w.terms.length} harmonics`]);
   rows.push(['Direction from vertical', formatAngle(d.direction)]);

@@ -3,8 +3,9 @@
  * gauge (as the Margins tab shows it), both as SVG strings in the app's colours.
  */
 import type { CaseParams } from '../../shared/case/case-schema';
-import { formatAngle, formatLength, formatPercent } from '../../shared/case/display';
+import { chainLinkLength, formatAngle, formatLength, formatPercent } from '../../shared/case/display';
 import { bodyProperties } from '../../shared/engine/body';
+import { chainStart } from '../../shared/engine/chain';
 import { escapeXml, svgDocument } from './svg-plot';
 
 const PRIMARY = '#0b6e69';
@@ -24,7 +25,11 @@ const r2 = (v: number) => Math.round(v * 100) / 100;
 export function rigSchematicSvg(params: CaseParams): string {
   const b = params.body;
   const d = params.drive;
-  const bodyLength = b.kind === 'point-mass' ? b.length : b.kind === 'rod-bob' ? Math.max(b.rodLength, b.bobDistance + b.bobRadius) : bodyProperties(b, params.gravity).equivalentLength;
+  const bodyLength =
+    b.kind === 'point-mass' ? b.length
+    : b.kind === 'rod-bob' ? Math.max(b.rodLength, b.bobDistance + b.bobRadius)
+    : b.kind === 'chain' ? b.links.reduce((sum, link) => sum + chainLinkLength(link), 0)
+    : bodyProperties(b, params.gravity).equivalentLength;
   const scale = BODY_PX / bodyLength;
   const ax = { x: Math.sin(params.start.angle), y: -Math.cos(params.start.angle) };
   const dv = { x: Math.sin(d.direction), y: -Math.cos(d.direction) };
@@ -60,6 +65,22 @@ export function rigSchematicSvg(params: CaseParams): string {
   if (b.kind === 'rod-bob') {
     parts.push(line(0, 0, ax.x * b.rodLength * scale, ax.y * b.rodLength * scale, `stroke="${PRIMARY}" stroke-width="6" stroke-linecap="round"`));
     if (b.bobMass > 0) parts.push(circle(ax.x * b.bobDistance * scale, ax.y * b.bobDistance * scale, Math.max(3, b.bobRadius * scale), `fill="${PRIMARY}"`));
+  } else if (b.kind === 'chain') {
+    // Each link from its inner hinge at its start angle (start.angle plus the bends), hinges drawn as rings.
+    const angles = chainStart(params).slice(0, b.links.length);
+    let hx = 0;
+    let hy = 0;
+    b.links.forEach((link, i) => {
+      const ex = Math.sin(angles[i]);
+      const ey = -Math.cos(angles[i]);
+      const len = chainLinkLength(link) * scale;
+      parts.push(line(hx, hy, hx + ex * len, hy + ey * len, `stroke="${PRIMARY}" stroke-width="${link.kind === 'rod-bob' ? 5 : 2}" stroke-linecap="round"`));
+      if (link.kind === 'point-mass') parts.push(circle(hx + ex * len, hy + ey * len, 6, `fill="${PRIMARY}"`));
+      else if (link.bobMass > 0) parts.push(circle(hx + ex * link.bobDistance * scale, hy + ey * link.bobDistance * scale, Math.max(3, link.bobRadius * scale), `fill="${PRIMARY}"`));
+      if (i > 0) parts.push(circle(hx, hy, 4, `fill="#ffffff" stroke="${INK}" stroke-width="1.5"`));
+      hx += ex * len;
+      hy += ey * len;
+    });
   } else if (b.kind === 'point-mass') {
     parts.push(line(0, 0, ax.x * BODY_PX, ax.y * BODY_PX, `stroke="${PRIMARY}" stroke-width="2"`));
     parts.push(circle(ax.x * BODY_PX, ax.y * BODY_PX, 8, `fill="${PRIMARY}"`));
@@ -69,7 +90,7 @@ export function rigSchematicSvg(params: CaseParams): string {
   }
   const [px, py] = at(-9, -5).split(' ');
   parts.push(`<rect x="${px}" y="${py}" width="18" height="10" rx="2" fill="${INK}"/>`);
-  const name = b.kind === 'measured-swing' ? 'L (equivalent)' : b.kind === 'rod-bob' ? 'rod' : 'L';
+  const name = b.kind === 'measured-swing' ? 'L (equivalent)' : b.kind === 'rod-bob' ? 'rod' : b.kind === 'chain' ? `${b.links.length} links, total` : 'L';
   parts.push(`<text x="5" y="240" fill="${INK}" ${FONT}>${escapeXml(`${name} = ${formatLength(bodyLength, 3)}`)}</text>`);
   parts.push(`<text x="5" y="14" fill="${INK}" ${FONT}>${escapeXml(`start ${formatAngle(params.start.angle, 3)} from upright`)}</text>`);
   parts.push(

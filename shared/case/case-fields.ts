@@ -9,6 +9,8 @@ export interface SweepableField {
   unit: string;
   /** Body kind the field exists for; absent when it exists for every case. */
   bodyKind?: CaseParams['body']['kind'];
+  /** True for fields a chain holds fixed (it is driven vertically and damped at its joints). */
+  notForChain?: true;
   /** Waveform kind the field exists for; absent when it exists for every waveform. */
   waveformKind?: CaseParams['drive']['waveform']['kind'];
 }
@@ -16,11 +18,11 @@ export interface SweepableField {
 export const SWEEPABLE_FIELDS: readonly SweepableField[] = [
   { path: 'drive.amplitude', label: 'Drive amplitude', unit: 'm' },
   { path: 'drive.frequency', label: 'Drive frequency', unit: 'Hz' },
-  { path: 'drive.direction', label: 'Drive direction from vertical', unit: 'rad' },
+  { path: 'drive.direction', label: 'Drive direction from vertical', unit: 'rad', notForChain: true },
   { path: 'drive.waveform.connectingRod', label: 'Connecting rod length', unit: 'm', waveformKind: 'crank-slider' },
-  { path: 'damping.viscousRatio', label: 'Damping ratio', unit: '1' },
-  { path: 'damping.quadratic', label: 'Quadratic (air) damping', unit: '1/rad' },
-  { path: 'damping.friction', label: 'Pivot friction', unit: 'rad/s^2' },
+  { path: 'damping.viscousRatio', label: 'Damping ratio', unit: '1', notForChain: true },
+  { path: 'damping.quadratic', label: 'Quadratic (air) damping', unit: '1/rad', notForChain: true },
+  { path: 'damping.friction', label: 'Pivot friction', unit: 'rad/s^2', notForChain: true },
   { path: 'body.length', label: 'Length', unit: 'm', bodyKind: 'point-mass' },
   { path: 'body.rodLength', label: 'Rod length', unit: 'm', bodyKind: 'rod-bob' },
   { path: 'body.bobDistance', label: 'Bob distance', unit: 'm', bodyKind: 'rod-bob' },
@@ -31,11 +33,12 @@ export const SWEEPABLE_FIELDS: readonly SweepableField[] = [
   { path: 'gravity', label: 'Gravity', unit: 'm/s^2' },
 ];
 
-/** Fields that exist in this case (its body and waveform kinds). */
+/** Fields that exist in this case (its body and waveform kinds) and that it may vary. */
 export function sweepableFieldsFor(params: CaseParams): SweepableField[] {
   return SWEEPABLE_FIELDS.filter(
     (f) =>
       (f.bodyKind === undefined || f.bodyKind === params.body.kind) &&
+      !(f.notForChain && params.body.kind === 'chain') &&
       (f.waveformKind === undefined || f.waveformKind === params.drive.waveform.kind),
   );
 }

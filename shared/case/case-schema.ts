@@ -54,7 +54,25 @@ const measuredSwingSchema = z.object({
   mass: positive(CASE_LIMITS.maxMass, 'kg'),
 });
 
-export const bodySchema = z.discriminatedUnion('kind', [pointMassSchema, rodBobSchema, measuredSwingSchema]);
+/** Per link of a chain: the joint above it and how it starts. */
+const jointFields = {
+  jointDamping: nonNegative(1e6, 'N m s/rad: viscous torque per unit relative rate at the joint on the pivot side of this link'),
+  startBend: finite().gte(-1000).lte(1000).optional().describe('rad: start angle relative to the previous link (the first link: to start.angle); 0 when absent'),
+  startBendRate: finite().gte(-1e5).lte(1e5).optional().describe('rad/s: start rate relative to the previous link (the first: to start.rate); 0 when absent'),
+};
+
+/** A chain link: a point mass at its outer hinge, or a uniform rod with an optional bob; hinge to hinge is `length` or `rodLength`. */
+export const chainLinkSchema = z.discriminatedUnion('kind', [pointMassSchema.extend(jointFields), rodBobSchema.extend(jointFields)]);
+
+/** Most and fewest links of a chain. */
+export const CHAIN_LINKS = { min: 2, max: 3 } as const;
+
+const chainSchema = z.object({
+  kind: z.literal('chain'),
+  links: z.array(chainLinkSchema).min(CHAIN_LINKS.min).max(CHAIN_LINKS.max).describe('links from the pivot up, hinged end to end'),
+});
+
+export const bodySchema = z.discriminatedUnion('kind', [pointMassSchema, rodBobSchema, measuredSwingSchema, chainSchema]);
 
 const harmonicTermSchema = z.object({
   order: z.number().int().gte(1).lte(CASE_LIMITS.maxHarmonicOrder).describe('multiple of the drive frequency'),
@@ -131,6 +149,28 @@ export const caseParamsSchema = z
         return;
       }
     }
+    if (body.kind === 'chain') {
+      let bad = false;
+      body.links.forEach((link, i) => {
+        if (link.kind !== 'rod-bob') return;
+        if (link.rodMass + link.bobMass <= 0) {
+          ctx.addIssue({ code: 'custom', path: ['body', 'links', i, 'bobMass'], message: `link ${i + 1}: rod and bob masses are both zero: the link has no mass` });
+          bad = true;
+        } else if (link.rodMass * link.rodLength / 2 + link.bobMass * link.bobDistance <= 0) {
+          ctx.addIssue({ code: 'custom', path: ['body', 'links', i, 'bobDistance'], message: `link ${i + 1}: centre of mass sits on its hinge` });
+          bad = true;
+        }
+      });
+      // The upright of a chain is analysed as an exact equilibrium, which needs a vertical drive line.
+      if (Math.abs(drive.direction) > 0) {
+        ctx.addIssue({ code: 'custom', path: ['drive', 'direction'], message: 'a chain is driven along the vertical only: set the drive direction to 0' });
+      }
+      const { viscousRatio, quadratic, friction } = c.damping;
+      if (viscousRatio !== 0 || quadratic !== 0 || friction !== 0) {
+        ctx.addIssue({ code: 'custom', path: ['damping', 'viscousRatio'], message: 'a chain is damped at each joint: set the case damping ratio, quadratic damping and friction to 0' });
+      }
+      if (bad) return;
+    }
     if (drive.waveform.kind === 'crank-slider' && drive.waveform.connectingRod <= drive.amplitude) {
       ctx.addIssue({
         code: 'custom',
@@ -205,6 +245,8 @@ export type CaseParams = z.infer<typeof caseParamsSchema>;
 /** Input shape before defaults are applied (gravity may be absent). */
 export type CaseParamsInput = z.input<typeof caseParamsSchema>;
 export type Body = CaseParams['body'];
+export type ChainBody = Extract<Body, { kind: 'chain' }>;
+export type ChainLink = ChainBody['links'][number];
 export type Drive = CaseParams['drive'];
 export type Waveform = Drive['waveform'];
 export type HarmonicTerm = Extract<Waveform, { kind: 'harmonics' }>['terms'][number];

@@ -4,6 +4,7 @@
  * label and unit of each sweepable field. Stored values stay SI.
  */
 import { SWEEPABLE_FIELDS } from './case-fields';
+import type { ChainLink } from './case-schema';
 
 /** A number for reading: `digits` significant digits, no trailing zeros, a dash when missing. */
 export function formatNumber(value: number | null | undefined, digits = 4): string {
@@ -105,3 +106,28 @@ export const RUN_KIND_LABELS: Readonly<Record<string, string>> = {
   map: 'Outcome map',
   basin: 'Basin map',
 };
+
+/** Joint damping as shown: "0.002 N·m·s/rad". */
+export function formatJointDamping(si: number): string {
+  return `${formatNumber(si)} N·m·s/rad`;
+}
+
+/**
+ * One chain link in words and shown units: "Link 1: rod 300 mm, 0.2 kg, bob 0.05 kg (radius 10 mm) at 280 mm;
+ * joint damping 0 N·m·s/rad".
+ */
+export function chainLinkWords(link: ChainLink, index: number): string {
+  const body =
+    link.kind === 'point-mass'
+      ? `point mass ${formatNumber(link.mass)} kg at ${formatLength(link.length)}`
+      : `rod ${formatLength(link.rodLength)}, ${formatNumber(link.rodMass)} kg` +
+        (link.bobMass > 0 ? `, bob ${formatNumber(link.bobMass)} kg (radius ${formatLength(link.bobRadius)}) at ${formatLength(link.bobDistance)}` : '');
+  const bend = link.startBend ? `; starts bent ${formatAngle(link.startBend)}` : '';
+  const bendRate = link.startBendRate ? ` turning ${formatShown(link.startBendRate, SHOWN_UNITS.rate)}` : '';
+  return `Link ${index + 1}: ${body}; joint damping ${formatJointDamping(link.jointDamping)}${bend}${bendRate}`;
+}
+
+/** m: hinge-to-hinge length of a chain link. */
+export function chainLinkLength(link: ChainLink): number {
+  return link.kind === 'point-mass' ? link.length : link.rodLength;
+}

@@ -17,7 +17,7 @@ export interface DemoRig {
   id: string;
   title: string;
   description: string;
-  /** Outcome the demo is built to show. */
+  /** Outcome the demo is built to show (for a chain: every link's). */
   expectedOutcome: 'holds-upright' | 'settles-tilted';
   params: CaseParams;
 }
@@ -71,6 +71,51 @@ export const DEMO_RIGS: readonly DemoRig[] = [
       start: { angle: Math.PI - 0.1, rate: 0 },
       gravity: STANDARD_GRAVITY,
       run: { duration: 12, rtol: 1e-8, atol: 1e-10, outputPoints: 4000, strobePhase: 0, transientFraction: 0.6 },
+    },
+  },
+  {
+    id: 'two-link-shaker',
+    title: 'Two hinged rods on a shaker',
+    description:
+      'A 20 cm rod with a 15 cm rod hinged on its tip, 10 mm at 50 Hz vertical; both links stay upright, inside an amplitude window of about 6.8 to 16.7 mm.',
+    expectedOutcome: 'holds-upright',
+    params: {
+      schemaVersion: CASE_SCHEMA_VERSION,
+      body: {
+        kind: 'chain',
+        links: [
+          { kind: 'rod-bob', rodLength: 0.2, rodMass: 0.03, bobMass: 0, bobRadius: 0, bobDistance: 0, jointDamping: 2e-4 },
+          { kind: 'rod-bob', rodLength: 0.15, rodMass: 0.02, bobMass: 0, bobRadius: 0, bobDistance: 0, jointDamping: 2e-4, startBend: 0.05 },
+        ],
+      },
+      drive: { direction: 0, amplitude: 0.01, frequency: 50, waveform: { kind: 'sine' } },
+      damping: { viscousRatio: 0, quadratic: 0, friction: 0, frictionSmoothing: 0.01 },
+      start: { angle: 0.05, rate: 0 },
+      gravity: STANDARD_GRAVITY,
+      run: { duration: 10, rtol: 1e-8, atol: 1e-10, outputPoints: 4000, strobePhase: 0, transientFraction: 0.5 },
+    },
+  },
+  {
+    id: 'three-link-beads',
+    title: 'Three beads on light hinged links',
+    description:
+      'Three 50 g masses on 10 cm light links, 5 mm at 100 Hz vertical; the zigzag start settles back upright, inside an amplitude window of about 3.5 to 7.3 mm.',
+    expectedOutcome: 'holds-upright',
+    params: {
+      schemaVersion: CASE_SCHEMA_VERSION,
+      body: {
+        kind: 'chain',
+        links: [
+          { kind: 'point-mass', length: 0.1, mass: 0.05, jointDamping: 2e-4 },
+          { kind: 'point-mass', length: 0.1, mass: 0.05, jointDamping: 2e-4, startBend: -0.04 },
+          { kind: 'point-mass', length: 0.1, mass: 0.05, jointDamping: 2e-4, startBend: 0.04 },
+        ],
+      },
+      drive: { direction: 0, amplitude: 0.005, frequency: 100, waveform: { kind: 'sine' } },
+      damping: { viscousRatio: 0, quadratic: 0, friction: 0, frictionSmoothing: 0.01 },
+      start: { angle: 0.05, rate: 0 },
+      gravity: STANDARD_GRAVITY,
+      run: { duration: 10, rtol: 1e-8, atol: 1e-10, outputPoints: 4000, strobePhase: 0, transientFraction: 0.5 },
     },
   },
 ];

@@ -68,7 +68,7 @@ describe('parseCase', () => {
     });
     expect(issuesOf({ ...c, body: { kind: 'wobble' } })[0]).toMatchObject({
       field: 'body.kind',
-      expected: 'point-mass | rod-bob | measured-swing',
+      expected: 'point-mass | rod-bob | measured-swing | chain',
     });
     expect(issuesOf({ ...c, run: { ...c.run, outputPoints: 10.5 } })[0]).toMatchObject({ expected: 'int' });
   });
@@ -115,5 +115,38 @@ describe('parseCase', () => {
     const a = demoRigCase('horizontal-arm') as CaseParams;
     a.drive.amplitude = 1;
     expect(demoRigCase('horizontal-arm')?.drive.amplitude).toBeCloseTo(0.01, 12);
+  });
+
+  describe('chains', () => {
+    const link = { kind: 'point-mass', length: 0.1, mass: 0.05, jointDamping: 0 };
+    const chain = (links: unknown[], extra: Record<string, unknown> = {}) => ({
+      ...templateCase(),
+      body: { kind: 'chain', links },
+      damping: { viscousRatio: 0, quadratic: 0, friction: 0, frictionSmoothing: 0.01 },
+      ...extra,
+    });
+
+    it('accepts two and three links of either kind, bends optional', () => {
+      const rod = { kind: 'rod-bob', rodLength: 0.2, rodMass: 0.03, bobMass: 0.01, bobRadius: 0.005, bobDistance: 0.2, jointDamping: 1e-4, startBend: 0.1 };
+      expect(parseCase(chain([link, rod])).ok).toBe(true);
+      expect(parseCase(chain([link, rod, link])).ok).toBe(true);
+    });
+
+    it('refuses one link or four with the links field', () => {
+      expect(issuesOf(chain([link]))[0].field).toBe('body.links');
+      expect(issuesOf(chain([link, link, link, link]))[0].field).toBe('body.links');
+    });
+
+    it('refuses a massless rod link, a tilted drive and case damping, naming the field', () => {
+      const empty = { kind: 'rod-bob', rodLength: 0.2, rodMass: 0, bobMass: 0, bobRadius: 0, bobDistance: 0, jointDamping: 0 };
+      expect(issuesOf(chain([link, empty]))).toEqual([expect.objectContaining({ field: 'body.links.1.bobMass', message: expect.stringMatching(/^link 2: /) })]);
+      const c = templateCase();
+      expect(issuesOf(chain([link, link], { drive: { ...c.drive, direction: 0.3 } })).map((i) => i.field)).toEqual(['drive.direction']);
+      expect(issuesOf(chain([link, link], { damping: c.damping })).map((i) => i.field)).toEqual(['damping.viscousRatio']);
+    });
+
+    it('refuses a negative joint damping', () => {
+      expect(issuesOf(chain([link, { ...link, jointDamping: -1 }]))[0].field).toBe('body.links.1.jointDamping');
+    });
   });
 });

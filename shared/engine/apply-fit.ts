@@ -13,8 +13,10 @@ export interface AppliedFit {
  * The case with a free-swing fit written in: the body's equivalent length (a point mass's length, a measured
  * swing's frequency; a rod with bob becomes a measured swing of the same mass, since one length cannot reshape its
  * geometry) and the damping the fit's model estimated, with the terms it left out set to zero as the fit assumed.
+ * Null for a chain: one swing trace cannot size several links, and replacing them would drop links.
  */
-export function applyFit(params: CaseParams, fit: FitResult, traceLabel: string): AppliedFit {
+export function applyFit(params: CaseParams, fit: FitResult, traceLabel: string): AppliedFit | null {
+  if (params.body.kind === 'chain') return null;
   const L = fit.fitted.equivalentLength;
   const swingFrequency = Math.sqrt(params.gravity / L) / (2 * Math.PI);
   let body: CaseParams['body'];

@@ -90,6 +90,7 @@ export function defaultChartGrid(params: CaseParams, count = 200): Grid2 {
 
 function usesMagnus(params: CaseParams, grid: Grid2): boolean {
   return (
+    params.body.kind !== 'chain' &&
     Math.abs(pm.sin(params.drive.direction)) < 1e-12 &&
     grid.x.field === 'drive.frequency' &&
     grid.y.field === 'drive.amplitude'

@@ -16,10 +16,11 @@ import type { CaseParams } from '../case/case-schema';
 import { getField, setField } from '../case/case-fields';
 import { CASE_LIMITS } from '../case/case-schema';
 import { bodyProperties } from './body';
+import { buildChainModel, chainUprightMonodromy, eigenvalues } from './chain';
 import { ENGINE_VERSION } from './version';
 import { mathieuA, mathieuB, mathieuMapping } from './mathieu';
 import {
-  Complex, Mat2, eigenvalues2, magnusMonodromy, richardson4, spectralRadius2,
+  Complex, Mat2, eigenvalues2, magnusMonodromy, modulus, richardson4, spectralRadius2,
 } from './monodromy';
 import { findPeriodicMotion, PeriodicSystem } from './period-map';
 import { periodicSystem, steadyDrive } from './periodic-system';
@@ -37,7 +38,8 @@ export interface PeriodicMotion {
   rate: number;
   /** rad: mean angle over one period, wrapped to (-pi, pi]. */
   meanAngle: number;
-  multipliers: [Complex, Complex];
+  /** All multipliers, largest modulus first: 2 for a single body, 2N for a chain of N links. */
+  multipliers: Complex[];
   /** Largest |multiplier|. */
   maxMultiplier: number;
   stable: boolean;
@@ -108,12 +110,13 @@ export function floquetAnalysis(params: CaseParams, options: FloquetOptions = {}
   const sys = periodicSystem(steady);
   const vertical = isVertical(steady);
   const upright = uprightMotion(steady);
-  const periodicMotions = searchPeriodicMotions(sys, options.starts ?? 24, upright);
+  // A chain's other periodic motions are not searched (a 2N-dimensional Newton from a ring of starts); its upright is.
+  const periodicMotions = steady.body.kind === 'chain' ? (upright ? [upright] : []) : searchPeriodicMotions(sys, options.starts ?? 24, upright);
   const amplitudeLimits = driveLimits(steady, 'drive.amplitude', relTolerance);
   const frequencyLimits = driveLimits(steady, 'drive.frequency', relTolerance);
   const margins = [amplitudeLimits.marginPercent, frequencyLimits.marginPercent].filter((m): m is number => m !== null);
   let mathieu: FloquetAnalysis['mathieu'] = null;
-  if (vertical && steady.drive.waveform.kind === 'sine') {
+  if (vertical && steady.drive.waveform.kind === 'sine' && steady.body.kind !== 'chain') {
     const L = bodyProperties(steady.body, steady.gravity).equivalentLength;
     const p = mathieuMapping(L, steady.gravity, 2 * Math.PI * steady.drive.frequency, steady.drive.amplitude);
     mathieu = { ...p, a0: mathieuA(0, p.q), b1: mathieuB(1, p.q) };
@@ -144,6 +147,7 @@ function isVertical(params: CaseParams): boolean {
  */
 export function uprightMotion(params: CaseParams, start?: readonly [number, number]): PeriodicMotion | null {
   const steady = steadyDrive(params);
+  if (steady.body.kind === 'chain') return chainUpright(steady);
   const sys = periodicSystem(steady);
   if (isVertical(steady)) {
     const m = uprightMonodromy(sys);
@@ -153,6 +157,27 @@ export function uprightMotion(params: CaseParams, start?: readonly [number, numb
   if (!fp || Math.abs(wrapAngle(fp.meanAngle)) > 0.5) fp = findPeriodicMotion(sys, 0, 0);
   if (!fp || Math.abs(wrapAngle(fp.meanAngle)) > 0.5) return null;
   return describe(fp.theta, fp.rate, fp.meanAngle, fp.monodromy, 'upright');
+}
+
+/**
+ * The upright of a chain (an exact equilibrium: chains are driven vertically) with all 2N multipliers of its
+ * monodromy matrix (chain.ts), over one drive period from the strobe phase.
+ */
+function chainUpright(params: CaseParams): PeriodicMotion {
+  const model = buildChainModel(params);
+  const period = model.drive.period;
+  const rows = chainUprightMonodromy(model, params.run.strobePhase / model.drive.omega, period);
+  const multipliers = eigenvalues(rows);
+  const maxMultiplier = Math.max(...multipliers.map(modulus));
+  return {
+    kind: 'upright',
+    angle: 0,
+    rate: 0,
+    meanAngle: 0,
+    multipliers,
+    maxMultiplier: Number.isNaN(maxMultiplier) ? Infinity : maxMultiplier,
+    stable: maxMultiplier < 1 + MULTIPLIER_UNIT_TOLERANCE,
+  };
 }
 
 /**

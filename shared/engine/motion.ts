@@ -2,6 +2,7 @@ import type { CaseParams } from '../case/case-schema';
 import { caseDigest } from '../case/canonical';
 import { assertCase } from '../case/validate';
 import { classifyMotion, type MotionOutcome, type OutcomeNumbers } from './classify';
+import { simulateChainMotion } from './chain-motion';
 import { buildModel, rhs, type RigModel } from './equations';
 import { integrate, rigDerivative, type IntegrateStatus } from './integrate';
 import { ENGINE_VERSION } from './version';
@@ -70,6 +71,23 @@ export interface MotionSummary {
   rejectedSteps: number;
 }
 
+/** Every link of a chain (absent for a single body); index 0 is the link on the pivot. */
+export interface ChainMotion {
+  links: number;
+  /** rad from the upright, absolute (not relative to the previous link), continuous; on the series' time grid */
+  theta: Float64Array[];
+  /** rad/s */
+  rate: Float64Array[];
+  /** on the strobe's time grid */
+  strobeTheta: Float64Array[];
+  /** on the slow motion's time grid */
+  slowTheta: Float64Array[];
+  /** each link's outcome; the chain's is the worst */
+  outcomes: MotionOutcome[];
+  /** 1-based link whose outcome is the chain's */
+  decidingLink: number;
+}
+
 export interface MotionResult {
   engineVersion: string;
   caseDigest: string;
@@ -83,6 +101,8 @@ export interface MotionResult {
   outcome: MotionOutcome;
   outcomeNumbers: OutcomeNumbers;
   rhsEvaluations: number;
+  /** chains only: every link */
+  chain?: ChainMotion;
 }
 
 /** Phase samples per drive period for the slow average and the force peak. */
@@ -119,6 +139,7 @@ function energy(model: RigModel, theta: number, rate: number): number {
 export function simulateMotion(input: CaseParams, hooks: MotionHooks = {}): MotionResult {
   // validated again here: sweeps build cases with setField, and an impossible one must fail loudly, not yield NaN
   const params = assertCase(input);
+  if (params.body.kind === 'chain') return simulateChainMotion(params, hooks);
   const model = buildModel(params);
   const drive = model.drive;
   const run = params.run;

@@ -41,7 +41,7 @@ export const FIELD_TABLE: Readonly<Record<string, FieldInfo>> = {
     label: 'Body',
     dimension: 'plain',
     kind: 'words',
-    words: { 'point-mass': 'point mass on a light rod', 'rod-bob': 'rod with a bob', 'measured-swing': 'measured free swing' },
+    words: { 'point-mass': 'point mass on a light rod', 'rod-bob': 'rod with a bob', 'measured-swing': 'measured free swing', chain: 'chain of hinged links' },
   },
   'body.length': length('Length, pivot to mass'),
   'body.mass': plain('Mass', 'kg'),

@@ -154,6 +154,10 @@ export class BenchFit {
     if (!fit) return;
     const trace = this.trace();
     const applied = applyFit(this.workspace.draft(), fit, trace.label || trace.fileName);
+    if (!applied) {
+      this.snackBar.open('A chain is not changed by a fit: one swing trace cannot size several links.', 'OK', { duration: 6000 });
+      return;
+    }
     this.workspace.applyParamsWithNote(applied.params, applied.note);
     this.snackBar.open(`Applied to the rig: ${applied.changes}. Save to keep them as a new revision.`, 'OK', { duration: 6000 });
   }

@@ -164,7 +164,7 @@ describe('RigForm', () => {
     const kind = parseCase({ ...templateCase(), body: { kind: 'cube' } });
     if (kind.ok) throw new Error('expected a refusal');
     expect(readableIssue(kind.issues[0], DEFAULT_UNITS)).toBe(
-      'Must be one of: point mass on a light rod, rod with a bob, measured free swing',
+      'Must be one of: point mass on a light rod, rod with a bob, measured free swing, chain of hinged links',
     );
     const points = parseCase({ ...templateCase(), run: { ...templateCase().run, outputPoints: 10.5 } });
     if (points.ok) throw new Error('expected a refusal');
@@ -182,5 +182,31 @@ describe('RigForm', () => {
     expect(value.drive.waveform.terms).toHaveLength(2);
     expect(value.drive.waveform.terms[1].order).toBe(2);
     expect(value.drive.waveform.terms[1].phase).toBeCloseTo(Math.PI / 2, 12);
+  });
+
+  it('saves a chain with every link as opened, through unit switches and edits of other fields', () => {
+    const rig = DEMO_RIGS.find((r) => r.params.body.kind === 'chain' && r.params.body.links.length === 3);
+    if (!rig) throw new Error('three-link demo missing');
+    const form = new RigForm(structuredClone(rig.params));
+    expect(form.group.controls.body.controls.kind.value).toBe('chain');
+    form.setUnits({ length: 'cm', frequency: 'rpm', angle: 'rad' });
+    form.group.controls.drive.controls.amplitude.setValue(0.6);
+    const saved = parsed(form);
+    expect(saved.body).toEqual(rig.params.body);
+    expect(saved.drive.amplitude).toBeCloseTo(0.006, 12);
+  });
+
+  it('switching a point mass to a chain gives two point-mass links sharing its length and mass', () => {
+    const form = new RigForm(templateCase());
+    form.group.controls.body.controls.kind.setValue('chain');
+    form.group.controls.damping.controls.viscousRatio.setValue(0);
+    const saved = parsed(form);
+    expect(saved.body).toEqual({
+      kind: 'chain',
+      links: [
+        { kind: 'point-mass', length: 0.1, mass: 0.05, jointDamping: 0 },
+        { kind: 'point-mass', length: 0.1, mass: 0.05, jointDamping: 0 },
+      ],
+    });
   });
 });

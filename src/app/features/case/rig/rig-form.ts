@@ -1,6 +1,7 @@
 import { AbstractControl, FormArray, FormControl, FormGroup, Validators } from '@angular/forms';
 
-import type { CaseParams, HarmonicTerm } from '../../../../../shared/case/case-schema';
+import type { CaseParams, ChainBody, HarmonicTerm } from '../../../../../shared/case/case-schema';
+import { chainLinkLength } from '../../../../../shared/case/display';
 import { CASE_SCHEMA_VERSION, STANDARD_GRAVITY } from '../../../../../shared/case/case-schema';
 import { parseCase, type CaseIssue, type ParseCaseResult } from '../../../../../shared/case/validate';
 import {
@@ -127,8 +128,15 @@ function harmonicGroup(term: HarmonicTerm, units: DisplayUnits): FormGroup<Harmo
 function bodyFallbacks(params: CaseParams): Record<string, number> {
   const g = params.gravity;
   const b = params.body;
-  const length = b.kind === 'point-mass' ? b.length : b.kind === 'rod-bob' ? b.rodLength : g / (2 * Math.PI * b.swingFrequency) ** 2;
-  const mass = b.kind === 'rod-bob' ? b.rodMass + b.bobMass : b.mass;
+  const length =
+    b.kind === 'point-mass' ? b.length
+    : b.kind === 'rod-bob' ? b.rodLength
+    : b.kind === 'chain' ? b.links.reduce((sum, link) => sum + chainLinkLength(link), 0)
+    : g / (2 * Math.PI * b.swingFrequency) ** 2;
+  const mass =
+    b.kind === 'rod-bob' ? b.rodMass + b.bobMass
+    : b.kind === 'chain' ? b.links.reduce((sum, link) => sum + (link.kind === 'rod-bob' ? link.rodMass + link.bobMass : link.mass), 0)
+    : b.mass;
   return {
     length,
     mass,
@@ -153,6 +161,11 @@ export class RigForm {
   readonly group: FormGroup<RigControls>;
   private currentUnits: DisplayUnits;
   private readonly exact = new WeakMap<AbstractControl, { readonly si: number; readonly shown: number }>();
+  /**
+   * The case's chain, kept whole: this form does not edit links, so a chain is saved exactly as it was opened (or,
+   * chosen here for a single body, as two equal point-mass links of the body's length and mass).
+   */
+  private chain: ChainBody | null = null;
 
   constructor(params: CaseParams, units: DisplayUnits = DEFAULT_UNITS) {
     this.currentUnits = units;
@@ -207,10 +220,11 @@ export class RigForm {
     // The form is first filled in SI, then each numeric control is switched to its shown value (see `show`).
     const fb = bodyFallbacks(params);
     const b = params.body;
+    this.chain = b.kind === 'chain' ? b : null;
     const body = {
       kind: b.kind,
       length: b.kind === 'point-mass' ? b.length : fb['length'],
-      mass: b.kind === 'rod-bob' ? fb['mass'] : b.mass,
+      mass: b.kind === 'point-mass' || b.kind === 'measured-swing' ? b.mass : fb['mass'],
       rodLength: b.kind === 'rod-bob' ? b.rodLength : fb['rodLength'],
       rodMass: b.kind === 'rod-bob' ? b.rodMass : fb['rodMass'],
       bobMass: b.kind === 'rod-bob' ? b.bobMass : fb['bobMass'],
@@ -263,6 +277,12 @@ export class RigForm {
     });
   }
 
+  /** Two equal point-mass links sharing a body's length and mass, for a case switched to a chain here. */
+  private defaultChain(length: number, mass: number): ChainBody {
+    const link = { kind: 'point-mass' as const, length: length / 2, mass: mass / 2, jointDamping: 0 };
+    return { kind: 'chain', links: [link, { ...link }] };
+  }
+
   addHarmonic(): void {
     this.harmonics.push(harmonicGroup({ order: this.harmonics.length + 1, relAmplitude: 0.1, phase: 0 }, this.currentUnits));
   }
@@ -293,7 +313,9 @@ export class RigForm {
               bobRadius: si(b.bobRadius, 'length'),
               bobDistance: si(b.bobDistance, 'length'),
             }
-          : { kind: v.body.kind, swingFrequency: si(b.swingFrequency, 'frequency'), mass: n(b.mass) };
+          : v.body.kind === 'chain'
+            ? this.chain ?? this.defaultChain(si(b.length, 'length'), n(b.mass))
+            : { kind: v.body.kind, swingFrequency: si(b.swingFrequency, 'frequency'), mass: n(b.mass) };
     const waveform =
       v.drive.waveform === 'sine'
         ? { kind: 'sine' }

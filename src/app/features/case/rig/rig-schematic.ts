@@ -1,7 +1,9 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 
 import type { CaseParams } from '../../../../../shared/case/case-schema';
+import { chainLinkLength } from '../../../../../shared/case/display';
 import { bodyProperties } from '../../../../../shared/engine/body';
+import { chainStart } from '../../../../../shared/engine/chain';
 import { formatIn } from '../../../core/units/format-number';
 import type { DisplayUnits } from '../../../core/units/display-units';
 
@@ -25,6 +27,17 @@ const BODY_PX = 100;
         <line [attr.x1]="c.cx" [attr.y1]="c.cy - c.r" x2="0" y2="0" class="conrod" />
       }
       @switch (shape().kind) {
+        @case ('chain') {
+          @for (link of chainLinks(); track $index) {
+            <line [attr.x1]="link.x1" [attr.y1]="link.y1" [attr.x2]="link.x2" [attr.y2]="link.y2" [attr.class]="link.rod ? 'rod' : 'thin-rod'" />
+            @if (link.bobR > 0) {
+              <circle [attr.cx]="link.bobX" [attr.cy]="link.bobY" [attr.r]="link.bobR" class="mass" />
+            }
+            @if ($index > 0) {
+              <circle [attr.cx]="link.x1" [attr.cy]="link.y1" r="4" class="hinge" />
+            }
+          }
+        }
         @case ('rod-bob') {
           <line x1="0" y1="0" [attr.x2]="shape().rodX" [attr.y2]="shape().rodY" class="rod" />
           <circle [attr.cx]="shape().bobX" [attr.cy]="shape().bobY" [attr.r]="shape().bobR" class="mass" />
@@ -61,6 +74,7 @@ const BODY_PX = 100;
     .equivalent { stroke: var(--mat-sys-primary); stroke-width: 3; stroke-dasharray: 8 4; }
     .mass { fill: var(--mat-sys-primary); }
     .pivot { fill: var(--mat-sys-on-surface); }
+    .hinge { fill: var(--mat-sys-surface); stroke: var(--mat-sys-on-surface); stroke-width: 1.5; }
     .crank { fill: none; stroke: var(--mat-sys-secondary); stroke-width: 2; }
     .conrod { stroke: var(--mat-sys-secondary); stroke-width: 2; }
     .label { font: 11px Roboto, sans-serif; fill: var(--mat-sys-on-surface-variant); }
@@ -76,7 +90,27 @@ export class RigSchematic {
     const b = p.body;
     if (b.kind === 'point-mass') return b.length;
     if (b.kind === 'rod-bob') return Math.max(b.rodLength, b.bobDistance + b.bobRadius);
+    if (b.kind === 'chain') return b.links.reduce((sum, link) => sum + chainLinkLength(link), 0);
     return bodyProperties(b, p.gravity).equivalentLength;
+  });
+  /** A chain's links at their start angles, each from the previous link's outer hinge. */
+  protected readonly chainLinks = computed(() => {
+    const p = this.params();
+    if (p.body.kind !== 'chain') return [];
+    const s = this.scale();
+    const angles = chainStart(p);
+    let x = 0;
+    let y = 0;
+    return p.body.links.map((link, i) => {
+      const ex = Math.sin(angles[i]);
+      const ey = -Math.cos(angles[i]);
+      const len = chainLinkLength(link) * s;
+      const bob = link.kind === 'point-mass' ? { d: len, r: 6 } : { d: link.bobDistance * s, r: link.bobMass > 0 ? Math.max(3, link.bobRadius * s) : 0 };
+      const drawn = { x1: x, y1: y, x2: x + ex * len, y2: y + ey * len, rod: link.kind === 'rod-bob', bobX: x + ex * bob.d, bobY: y + ey * bob.d, bobR: bob.r };
+      x = drawn.x2;
+      y = drawn.y2;
+      return drawn;
+    });
   });
   private readonly scale = computed(() => BODY_PX / this.bodyLength());
   /** Unit vector of the body from the pivot (screen y points down). */
@@ -127,7 +161,7 @@ export class RigSchematic {
 
   protected readonly lengthLabel = computed(() => {
     const b = this.params().body;
-    const label = b.kind === 'measured-swing' ? 'L (equivalent)' : b.kind === 'rod-bob' ? 'rod' : 'L';
+    const label = b.kind === 'measured-swing' ? 'L (equivalent)' : b.kind === 'rod-bob' ? 'rod' : b.kind === 'chain' ? `${b.links.length} links, total` : 'L';
     return `${label} = ${formatIn(this.bodyLength(), 'length', this.units(), 3)}`;
   });
   protected readonly angleLabel = computed(() => `start ${formatIn(this.params().start.angle, 'angle', this.units(), 3)} from upright`);

@@ -10,6 +10,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { DEMO_RIGS, templateCase } from '../../../../../shared/case/templates';
 import { averagedAnalysis } from '../../../../../shared/engine/averaged';
 import { bodyProperties } from '../../../../../shared/engine/body';
+import { chainLinkWords } from '../../../../../shared/case/display';
 import { driveSizing } from '../../../../../shared/engine/sizing';
 import { CaseWorkspace } from '../case-workspace';
 import { formatIn, formatNumber } from '../../../core/units/format-number';
@@ -65,6 +66,11 @@ export class RigTab {
   protected readonly bodyKind = computed(() => {
     this.formTick();
     return this.c.body.controls.kind.value;
+  });
+  /** A chain's links in words and units (links are not edited in this tab). */
+  protected readonly chainLinks = computed(() => {
+    const body = this.draft().body;
+    return body.kind === 'chain' ? body.links.map(chainLinkWords) : [];
   });
   protected readonly waveformKind = computed(() => {
     this.formTick();
