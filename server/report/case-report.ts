@@ -149,7 +149,7 @@ function rigRows(p: CaseParams): Row[] {
   } else {
     rows.push(['Body', 'Measured free swing'], ['Free swing frequency (hanging)', formatFrequency(b.swingFrequency)], ['Mass', `${formatNumber(b.mass)} kg`]);
   }
-  rows.push([b.kind === 'chain' ? 'Equivalent length L (joints locked)' : 'Equivalent length L', formatLength(bodyProperties(b, p.gravity).equivalentLength)]);
+  rows.push([b.kind === 'chain' ? 'Equivalent length L (slowest free swing)' : 'Equivalent length L', formatLength(bodyProperties(b, p.gravity).equivalentLength)]);
   const w = d.waveform;
   rows.push(['Waveform', w.kind === 'sine' ? 'Sine' : w.kind === 'crank-slider' ? 'Crank and connecting rod' : `Sum of ${w.terms.length} harmonics`]);
   rows.push(['Direction from vertical', formatAngle(d.direction)]);

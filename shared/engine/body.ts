@@ -1,3 +1,4 @@
+import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import type { Body, ChainLink } from '../case/case-schema';
 
 export interface BodyProperties {
@@ -23,9 +24,10 @@ export interface BodyProperties {
  * - rod-bob: uniform rod hinged at one end, I = m_r l^2 / 3 with its centre at l/2, plus a solid sphere of radius R
  *   centred at D: I = (2/5) m_b R^2 + m_b D^2 (parallel axes).
  * - measured-swing: L = g / (2 pi f)^2 from the small free swing frequency f; modelled as a point mass at L.
- * - chain: the chain with its joints locked straight (a rigid body; chainLinkProperties per link, parallel axes).
- *   It sets the scales the schema and the scans use (length, swing frequency); the chain's own slowest swing is
- *   slower (docs/physics.md, "Chains").
+ * - chain: the pendulum equivalent to the chain's slowest small free swing hanging down: L = lambda_max, the
+ *   largest root of det(M0 - lambda D) = 0 (M0 the mass matrix at rest, D = diag(mu); docs/physics.md, "Chains"),
+ *   so sqrt(g / L) is that swing and the averaged lower limit <s'^2> = g L is the chain's (Acheson's bound). Mass is
+ *   the total, the centre of mass that of the straight chain, and I = m d L keeps L = I / (m d).
  */
 export function bodyProperties(body: Body, g: number): BodyProperties {
   let mass: number;
@@ -53,18 +55,10 @@ export function bodyProperties(body: Body, g: number): BodyProperties {
       break;
     }
     case 'chain': {
-      mass = 0;
-      let moment = 0;
-      inertia = 0;
-      let hinge = 0;
-      for (const link of body.links.map(chainLinkProperties)) {
-        mass += link.mass;
-        moment += link.mass * (hinge + link.comDistance);
-        // about the pivot: I_hinge + m ((H + c)^2 - c^2)
-        inertia += link.inertia + link.mass * hinge * (hinge + 2 * link.comDistance);
-        hinge += link.length;
-      }
-      comDistance = moment / mass;
+      const slowest = chainSlowestLength(body.links.map(chainLinkProperties));
+      mass = slowest.mass;
+      comDistance = slowest.firstMoment / mass;
+      inertia = mass * comDistance * slowest.length;
       break;
     }
   }
@@ -101,4 +95,24 @@ export function chainLinkProperties(link: ChainLink): ChainLinkProperties {
     length: rodLength,
     jointDamping: link.jointDamping,
   };
+}
+
+/**
+ * Length of the pendulum with the chain's slowest small free swing: the largest generalised eigenvalue of
+ * M0 x = lambda D x, from the symmetric D^-1/2 M0 D^-1/2 (ml-matrix: arithmetic and sqrt only, the same bits in every
+ * runtime). M0 and mu as in chain.ts. Also the total mass and the straight chain's first moment sum(mu).
+ */
+export function chainSlowestLength(links: readonly ChainLinkProperties[]): { length: number; mass: number; firstMoment: number } {
+  const n = links.length;
+  const beyond = new Array<number>(n + 1).fill(0);
+  for (let i = n - 1; i >= 0; i--) beyond[i] = beyond[i + 1] + links[i].mass;
+  const mu = links.map((link, i) => link.mass * link.comDistance + link.length * beyond[i + 1]);
+  const rows = links.map((li, i) =>
+    links.map((_, j) => {
+      const a = i === j ? li.inertia + li.length * li.length * beyond[i + 1] : links[Math.min(i, j)].length * mu[Math.max(i, j)];
+      return a / Math.sqrt(mu[i] * mu[j]);
+    }),
+  );
+  const lambda = new EigenvalueDecomposition(new Matrix(rows), { assumeSymmetric: true }).realEigenvalues;
+  return { length: Math.max(...lambda), mass: beyond[0], firstMoment: mu.reduce((sum, m) => sum + m, 0) };
 }

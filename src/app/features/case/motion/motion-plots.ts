@@ -17,8 +17,45 @@ function angleUnits(units: DisplayUnits): { factor: number; unit: string; rateUn
   return { factor: toDisplay(1, 'angle', units), unit: unitLabelOf('angle', units), rateUnit: unitLabelOf('rate', units) };
 }
 
-/** Angle against time with the slow motion (period mean) overlaid; the Motion tab and the case-link page. */
+/** One colour pair (full motion, slow motion) per chain link, link 1 on the pivot. */
+const LINK_COLOURS: ReadonlyArray<readonly [string, string]> = [
+  ['#7a8fa6', '#0b6e69'],
+  ['#d9a38a', '#b4441d'],
+  ['#b7a3cf', '#6a3d9a'],
+];
+
+/** A chain's links' absolute angles against time, each with its slow motion. */
+function chainAngleTimePlot(r: MotionResult, chain: NonNullable<MotionResult['chain']>, units: DisplayUnits): MotionPlot {
+  const { factor, unit, rateUnit } = angleUnits(units);
+  const links = Array.from({ length: chain.links }, (_, k) => k);
+  const data: PlotSpec[] = links.flatMap((k) => {
+    const [full, slow] = LINK_COLOURS[k % LINK_COLOURS.length];
+    return [
+      { type: 'scatter', mode: 'lines', name: `link ${k + 1} angle θ${k + 1}`, x: r.series.t, y: scaled(chain.theta[k], factor), line: { width: 1, color: full } },
+      { type: 'scatter', mode: 'lines', name: `link ${k + 1} slow motion`, x: r.slow.t, y: scaled(chain.slowTheta[k], factor), line: { width: 2.5, color: slow } },
+    ];
+  });
+  const layout: PlotSpec = {
+    xaxis: { title: { text: 'time t (s)' } },
+    yaxis: { title: { text: `angle of each link from upright (${unit})` } },
+  };
+  const csv: PlotCsv = {
+    columns: [
+      { header: 't', unit: 's' },
+      ...links.flatMap((k) => [{ header: `theta${k + 1}`, unit }, { header: `rate${k + 1}`, unit: rateUnit }]),
+      { header: 'pivot position', unit: 'm' },
+    ],
+    rows: Array.from(r.series.t, (t, i) => [t, ...links.flatMap((k) => [chain.theta[k][i] * factor, chain.rate[k][i] * factor]), r.series.pivotPosition[i]]),
+  };
+  return { data, layout, csv };
+}
+
+/**
+ * Angle against time with the slow motion (period mean) overlaid; the Motion tab and the case-link page. A chain
+ * shows every link.
+ */
 export function angleTimePlot(r: MotionResult, units: DisplayUnits): MotionPlot {
+  if (r.chain) return chainAngleTimePlot(r, r.chain, units);
   const { factor, unit, rateUnit } = angleUnits(units);
   const data: PlotSpec[] = [
     { type: 'scatter', mode: 'lines', name: 'angle θ', x: r.series.t, y: scaled(r.series.theta, factor), line: { width: 1, color: '#7a8fa6' } },

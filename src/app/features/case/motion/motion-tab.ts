@@ -1,6 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, inject } from '@angular/core';
 
 import { bodyProperties } from '../../../../../shared/engine/body';
+import { chainLinkLength } from '../../../../../shared/case/display';
 import { Plot } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
 import { RunStrip } from '../run-strip';
@@ -39,7 +40,14 @@ export class MotionTab {
   });
   protected readonly bodyLength = computed(() => {
     const p = this.result()?.params;
+    if (p?.body.kind === 'chain') return p.body.links.reduce((sum, link) => sum + chainLinkLength(link), 0);
     return p ? bodyProperties(p.body, p.gravity).equivalentLength : 1;
+  });
+  /** A chain's links for the animation: angle series and lengths. */
+  protected readonly chainLinks = computed(() => {
+    const r = this.result();
+    if (!r || r.params.body.kind !== 'chain' || !r.value.chain) return null;
+    return { theta: r.value.chain.theta, lengths: r.params.body.links.map(chainLinkLength) };
   });
 
   protected readonly timePlot = computed(() => {

@@ -11,7 +11,7 @@ import { formatNumber } from '../../../core/units/format-number';
 const BODY_PX = 90;
 
 /**
- * The body on its moving pivot, replayed in slowed time from the run's output grid: play, pause and scrub. The
+ * The body (or every link of a chain) on its moving pivot, replayed in slowed time from the run's output grid: play, pause and scrub. The
  * pivot's stroke is enlarged when it is too small to see, and the enlargement is stated.
  */
 @Component({
@@ -21,8 +21,10 @@ const BODY_PX = 90;
     <div class="animation">
       <svg viewBox="-120 -120 240 240" role="img" [attr.aria-label]="'Body at t = ' + timeLabel()">
         <line [attr.x1]="-track().x" [attr.y1]="-track().y" [attr.x2]="track().x" [attr.y2]="track().y" class="track" />
-        <line [attr.x1]="frame().px" [attr.y1]="frame().py" [attr.x2]="frame().bx" [attr.y2]="frame().by" class="rod" />
-        <circle [attr.cx]="frame().bx" [attr.cy]="frame().by" r="8" class="bob" />
+        @for (seg of frame().segments; track $index) {
+          <line [attr.x1]="seg.x1" [attr.y1]="seg.y1" [attr.x2]="seg.x2" [attr.y2]="seg.y2" class="rod" />
+          <circle [attr.cx]="seg.x2" [attr.cy]="seg.y2" [attr.r]="frame().segments.length > 1 ? 6 : 8" class="bob" />
+        }
         <rect [attr.x]="frame().px - 8" [attr.y]="frame().py - 5" width="16" height="10" rx="2" class="pivot" />
         <text x="-115" y="112" class="label">{{ note() }}</text>
       </svg>
@@ -64,8 +66,10 @@ export class PendulumAnimation {
   readonly series = input.required<MotionSeries>();
   /** rad from the vertical */
   readonly direction = input.required<number>();
-  /** m */
+  /** m: the body's drawn length (a chain's total) */
   readonly length = input.required<number>();
+  /** A chain's links: each one's absolute angle series (on the series' grid) and hinge-to-hinge length, m. */
+  readonly links = input<{ theta: readonly Float64Array[]; lengths: readonly number[] } | null>(null);
 
   protected readonly time = signal(0);
   protected readonly playing = signal(false);
@@ -103,8 +107,19 @@ export class PendulumAnimation {
     const shift = (s.pivotPosition[i] ?? 0) * this.pivotScale();
     const px = Math.sin(beta) * shift;
     const py = -Math.cos(beta) * shift;
-    const theta = s.theta[i] ?? 0;
-    return { px, py, bx: px + Math.sin(theta) * BODY_PX, by: py - Math.cos(theta) * BODY_PX };
+    const links = this.links();
+    const parts = links
+      ? links.lengths.map((l, k) => ({ theta: links.theta[k][i] ?? 0, px: (l / this.length()) * BODY_PX }))
+      : [{ theta: s.theta[i] ?? 0, px: BODY_PX }];
+    let x = px;
+    let y = py;
+    const segments = parts.map(({ theta, px: len }) => {
+      const seg = { x1: x, y1: y, x2: x + Math.sin(theta) * len, y2: y - Math.cos(theta) * len };
+      x = seg.x2;
+      y = seg.y2;
+      return seg;
+    });
+    return { px, py, segments };
   });
   protected readonly timeLabel = computed(() => this.time().toFixed(4));
 
