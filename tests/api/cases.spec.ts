@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { caseDigest } from '../../shared/case';
+import { caseDigest, demoRigCase, type CaseParams } from '../../shared/case';
 import { MAX_SWEEP_STEPS } from '../../shared/engine/run-kinds';
 import { AuditEvent, CaseRecord, Revision, Run } from '../../server/db/models';
 import { errorOf, startApi, type TestApi } from './support';
@@ -314,5 +314,34 @@ describe('duplicate, rename, comments and audit', () => {
     expect(page2.body.items.map((e: { action: string }) => e.action)).toEqual(['case.updated', 'case.created']);
     expect(page2.body.items[0]).toMatchObject({ actor: { id: fx.people.analyst.id }, details: { caseId: id, changes: { title: { from: 'Before', to: 'After' } } } });
     expect(await AuditEvent.count({ where: { labId: fx.lab.id, action: 'case.updated' } })).toBeGreaterThanOrEqual(1);
+  });
+});
+
+describe('chains', () => {
+  function twoLink(): CaseParams {
+    const demo = demoRigCase('two-link-shaker');
+    if (!demo) throw new Error('two-link demo missing');
+    return { ...demo, run: { ...demo.run, duration: 0.5, outputPoints: 200 } };
+  }
+
+  it('stores a two-link case with every link and its motion run with both joints', async () => {
+    const params = twoLink();
+    const id = await createCaseVia(api.app, fx.tokens.analyst, fx.lab.id, { title: 'Two links', params });
+    const rev = await as('viewer').get(`/api/cases/${id}/revisions/1`);
+    expect(rev.body.params.body).toEqual(params.body);
+    const record = motionRun(params);
+    const res = await as('analyst').post(`/api/cases/${id}/revisions/1/runs`, record);
+    expect(res.status).toBe(201);
+    expect(res.body.summary.outcome).toBe('holds-upright');
+  });
+
+  it('refuses a massless link and a tilted drive with 422 naming the field', async () => {
+    const params = twoLink();
+    const massless = { ...params, body: { kind: 'chain', links: [params.body.kind === 'chain' ? params.body.links[0] : null, { kind: 'rod-bob', rodLength: 0.1, rodMass: 0, bobMass: 0, bobRadius: 0, bobDistance: 0, jointDamping: 0 }] } };
+    const res = await as('analyst').post(`/api/labs/${fx.lab.id}/cases`, { title: 'No mass', params: massless });
+    expect(res.status).toBe(422);
+    expect(errorOf(res)).toMatchObject({ code: 'invalid_params', field: 'params.body.links.1.bobMass' });
+    const tilted = await as('analyst').post(`/api/labs/${fx.lab.id}/cases`, { title: 'Tilted', params: { ...params, drive: { ...params.drive, direction: 0.2 } } });
+    expect(errorOf(tilted)).toMatchObject({ code: 'invalid_params', field: 'params.drive.direction' });
   });
 });
