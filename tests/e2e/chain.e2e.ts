@@ -1,6 +1,6 @@
 /**
- * A two-link chain in a real browser: created from its preset, the links shown in words and units on the Rig tab
- * and kept whole through a save, the Floquet margins with all four multipliers, and a motion run plotting both
+ * A two-link chain in a real browser: created from its preset, links edited on the Rig tab in the shown unit (added,
+ * refused out of range, removed), kept whole through a save, the Floquet margins with all four multipliers, and a motion run plotting both
  * joints.
  */
 import type { Page } from 'playwright-core';
@@ -45,6 +45,15 @@ describe('two-link chain', () => {
       'Link 1: rod 200 mm, 0.03 kg; joint damping 0.0002 N·m·s/rad',
       'Link 2: rod 150 mm, 0.02 kg; joint damping 0.0002 N·m·s/rad; starts bent 2.865°',
     ]);
+    // links are edited in the shown unit: a third link, a length out of range, then back to the two links
+    await page.getByRole('button', { name: 'Add a link' }).click();
+    await expect.poll(() => links.count()).toBe(3);
+    const third = page.locator('input[data-field="body.links.2.rodLength"]');
+    await third.fill('0.5');
+    await expect.poll(() => page.getByText('Must be at least 1 mm').count()).toBeGreaterThan(0);
+    await page.getByRole('button', { name: 'Remove link 3' }).click();
+    await expect.poll(() => links.count()).toBe(2);
+    expect(await page.getByText('Must be at least 1 mm').count()).toBe(0);
 
     await page.getByLabel('Case title').fill('Two hinged rods, chain test');
     await page.getByRole('button', { name: /Save/ }).click();

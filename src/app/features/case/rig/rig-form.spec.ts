@@ -209,4 +209,37 @@ describe('RigForm', () => {
       ],
     });
   });
+
+  it('edits chain links in display units, adds a straight third link and removes one, never below two', () => {
+    const rig = DEMO_RIGS.find((r) => r.id === 'two-link-shaker');
+    if (!rig) throw new Error('two-link demo missing');
+    const form = new RigForm(structuredClone(rig.params));
+    form.setUnits({ length: 'cm', frequency: 'Hz', angle: 'deg' });
+    const second = form.links.at(1).controls;
+    expect(second.rodLength.value).toBe(15);
+    second.rodLength.setValue(12);
+    second.startBend.setValue(0);
+    form.addLink();
+    const saved = parsed(form);
+    if (saved.body.kind !== 'chain') throw new Error('not a chain');
+    expect(saved.body.links).toHaveLength(3);
+    expect(saved.body.links[1]).toEqual({ kind: 'rod-bob', rodLength: 0.12, rodMass: 0.02, bobMass: 0, bobRadius: 0, bobDistance: 0, jointDamping: 2e-4, startBend: 0 });
+    // the new link copies the last one, straight on
+    expect(saved.body.links[2]).toEqual({ kind: 'rod-bob', rodLength: 0.12, rodMass: 0.02, bobMass: 0, bobRadius: 0, bobDistance: 0, jointDamping: 2e-4 });
+    form.addLink();
+    expect(form.links.length).toBe(3);
+    form.removeLink(0);
+    form.removeLink(0);
+    expect(form.links.length).toBe(2);
+  });
+
+  it('puts a link issue on the link field, in the shown unit', () => {
+    const rig = DEMO_RIGS.find((r) => r.id === 'three-link-beads');
+    if (!rig) throw new Error('three-link demo missing');
+    const form = new RigForm(structuredClone(rig.params));
+    form.links.at(2).controls.length.setValue(0.5);
+    const result = form.parse();
+    expect(result.ok).toBe(false);
+    expect(form.links.at(2).controls.length.errors?.['case']).toBe('Must be at least 1 mm');
+  });
 });

@@ -1,6 +1,7 @@
 import { AbstractControl, FormArray, FormControl, FormGroup, Validators } from '@angular/forms';
 
-import type { CaseParams, ChainBody, HarmonicTerm } from '../../../../../shared/case/case-schema';
+import type { CaseParams, ChainLink, HarmonicTerm } from '../../../../../shared/case/case-schema';
+import { CHAIN_LINKS } from '../../../../../shared/case/case-schema';
 import { chainLinkLength } from '../../../../../shared/case/display';
 import { CASE_SCHEMA_VERSION, STANDARD_GRAVITY } from '../../../../../shared/case/case-schema';
 import { parseCase, type CaseIssue, type ParseCaseResult } from '../../../../../shared/case/validate';
@@ -19,6 +20,23 @@ type Num = FormControl<number | null>;
 export type BodyKind = CaseParams['body']['kind'];
 export type WaveformKind = CaseParams['drive']['waveform']['kind'];
 
+export type LinkKind = ChainLink['kind'];
+
+/** One chain link: both link kinds' fields (the unused kind's keep plausible values for switching). */
+export interface LinkControls {
+  kind: FormControl<LinkKind>;
+  length: Num;
+  mass: Num;
+  rodLength: Num;
+  rodMass: Num;
+  bobMass: Num;
+  bobRadius: Num;
+  bobDistance: Num;
+  jointDamping: Num;
+  startBend: Num;
+  startBendRate: Num;
+}
+
 export interface HarmonicControls {
   order: Num;
   relAmplitude: Num;
@@ -36,6 +54,7 @@ export interface RigControls {
     bobRadius: Num;
     bobDistance: Num;
     swingFrequency: Num;
+    links: FormArray<FormGroup<LinkControls>>;
   }>;
   drive: FormGroup<{
     direction: Num;
@@ -81,6 +100,10 @@ const FIELD_DIMENSIONS: Readonly<Record<string, Dimension>> = {
 /** Dimension of a form control path such as `drive.amplitude` or `drive.harmonics.2.phase`. */
 export function dimensionOf(formPath: string): Dimension {
   if (/^drive\.harmonics\.\d+\.phase$/.test(formPath)) return 'angle';
+  const link = /^body\.links\.\d+\.(\w+)$/.exec(formPath)?.[1];
+  if (link === 'length' || link === 'rodLength' || link === 'bobRadius' || link === 'bobDistance') return 'length';
+  if (link === 'startBend') return 'angle';
+  if (link === 'startBendRate') return 'rate';
   return FIELD_DIMENSIONS[formPath] ?? 'plain';
 }
 
@@ -124,6 +147,47 @@ function harmonicGroup(term: HarmonicTerm, units: DisplayUnits): FormGroup<Harmo
   });
 }
 
+/** A link's full control values in SI: its own fields, and fallbacks for the other kind's. */
+function linkValue(link: ChainLink) {
+  const length = chainLinkLength(link);
+  const mass = link.kind === 'rod-bob' ? link.rodMass + link.bobMass : link.mass;
+  return {
+    kind: link.kind,
+    length: link.kind === 'point-mass' ? link.length : length,
+    mass: link.kind === 'point-mass' ? link.mass : mass,
+    rodLength: link.kind === 'rod-bob' ? link.rodLength : length,
+    rodMass: link.kind === 'rod-bob' ? link.rodMass : mass / 5,
+    bobMass: link.kind === 'rod-bob' ? link.bobMass : (4 * mass) / 5,
+    bobRadius: link.kind === 'rod-bob' ? link.bobRadius : length / 20,
+    bobDistance: link.kind === 'rod-bob' ? link.bobDistance : length,
+    jointDamping: link.jointDamping,
+    startBend: link.startBend ?? 0,
+    startBendRate: link.startBendRate ?? 0,
+  };
+}
+
+function linkGroup(): FormGroup<LinkControls> {
+  return new FormGroup<LinkControls>({
+    kind: new FormControl<LinkKind>('point-mass', { nonNullable: true }),
+    length: num(0),
+    mass: num(0),
+    rodLength: num(0),
+    rodMass: num(0),
+    bobMass: num(0),
+    bobRadius: num(0),
+    bobDistance: num(0),
+    jointDamping: num(0),
+    startBend: num(0),
+    startBendRate: num(0),
+  });
+}
+
+/** A single body's chain fallback: two equal point-mass links sharing its length and mass. */
+function fallbackLinks(length: number, mass: number): ChainLink[] {
+  const link = { kind: 'point-mass' as const, length: length / 2, mass: mass / 2, jointDamping: 0 };
+  return [link, { ...link }];
+}
+
 /** Values for the body kinds the case does not use, so switching kind starts from something plausible. */
 function bodyFallbacks(params: CaseParams): Record<string, number> {
   const g = params.gravity;
@@ -161,11 +225,8 @@ export class RigForm {
   readonly group: FormGroup<RigControls>;
   private currentUnits: DisplayUnits;
   private readonly exact = new WeakMap<AbstractControl, { readonly si: number; readonly shown: number }>();
-  /**
-   * The case's chain, kept whole: this form does not edit links, so a chain is saved exactly as it was opened (or,
-   * chosen here for a single body, as two equal point-mass links of the body's length and mass).
-   */
-  private chain: ChainBody | null = null;
+  /** Links whose stored case had a start bend (rate) key, so a bend of 0 is saved as stored, present or absent. */
+  private readonly storedBends = new WeakMap<AbstractControl, { bend: boolean; rate: boolean }>();
 
   constructor(params: CaseParams, units: DisplayUnits = DEFAULT_UNITS) {
     this.currentUnits = units;
@@ -180,6 +241,7 @@ export class RigForm {
         bobRadius: num(0),
         bobDistance: num(0),
         swingFrequency: num(0),
+        links: new FormArray<FormGroup<LinkControls>>([]),
       }),
       drive: new FormGroup({
         direction: num(0),
@@ -211,6 +273,10 @@ export class RigForm {
     return this.currentUnits;
   }
 
+  get links(): FormArray<FormGroup<LinkControls>> {
+    return this.group.controls.body.controls.links;
+  }
+
   get harmonics(): FormArray<FormGroup<HarmonicControls>> {
     return this.group.controls.drive.controls.harmonics;
   }
@@ -220,7 +286,13 @@ export class RigForm {
     // The form is first filled in SI, then each numeric control is switched to its shown value (see `show`).
     const fb = bodyFallbacks(params);
     const b = params.body;
-    this.chain = b.kind === 'chain' ? b : null;
+    const chainLinks = b.kind === 'chain' ? b.links : fallbackLinks(fb['length'], fb['mass']);
+    this.links.clear({ emitEvent: false });
+    for (const link of chainLinks) {
+      const group = linkGroup();
+      this.storedBends.set(group, { bend: link.startBend !== undefined, rate: link.startBendRate !== undefined });
+      this.links.push(group, { emitEvent: false });
+    }
     const body = {
       kind: b.kind,
       length: b.kind === 'point-mass' ? b.length : fb['length'],
@@ -231,6 +303,7 @@ export class RigForm {
       bobRadius: b.kind === 'rod-bob' ? b.bobRadius : fb['bobRadius'],
       bobDistance: b.kind === 'rod-bob' ? b.bobDistance : fb['bobDistance'],
       swingFrequency: b.kind === 'measured-swing' ? b.swingFrequency : fb['swingFrequency'],
+      links: chainLinks.map(linkValue),
     };
     const w = params.drive.waveform;
     const terms: HarmonicTerm[] = w.kind === 'harmonics' ? w.terms : [{ order: 1, relAmplitude: 1, phase: 0 }];
@@ -277,10 +350,52 @@ export class RigForm {
     });
   }
 
-  /** Two equal point-mass links sharing a body's length and mass, for a case switched to a chain here. */
-  private defaultChain(length: number, mass: number): ChainBody {
-    const link = { kind: 'point-mass' as const, length: length / 2, mass: mass / 2, jointDamping: 0 };
-    return { kind: 'chain', links: [link, { ...link }] };
+  /** Adds a link beyond the last, a copy of it, straight on (up to the most a chain may have). */
+  addLink(): void {
+    if (this.links.length >= CHAIN_LINKS.max) return;
+    const last = this.links.at(this.links.length - 1);
+    const group = linkGroup();
+    this.links.push(group, { emitEvent: false });
+    group.controls.kind.setValue(last.controls.kind.value, { emitEvent: false });
+    for (const [key, control] of Object.entries(group.controls)) {
+      if (key === 'kind') continue;
+      const from = last.get(key);
+      const dim = dimensionOf(`body.links.0.${key}`);
+      const si = key === 'startBend' || key === 'startBendRate' ? 0 : from instanceof FormControl ? this.siOf(from as Num, dim, this.currentUnits) : 0;
+      this.show(control as Num, si, dim);
+    }
+    this.links.updateValueAndValidity();
+  }
+
+  /** Removes a link (a chain keeps at least two). */
+  removeLink(index: number): void {
+    if (this.links.length > CHAIN_LINKS.min) this.links.removeAt(index);
+  }
+
+  /** One link of the form in SI; a bend of 0 is left out unless the stored link had it. */
+  private linkParams(group: FormGroup<LinkControls>): Record<string, unknown> {
+    const l = group.controls;
+    const si = (control: Num, dim: Dimension) => this.siOf(control, dim, this.currentUnits);
+    const n = (control: Num) => this.siOf(control, 'plain', this.currentUnits);
+    const stored = this.storedBends.get(group) ?? { bend: false, rate: false };
+    const bend = si(l.startBend, 'angle');
+    const bendRate = si(l.startBendRate, 'rate');
+    const joint = {
+      jointDamping: n(l.jointDamping),
+      ...(bend !== 0 || stored.bend ? { startBend: bend } : {}),
+      ...(bendRate !== 0 || stored.rate ? { startBendRate: bendRate } : {}),
+    };
+    return l.kind.value === 'point-mass'
+      ? { kind: 'point-mass', length: si(l.length, 'length'), mass: n(l.mass), ...joint }
+      : {
+          kind: 'rod-bob',
+          rodLength: si(l.rodLength, 'length'),
+          rodMass: n(l.rodMass),
+          bobMass: n(l.bobMass),
+          bobRadius: si(l.bobRadius, 'length'),
+          bobDistance: si(l.bobDistance, 'length'),
+          ...joint,
+        };
   }
 
   addHarmonic(): void {
@@ -314,7 +429,7 @@ export class RigForm {
               bobDistance: si(b.bobDistance, 'length'),
             }
           : v.body.kind === 'chain'
-            ? this.chain ?? this.defaultChain(si(b.length, 'length'), n(b.mass))
+            ? { kind: 'chain', links: this.links.controls.map((group) => this.linkParams(group)) }
             : { kind: v.body.kind, swingFrequency: si(b.swingFrequency, 'frequency'), mass: n(b.mass) };
     const waveform =
       v.drive.waveform === 'sine'

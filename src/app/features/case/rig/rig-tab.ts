@@ -11,6 +11,7 @@ import { DEMO_RIGS, templateCase } from '../../../../../shared/case/templates';
 import { averagedAnalysis } from '../../../../../shared/engine/averaged';
 import { bodyProperties } from '../../../../../shared/engine/body';
 import { chainLinkWords } from '../../../../../shared/case/display';
+import { CHAIN_LINKS } from '../../../../../shared/case/case-schema';
 import { driveSizing } from '../../../../../shared/engine/sizing';
 import { CaseWorkspace } from '../case-workspace';
 import { formatIn, formatNumber } from '../../../core/units/format-number';
@@ -67,11 +68,17 @@ export class RigTab {
     this.formTick();
     return this.c.body.controls.kind.value;
   });
-  /** A chain's links in words and units (links are not edited in this tab). */
+  /** A chain's links in words and units, as last valid (a summary beside the link fields). */
   protected readonly chainLinks = computed(() => {
     const body = this.draft().body;
     return body.kind === 'chain' ? body.links.map(chainLinkWords) : [];
   });
+  protected readonly linkGroups = computed(() => {
+    this.formTick();
+    return [...this.form.links.controls];
+  });
+  protected readonly maxLinks = CHAIN_LINKS.max;
+  protected readonly minLinks = CHAIN_LINKS.min;
   protected readonly waveformKind = computed(() => {
     this.formTick();
     return this.c.drive.controls.waveform.value;
@@ -204,6 +211,14 @@ export class RigTab {
 
   protected setAngleUnit(unit: AngleUnit): void {
     this.setUnits({ ...this.units(), angle: unit });
+  }
+
+  protected addLink(): void {
+    this.form.addLink();
+  }
+
+  protected removeLink(index: number): void {
+    this.form.removeLink(index);
   }
 
   protected addHarmonic(): void {
