@@ -8,9 +8,10 @@ const elsewhere = { exclude: ['src/**', 'node_modules/**', 'dist/**'] };
 export default defineConfig({
   test: {
     projects: [
-      { test: { name: 'shared', environment: 'node', include: ['shared/**/*.spec.ts'], ...elsewhere } },
+      // Engine specs run whole charts and fits: seconds each on an idle core, several times that on 2 busy ones.
+      { test: { name: 'shared', environment: 'node', include: ['shared/**/*.spec.ts'], ...elsewhere, testTimeout: 60_000 } },
       { test: { name: 'reference', environment: 'node', include: ['tests/reference/**/*.spec.ts'], ...elsewhere, testTimeout: 60_000 } },
-      { test: { name: 'server', environment: 'node', include: ['server/**/*.spec.ts'], ...elsewhere } },
+      { test: { name: 'server', environment: 'node', include: ['server/**/*.spec.ts'], ...elsewhere, testTimeout: 30_000 } },
       {
         test: {
           name: 'api',

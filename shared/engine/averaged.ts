@@ -2,7 +2,7 @@ import type { CaseParams, Drive } from '../case/case-schema';
 import { assertCase } from '../case/validate';
 import { bodyProperties } from './body';
 import { driveKinematics } from './drive';
-import * as pm from './portable-math';
+import { cos, sin } from './portable-math';
 
 export interface AveragedEquilibrium {
   /** rad from the upright, in (-pi, pi] */
@@ -61,16 +61,16 @@ function meanSquareVelocity(drive: Drive): number {
  * Reference: P. L. Kapitza (1951); Landau & Lifshitz, Mechanics, section 30.
  */
 export function effectivePotential(theta: number, g: number, L: number, msv: number, beta: number): number {
-  const s = pm.sin(theta - beta);
-  return (g / L) * pm.cos(theta) + (msv * s * s) / (2 * L * L);
+  const s = sin(theta - beta);
+  return (g / L) * cos(theta) + (msv * s * s) / (2 * L * L);
 }
 
 function dPotential(theta: number, g: number, L: number, msv: number, beta: number): number {
-  return -(g / L) * pm.sin(theta) + (msv / (2 * L * L)) * pm.sin(2 * (theta - beta));
+  return -(g / L) * sin(theta) + (msv / (2 * L * L)) * sin(2 * (theta - beta));
 }
 
 function d2Potential(theta: number, g: number, L: number, msv: number, beta: number): number {
-  return -(g / L) * pm.cos(theta) + (msv / (L * L)) * pm.cos(2 * (theta - beta));
+  return -(g / L) * cos(theta) + (msv / (L * L)) * cos(2 * (theta - beta));
 }
 
 function wrap(angle: number): number {
@@ -192,8 +192,8 @@ export function averagedAnalysis(input: CaseParams): AveragedAnalysis {
     value[i] = effectivePotential(theta[i], g, L, msv, beta);
   }
   const equilibria = findEquilibria(g, L, msv, beta);
-  const vertical = Math.abs(pm.sin(beta)) < VERTICAL_TOLERANCE;
-  const horizontal = Math.abs(pm.cos(beta)) < VERTICAL_TOLERANCE;
+  const vertical = Math.abs(sin(beta)) < VERTICAL_TOLERANCE;
+  const horizontal = Math.abs(cos(beta)) < VERTICAL_TOLERANCE;
   const uprightCurvature = d2Potential(0, g, L, msv, beta);
   const uprightStable = vertical ? uprightCurvature > 0 : null;
   let tiltFromDown: number | null = null;

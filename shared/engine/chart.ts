@@ -23,7 +23,7 @@ import { magnusMonodromySampled, richardson4, spectralRadius2 } from './monodrom
 import { uprightMaxMultiplier, uprightMotion } from './floquet';
 import { steadyDrive } from './periodic-system';
 import { ENGINE_VERSION } from './version';
-import * as pm from './portable-math';
+import { pow, sin } from './portable-math';
 
 /** One axis of a chart or map: a numeric case field sampled at `count` points from `from` to `to`. */
 export interface GridAxis {
@@ -71,7 +71,7 @@ export function axisValues(axis: GridAxis): Float64Array {
   const v = new Float64Array(axis.count);
   for (let i = 0; i < axis.count; i++) {
     const s = axis.count === 1 ? 0 : i / (axis.count - 1);
-    v[i] = axis.scale === 'log' ? axis.from * pm.pow(axis.to / axis.from, s) : axis.from + (axis.to - axis.from) * s;
+    v[i] = axis.scale === 'log' ? axis.from * pow(axis.to / axis.from, s) : axis.from + (axis.to - axis.from) * s;
   }
   return v;
 }
@@ -91,7 +91,7 @@ export function defaultChartGrid(params: CaseParams, count = 200): Grid2 {
 function usesMagnus(params: CaseParams, grid: Grid2): boolean {
   return (
     params.body.kind !== 'chain' &&
-    Math.abs(pm.sin(params.drive.direction)) < 1e-12 &&
+    Math.abs(sin(params.drive.direction)) < 1e-12 &&
     grid.x.field === 'drive.frequency' &&
     grid.y.field === 'drive.amplitude'
   );

@@ -1,5 +1,5 @@
 import type { Drive } from '../case/case-schema';
-import * as pm from './portable-math';
+import { cos, sin } from './portable-math';
 
 /** Pivot displacement along the drive line as a function of drive phase phi (rad), with its phi-derivatives. */
 export interface DriveShape {
@@ -59,9 +59,9 @@ export function driveShape(drive: Drive): DriveShape {
   switch (w.kind) {
     case 'sine':
       return {
-        position: (phi) => a * pm.cos(phi),
-        dPhase: (phi) => -a * pm.sin(phi),
-        d2Phase: (phi) => -a * pm.cos(phi),
+        position: (phi) => a * cos(phi),
+        dPhase: (phi) => -a * sin(phi),
+        d2Phase: (phi) => -a * cos(phi),
       };
     case 'crank-slider': {
       const r = a;
@@ -70,17 +70,17 @@ export function driveShape(drive: Drive): DriveShape {
       const r2 = r * r;
       return {
         position: (phi) => {
-          const s = pm.sin(phi);
-          return r * pm.cos(phi) + Math.sqrt(l2 - r2 * s * s) - l;
+          const s = sin(phi);
+          return r * cos(phi) + Math.sqrt(l2 - r2 * s * s) - l;
         },
         dPhase: (phi) => {
-          const s = pm.sin(phi);
-          const c = pm.cos(phi);
+          const s = sin(phi);
+          const c = cos(phi);
           return -r * s - (r2 * s * c) / Math.sqrt(l2 - r2 * s * s);
         },
         d2Phase: (phi) => {
-          const s = pm.sin(phi);
-          const c = pm.cos(phi);
+          const s = sin(phi);
+          const c = cos(phi);
           const d2 = l2 - r2 * s * s;
           const d = Math.sqrt(d2);
           return -r * c - (r2 * (c * c - s * s)) / d - (r2 * r2 * s * s * c * c) / (d2 * d);
@@ -95,17 +95,17 @@ export function driveShape(drive: Drive): DriveShape {
       return {
         position: (phi) => {
           let sum = 0;
-          for (let i = 0; i < n; i++) sum += amp[i] * pm.cos(k[i] * phi + ph[i]);
+          for (let i = 0; i < n; i++) sum += amp[i] * cos(k[i] * phi + ph[i]);
           return sum;
         },
         dPhase: (phi) => {
           let sum = 0;
-          for (let i = 0; i < n; i++) sum -= amp[i] * k[i] * pm.sin(k[i] * phi + ph[i]);
+          for (let i = 0; i < n; i++) sum -= amp[i] * k[i] * sin(k[i] * phi + ph[i]);
           return sum;
         },
         d2Phase: (phi) => {
           let sum = 0;
-          for (let i = 0; i < n; i++) sum -= amp[i] * k[i] * k[i] * pm.cos(k[i] * phi + ph[i]);
+          for (let i = 0; i < n; i++) sum -= amp[i] * k[i] * k[i] * cos(k[i] * phi + ph[i]);
           return sum;
         },
       };
@@ -185,9 +185,9 @@ export function driveKinematics(drive: Drive): DriveKinematics {
     const a = drive.amplitude;
     const aw = a * omega;
     const aw2 = aw * omega;
-    position = (t) => a * pm.cos(omega * t);
-    velocity = (t) => -aw * pm.sin(omega * t);
-    acceleration = (t) => -aw2 * pm.cos(omega * t);
+    position = (t) => a * cos(omega * t);
+    velocity = (t) => -aw * sin(omega * t);
+    acceleration = (t) => -aw2 * cos(omega * t);
   } else {
     position = (t) => shape.position(phase(t));
     velocity = (t) => shape.dPhase(phase(t)) * phaseRate(t);

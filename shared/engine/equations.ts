@@ -1,7 +1,7 @@
 import type { CaseParams } from '../case/case-schema';
 import { bodyProperties, type BodyProperties } from './body';
 import { driveKinematics, type DriveKinematics } from './drive';
-import * as pm from './portable-math';
+import { cos, cosh, sin, tanh } from './portable-math';
 
 /** Everything the equation of motion needs, precomputed from a validated case. */
 export interface RigModel {
@@ -35,8 +35,8 @@ export function buildModel(params: CaseParams): RigModel {
     L: body.equivalentLength,
     g,
     beta,
-    sinBeta: pm.sin(beta),
-    cosBeta: pm.cos(beta),
+    sinBeta: sin(beta),
+    cosBeta: cos(beta),
     omega0: body.naturalFrequency,
     zeta: params.damping.viscousRatio,
     quadratic: params.damping.quadratic,
@@ -58,11 +58,11 @@ export function buildModel(params: CaseParams): RigModel {
  */
 export function rhs(model: RigModel, t: number, theta: number, rate: number): number {
   const sa = model.drive.acceleration(t);
-  const st = pm.sin(theta);
-  const ct = pm.cos(theta);
+  const st = sin(theta);
+  const ct = cos(theta);
   let acc = (model.g * st + sa * (st * model.cosBeta - ct * model.sinBeta)) / model.L - 2 * model.zeta * model.omega0 * rate;
   if (model.quadratic !== 0) acc -= model.quadratic * rate * Math.abs(rate);
-  if (model.friction !== 0) acc -= model.friction * pm.tanh(rate / model.frictionSmoothing);
+  if (model.friction !== 0) acc -= model.friction * tanh(rate / model.frictionSmoothing);
   return acc;
 }
 
@@ -73,13 +73,13 @@ export function rhs(model: RigModel, t: number, theta: number, rate: number): nu
  */
 export function jacobian(model: RigModel, t: number, theta: number, rate: number): [number, number] {
   const sa = model.drive.acceleration(t);
-  const st = pm.sin(theta);
-  const ct = pm.cos(theta);
+  const st = sin(theta);
+  const ct = cos(theta);
   const dTheta = (model.g * ct + sa * (ct * model.cosBeta + st * model.sinBeta)) / model.L;
   let dRate = -2 * model.zeta * model.omega0;
   if (model.quadratic !== 0) dRate -= 2 * model.quadratic * Math.abs(rate);
   if (model.friction !== 0) {
-    const c = pm.cosh(rate / model.frictionSmoothing);
+    const c = cosh(rate / model.frictionSmoothing);
     dRate -= model.friction / (model.frictionSmoothing * c * c);
   }
   return [dTheta, dRate];

@@ -1,7 +1,7 @@
 import { levenbergMarquardt } from 'ml-levenberg-marquardt';
 import { integrate } from './integrate';
 import { EngineCancelledError, type MotionHooks } from './motion';
-import * as pm from './portable-math';
+import { log, sin, tanh } from './portable-math';
 
 /** Damping terms the fit estimates besides the viscous ratio. */
 export type FitModel = 'viscous' | 'viscous+quadratic' | 'viscous+friction';
@@ -194,16 +194,16 @@ function firstGuess(trace: SwingTrace): FirstGuess {
   }
   const period = (crossings[crossings.length - 1] - crossings[0]) / (crossings.length - 1);
   const meanAmplitude = amplitudes.reduce((s, x) => s + x.a, 0) / amplitudes.length;
-  const omega0 = (4 * ellipticK(pm.sin(Math.min(meanAmplitude, 3) / 2))) / period;
+  const omega0 = (4 * ellipticK(sin(Math.min(meanAmplitude, 3) / 2))) / period;
   // slope of ln(amplitude) against time is -zeta omega0 for light damping
   let zeta = 1e-3;
   const usable = amplitudes.filter((x) => x.a > 0);
   if (usable.length >= 2) {
     const mt = usable.reduce((s, x) => s + x.t, 0) / usable.length;
-    const ml = usable.reduce((s, x) => s + pm.log(x.a), 0) / usable.length;
+    const ml = usable.reduce((s, x) => s + log(x.a), 0) / usable.length;
     let num = 0;
     let den = 0;
-    for (const x of usable) { num += (x.t - mt) * (pm.log(x.a) - ml); den += (x.t - mt) ** 2; }
+    for (const x of usable) { num += (x.t - mt) * (log(x.a) - ml); den += (x.t - mt) ** 2; }
     if (den > 0) zeta = Math.min(0.5, Math.max(1e-4, -num / den / omega0));
   }
   let to = 0;
@@ -235,9 +235,9 @@ function simulateSwing(
   const mu = values.friction;
   const f = (_t: number, y: number[]): number[] => {
     const r = y[1];
-    let acc = -w2 * pm.sin(y[0]) - damp * r;
+    let acc = -w2 * sin(y[0]) - damp * r;
     if (c !== 0) acc -= c * r * Math.abs(r);
-    if (mu !== 0) acc -= mu * pm.tanh(r / eps);
+    if (mu !== 0) acc -= mu * tanh(r / eps);
     return [r, acc];
   };
   const t0 = time[0];

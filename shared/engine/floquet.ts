@@ -24,7 +24,7 @@ import {
 } from './monodromy';
 import { findPeriodicMotion, PeriodicSystem } from './period-map';
 import { periodicSystem, steadyDrive } from './periodic-system';
-import * as pm from './portable-math';
+import { pow, sin } from './portable-math';
 
 /** How a periodic motion sits: near the upright, hanging down, or tilted between. */
 export type PeriodicMotionKind = 'upright' | 'tilted' | 'hanging';
@@ -136,7 +136,7 @@ export function floquetAnalysis(params: CaseParams, options: FloquetOptions = {}
 }
 
 function isVertical(params: CaseParams): boolean {
-  return Math.abs(pm.sin(params.drive.direction)) < 1e-12;
+  return Math.abs(sin(params.drive.direction)) < 1e-12;
 }
 
 /**
@@ -297,7 +297,7 @@ export function driveLimits(
   const holds = (x: number): boolean => uprightMaxMultiplier(setField(steady, field, x)) < 1 + MULTIPLIER_UNIT_TOLERANCE;
   const n = 160;
   const grid: number[] = [];
-  for (let i = 0; i < n; i++) grid.push(from * pm.pow(to / from, i / (n - 1)));
+  for (let i = 0; i < n; i++) grid.push(from * pow(to / from, i / (n - 1)));
   const ok = grid.map(holds);
   // Index of the first grid point above the case value.
   let at = grid.findIndex((x) => x > value);

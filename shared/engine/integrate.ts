@@ -1,6 +1,6 @@
 import { Outcome, Solver } from 'odex';
 import { rhs, type RigModel } from './equations';
-import * as pm from './portable-math';
+import { cos, sin } from './portable-math';
 
 /** y' = f(t, y); must return a new array (odex copies it). */
 export type Derivative = (t: number, y: number[]) => number[];
@@ -138,11 +138,11 @@ export function rigDerivative(model: RigModel): Derivative {
   const pivotAcceleration = model.drive.acceleration;
   if (quadratic !== 0 || friction !== 0) return (t, y) => [y[1], rhs(model, t, y[0], y[1])];
   if (sinBeta === 0) {
-    return (t, y) => [y[1], (g + pivotAcceleration(t) * cosBeta) * pm.sin(y[0]) * invL - viscous * y[1]];
+    return (t, y) => [y[1], (g + pivotAcceleration(t) * cosBeta) * sin(y[0]) * invL - viscous * y[1]];
   }
   return (t, y) => {
-    const st = pm.sin(y[0]);
-    const ct = pm.cos(y[0]);
+    const st = sin(y[0]);
+    const ct = cos(y[0]);
     return [y[1], (g * st + pivotAcceleration(t) * (st * cosBeta - ct * sinBeta)) * invL - viscous * y[1]];
   };
 }

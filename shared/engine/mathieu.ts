@@ -7,7 +7,7 @@
  * Functions (1964), ch. 20; NIST DLMF section 28.17).
  */
 import { Mat2, magnusMonodromy, richardson4 } from './monodromy';
-import * as pm from './portable-math';
+import { cos } from './portable-math';
 
 /** Dimensionless Mathieu parameters of the upright under a vertical sine drive. */
 export interface MathieuPoint {
@@ -109,7 +109,7 @@ function countBelow(diag: Float64Array, off: Float64Array, size: number, x: numb
  */
 export function mathieuMonodromy(A: number, q: number, steps = 800): Mat2 {
   const coef = (x: number, out: Float64Array): void => {
-    out[0] = -(A - 2 * q * pm.cos(2 * x));
+    out[0] = -(A - 2 * q * cos(2 * x));
     out[1] = 0;
   };
   return richardson4(magnusMonodromy(coef, 0, Math.PI, steps), magnusMonodromy(coef, 0, Math.PI, 2 * steps));

@@ -11,7 +11,7 @@
  * exponential of a 2x2 matrix, so strongly oscillating or growing cells stay accurate with few steps; the global
  * error is O(h^4) and one Richardson step (n and 2n steps) lifts it to about O(h^6).
  */
-import * as pm from './portable-math';
+import { cos, cosh, exp, hypot, sin, sinh } from './portable-math';
 
 /** A 2x2 matrix stored row-major: [m11, m12, m21, m22]. */
 export type Mat2 = readonly [number, number, number, number];
@@ -46,12 +46,12 @@ export function eigenvalues2(m: Mat2): [Complex, Complex] {
 /** Largest modulus of the eigenvalues of a 2x2 matrix. */
 export function spectralRadius2(m: Mat2): number {
   const [a, b] = eigenvalues2(m);
-  return Math.max(pm.hypot(a.re, a.im), pm.hypot(b.re, b.im));
+  return Math.max(hypot(a.re, a.im), hypot(b.re, b.im));
 }
 
 /** Modulus of a complex number. */
 export function modulus(z: Complex): number {
-  return pm.hypot(z.re, z.im);
+  return hypot(z.re, z.im);
 }
 
 /**
@@ -146,14 +146,14 @@ function expm2(m11: number, m12: number, m21: number, m22: number): Mat2 {
     s = 1 + delta / 6 + delta * delta / 120;
   } else if (delta > 0) {
     const r = Math.sqrt(delta);
-    c = pm.cosh(r);
-    s = pm.sinh(r) / r;
+    c = cosh(r);
+    s = sinh(r) / r;
   } else {
     const r = Math.sqrt(-delta);
-    c = pm.cos(r);
-    s = pm.sin(r) / r;
+    c = cos(r);
+    s = sin(r) / r;
   }
-  const e = pm.exp(tau);
+  const e = exp(tau);
   stepOut[0] = e * (c + s * n11);
   stepOut[1] = e * s * m12;
   stepOut[2] = e * s * m21;

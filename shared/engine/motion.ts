@@ -6,7 +6,7 @@ import { simulateChainMotion } from './chain-motion';
 import { buildModel, rhs, type RigModel } from './equations';
 import { integrate, rigDerivative, type IntegrateStatus } from './integrate';
 import { ENGINE_VERSION } from './version';
-import * as pm from './portable-math';
+import { cos, hypot, sin } from './portable-math';
 
 /** Thrown by engine functions when their cancellation check returns true. */
 export class EngineCancelledError extends Error {
@@ -113,17 +113,17 @@ function pivotForce(model: RigModel, t: number, theta: number, rate: number): nu
   const { mass, comDistance: d } = model.body;
   const sa = model.drive.acceleration(t);
   const acc = rhs(model, t, theta, rate);
-  const st = pm.sin(theta);
-  const ct = pm.cos(theta);
+  const st = sin(theta);
+  const ct = cos(theta);
   // body position d (sin theta, cos theta), x right, y up; clockwise-positive theta
   const ax = sa * model.sinBeta + d * (acc * ct - rate * rate * st);
   const ay = sa * model.cosBeta + d * (-acc * st - rate * rate * ct);
-  return mass * pm.hypot(ax, ay + model.g);
+  return mass * hypot(ax, ay + model.g);
 }
 
 function energy(model: RigModel, theta: number, rate: number): number {
   const { mass, comDistance: d, inertia } = model.body;
-  return 0.5 * inertia * rate * rate + mass * model.g * d * (1 + pm.cos(theta));
+  return 0.5 * inertia * rate * rate + mass * model.g * d * (1 + cos(theta));
 }
 
 /**

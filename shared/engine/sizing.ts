@@ -3,7 +3,7 @@ import { amplitudeForMeanSquare, averagedLowerFrequency } from './averaged';
 import { assertCase } from '../case/validate';
 import { bodyProperties } from './body';
 import { driveKinematics } from './drive';
-import * as pm from './portable-math';
+import { cos, hypot, sin } from './portable-math';
 
 /** A shaker's rated envelope (all optional limits are peak values except the stroke). */
 export interface ShakerEnvelope {
@@ -76,7 +76,7 @@ export function driveSizing(input: CaseParams, options: SizingOptions = {}): Dri
   const steadyDrive = { ...params.drive, ramp: undefined };
   const kin = driveKinematics(steadyDrive);
   const beta = params.drive.direction;
-  const forceAt = (acc: number) => body.mass * pm.hypot(acc * pm.sin(beta), acc * pm.cos(beta) + g);
+  const forceAt = (acc: number) => body.mass * hypot(acc * sin(beta), acc * cos(beta) + g);
   const pivotForcePeak = Math.max(forceAt(kin.peakAcceleration), forceAt(-kin.peakAcceleration));
   const targetRatio = options.targetRatio ?? 1.5;
   const stiffnessRatio = kin.meanSquareVelocity / (g * L);

@@ -1,7 +1,7 @@
 import type { CaseParams } from '../case/case-schema';
 import { buildModel, rhs } from './equations';
 import { integrate } from './integrate';
-import * as pm from './portable-math';
+import { cos, log } from './portable-math';
 
 /**
  * Invented bench traces for tests, the benchmark and the demo data: the engine's own motion sampled on a uniform
@@ -24,7 +24,7 @@ export function seededRandom(seed: number): () => number {
 /** Standard normal deviates by the Box-Muller transform. */
 export function seededNormal(seed: number): () => number {
   const uniform = seededRandom(seed);
-  return () => Math.sqrt(-2 * pm.log(1 - uniform())) * pm.cos(2 * Math.PI * uniform());
+  return () => Math.sqrt(-2 * log(1 - uniform())) * cos(2 * Math.PI * uniform());
 }
 
 export interface SyntheticTrace {

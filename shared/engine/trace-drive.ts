@@ -4,7 +4,7 @@ import { polynomialFit, upwardCrossings } from './fit';
 import { driveLimits } from './floquet';
 import { integrate } from './integrate';
 import { EngineCancelledError, type MotionHooks } from './motion';
-import * as pm from './portable-math';
+import { atan2, cos, hypot, sin } from './portable-math';
 
 /** A measured driven trace: times (s), angle from the upright (rad) and pivot position along the drive line (m). */
 export interface DrivenTrace {
@@ -58,7 +58,7 @@ function harmonicFit(time: ArrayLike<number>, pivot: ArrayLike<number>, frequenc
   const rhsv = new Array<number>(p).fill(0);
   const basis = (tau: number): number[] => {
     const phi = phaseAt({ frequency, rampRate }, tau);
-    return [1, pm.cos(phi), pm.sin(phi), pm.cos(2 * phi), pm.sin(2 * phi)];
+    return [1, cos(phi), sin(phi), cos(2 * phi), sin(2 * phi)];
   };
   for (let i = 0; i < n; i++) {
     const b = basis(time[i] - t0);
@@ -78,10 +78,10 @@ function harmonicFit(time: ArrayLike<number>, pivot: ArrayLike<number>, frequenc
   return {
     frequency, rampRate, t0,
     mean: x[0],
-    amplitude: pm.hypot(x[1], x[2]),
-    phase: pm.atan2(-x[2], x[1]),
-    secondAmplitude: pm.hypot(x[3], x[4]),
-    secondPhase: pm.atan2(-x[4], x[3]),
+    amplitude: hypot(x[1], x[2]),
+    phase: atan2(-x[2], x[1]),
+    secondAmplitude: hypot(x[3], x[4]),
+    secondPhase: atan2(-x[4], x[3]),
     rmsResidual: Math.sqrt(ssr / n),
   };
 }
@@ -162,7 +162,7 @@ export function caseDriveAt(base: Drive, d: TraceDriveEstimate, t: number): Driv
   const tau = t - d.t0;
   const phi = phaseAt(d, tau);
   // engine phase omega (t - t) starts at 0 at t: fold the trace's phase at t into the harmonic phases
-  const wrap = (x: number): number => pm.atan2(pm.sin(x), pm.cos(x));
+  const wrap = (x: number): number => atan2(sin(x), cos(x));
   const rel = d.amplitude > 0 ? d.secondAmplitude / d.amplitude : 0;
   const steady = { direction: base.direction };
   if (rel <= 0.01) {
@@ -190,8 +190,8 @@ function pivotAcceleration(d: TraceDriveEstimate): (t: number) => number {
     const w = TWO_PI * (d.frequency + d.rampRate * tau);
     const p1 = phi + d.phase;
     const p2 = 2 * phi + d.secondPhase;
-    return -d.amplitude * (pm.cos(p1) * w * w + pm.sin(p1) * w1)
-      - d.secondAmplitude * (4 * pm.cos(p2) * w * w + 2 * pm.sin(p2) * w1);
+    return -d.amplitude * (cos(p1) * w * w + sin(p1) * w1)
+      - d.secondAmplitude * (4 * cos(p2) * w * w + 2 * sin(p2) * w1);
   };
 }
 
