@@ -33,7 +33,7 @@ export function headlineNumbers(summary: RunView['summary']): string {
     @if (runs().length === 0) {
       <p class="none">No runs are stored with this revision.</p>
     } @else {
-      <div class="scroll" qpScrollRegion="Stored runs">
+      <div class="scroll" qpScrollRegion="Table of stored runs">
         <table mat-table [dataSource]="rows()" class="runs-table">
           <ng-container matColumnDef="kind">
             <th mat-header-cell *matHeaderCellDef>Kind</th>

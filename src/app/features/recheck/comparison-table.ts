@@ -30,7 +30,7 @@ export type { ComparisonRow } from './comparison-groups';
       <p class="tolerance">Tolerance: {{ tolerance }}</p>
     }
     @if (g.rows.length > 0) {
-      <div class="scroll" qpScrollRegion="Compared numbers">
+      <div class="scroll" [qpScrollRegion]="'Compared numbers' + (kindWords() ? ': ' + kindWords() : '')">
         <table class="comparison">
           <thead>
             <tr>
@@ -64,7 +64,7 @@ export type { ComparisonRow } from './comparison-groups';
           Sweep points: {{ g.points.length }}
           @if (g.pointsDiffering === 0) { — all agree } @else { — {{ g.pointsDiffering }} differ }
         </summary>
-        <div class="scroll" qpScrollRegion="Compared sweep points">
+        <div class="scroll" [qpScrollRegion]="'Compared sweep points' + (kindWords() ? ': ' + kindWords() : '')">
           <table class="comparison compact">
             <thead>
               <tr>
