@@ -264,3 +264,44 @@ export function eigenvalues(rows: number[][]): Complex[] {
     .map((x, i) => ({ re: x, im: im[i] }))
     .sort((p, q) => pm.hypot(q.re, q.im) - pm.hypot(p.re, p.im) || q.im - p.im);
 }
+
+/** A Floquet mode of the chain's upright: its multiplier and the shape of the link angles in it. */
+export interface FloquetMode {
+  multiplier: Complex;
+  modulus: number;
+  /**
+   * Each link's angle amplitude in the mode, relative to the largest (1), signed: negative swings against the
+   * largest (for a complex pair, the component in phase with the largest after rotating it to real).
+   */
+  shape: number[];
+}
+
+/**
+ * The modes of a monodromy matrix (2n x 2n, state [theta, rate]), one per real multiplier and per complex pair
+ * (the member with positive imaginary part), largest modulus first: the first is the one that loses stability first.
+ * Eigenvectors by ml-matrix (for a complex pair its columns hold the real and imaginary parts).
+ */
+export function floquetModes(rows: number[][], n: number): FloquetMode[] {
+  if (rows.some((r) => r.some((v) => !Number.isFinite(v)))) return [];
+  const evd = new EigenvalueDecomposition(new Matrix(rows));
+  const re = evd.realEigenvalues;
+  const im = evd.imaginaryEigenvalues;
+  const vectors = evd.eigenvectorMatrix;
+  const modes: FloquetMode[] = [];
+  for (let j = 0; j < re.length; j++) {
+    if (im[j] < 0) continue;
+    const vr: number[] = [];
+    const vi: number[] = [];
+    for (let k = 0; k < n; k++) {
+      vr.push(vectors.get(k, j));
+      vi.push(im[j] > 0 ? vectors.get(k, j + 1) : 0);
+    }
+    let big = 0;
+    for (let k = 1; k < n; k++) if (pm.hypot(vr[k], vi[k]) > pm.hypot(vr[big], vi[big])) big = k;
+    const size = pm.hypot(vr[big], vi[big]);
+    // rotate so the largest component is real and positive: v conj(v_big) / |v_big|^2
+    const shape = vr.map((x, k) => (size > 0 ? (x * vr[big] + vi[k] * vi[big]) / (size * size) : 0));
+    modes.push({ multiplier: { re: re[j], im: im[j] }, modulus: pm.hypot(re[j], im[j]), shape });
+  }
+  return modes.sort((a, b) => b.modulus - a.modulus);
+}

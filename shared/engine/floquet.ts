@@ -16,7 +16,7 @@ import type { CaseParams } from '../case/case-schema';
 import { getField, setField } from '../case/case-fields';
 import { CASE_LIMITS } from '../case/case-schema';
 import { bodyProperties } from './body';
-import { buildChainModel, chainUprightMonodromy, eigenvalues } from './chain';
+import { buildChainModel, chainUprightMonodromy, eigenvalues, floquetModes, type FloquetMode } from './chain';
 import { ENGINE_VERSION } from './version';
 import { mathieuA, mathieuB, mathieuMapping } from './mathieu';
 import {
@@ -43,6 +43,8 @@ export interface PeriodicMotion {
   /** Largest |multiplier|. */
   maxMultiplier: number;
   stable: boolean;
+  /** Chains: the upright's modes, largest |multiplier| first (the one that loses stability first). */
+  modes?: FloquetMode[];
 }
 
 /** Drive limits of the upright along one drive parameter, the others fixed. */
@@ -177,6 +179,7 @@ function chainUpright(params: CaseParams): PeriodicMotion {
     multipliers,
     maxMultiplier: Number.isNaN(maxMultiplier) ? Infinity : maxMultiplier,
     stable: maxMultiplier < 1 + MULTIPLIER_UNIT_TOLERANCE,
+    modes: floquetModes(rows, model.n),
   };
 }
 

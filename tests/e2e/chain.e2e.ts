@@ -68,13 +68,17 @@ describe('two-link chain', () => {
     await openTab(page, 'Margins');
     await page.getByTestId('run-margins').click();
     await expect.poll(() => page.getByTestId('upright-verdict').textContent(), { timeout: 90_000 }).toBe('holds');
-    const upright = page.locator('table.plain-table tbody tr').first();
+    const upright = page.locator('section[aria-labelledby="motions-title"] tbody tr').first();
     const cells = await upright.locator('td').allTextContents();
     expect(cells[0]).toBe('upright');
     // 2N = 4 multipliers, as two complex pairs
     expect(cells[2].split(', ')).toHaveLength(4);
     expect(Number(cells[3])).toBeLessThan(1);
     expect(await page.getByTestId('limits').textContent()).toMatch(/mm/);
+    // the modes, the one that loses stability first on top, with both links' angles
+    const modeRows = page.getByTestId('chain-modes').locator('tbody tr');
+    expect(await modeRows.count()).toBeGreaterThanOrEqual(2);
+    expect((await modeRows.first().locator('td').allTextContents())[2]).toMatch(/^−?[\d.]+ : −?[\d.]+$/);
 
     await openTab(page, 'Motion');
     await page.getByTestId('run-motion').click();

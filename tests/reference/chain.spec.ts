@@ -160,4 +160,19 @@ describe('chains of links on a vibrating pivot', () => {
       if (links === 2) expectRelative(lambdaMax, l * (1 + Math.SQRT1_2), 1e-14, 'two equal point masses: lambda_max = l (1 + 1/sqrt 2)');
     });
   }
+
+  it('below the lower limit the mode that grows is the slowest hanging swing, theta2 = sqrt 2 theta1 for two equal point masses (generalised eigenvector of M0 x = lambda D x, docs/physics.md Chains)', () => {
+    const l = 0.2;
+    const a = 0.002;
+    const lambdaMax = l * (1 + Math.SQRT1_2);
+    const lower = Math.sqrt(2 * G * lambdaMax) / a / (2 * Math.PI);
+    const below = uprightMotion(chainCase([pointLink(l, 0.05), pointLink(l, 0.05)], a, 0.97 * lower, { run: { ...templateCase().run, duration: 1 } }));
+    const top = below?.modes?.[0];
+    if (!top) throw new Error('no modes');
+    expect(top.multiplier.im).toBe(0);
+    expect(top.multiplier.re).toBeGreaterThan(1);
+    expectNear(top.shape[0], Math.SQRT1_2, 5e-3, 'link angles 1 : sqrt 2 in the growing mode');
+    expect(top.shape[1]).toBe(1);
+    expect(below?.multipliers).toHaveLength(4);
+  });
 });

@@ -1,7 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, inject } from '@angular/core';
 
 import { averagedAnalysis } from '../../../../../shared/engine/averaged';
-import type { DriveLimits, PeriodicMotion } from '../../../../../shared/engine/floquet';
+import { MULTIPLIER_UNIT_TOLERANCE, type DriveLimits, type PeriodicMotion } from '../../../../../shared/engine/floquet';
 import type { Complex } from '../../../../../shared/engine/monodromy';
 import { Plot, type PlotCsv, type PlotSpec } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
@@ -143,6 +143,23 @@ export class MarginsTab {
       multipliers: m.multipliers.map(complexText).join(', '),
       largest: formatNumber(m.maxMultiplier, 6),
       stable: m.stable,
+    }));
+  });
+
+  /** A chain's modes of the upright, the one that loses stability first at the top. */
+  protected readonly modes = computed(() => {
+    const modes = this.result()?.value.upright?.modes;
+    if (!modes) return [];
+    return modes.map((m, i) => ({
+      key: i,
+      multiplier: complexText(m.multiplier),
+      modulus: formatNumber(m.modulus, 6),
+      shape: m.shape.map((x) => formatNumber(x, 3)).join(' : '),
+      kind:
+        Math.abs(m.multiplier.im) > 1e-12 ? 'slow swing'
+        : m.multiplier.re >= 0 ? 'slow drift, no swing'
+        : 'flips every drive period (half the drive frequency)',
+      verdict: m.modulus < 1 + MULTIPLIER_UNIT_TOLERANCE ? 'decays' : 'grows',
     }));
   });
 
