@@ -18,7 +18,7 @@ import { chainLinkProperties, type ChainLinkProperties } from './body';
 import { driveKinematics, type DriveKinematics } from './drive';
 import { integrate, type Derivative } from './integrate';
 import type { Complex } from './monodromy';
-import * as pm from './portable-math';
+import { cos, hypot, sin } from './portable-math';
 
 /** Everything the chain's equations need, precomputed. */
 export interface ChainModel {
@@ -53,7 +53,7 @@ export function chainModel(links: readonly ChainLinkProperties[], g: number, dri
       a[j * n + i] = a[i * n + j];
     }
   }
-  return { n, links, g, sinBeta: pm.sin(beta), cosBeta: pm.cos(beta), mu, a, totalMass: beyond[0], drive };
+  return { n, links, g, sinBeta: sin(beta), cosBeta: cos(beta), mu, a, totalMass: beyond[0], drive };
 }
 
 /** The chain model of a validated chain case; throws for another body kind (a programming error). */
@@ -90,8 +90,8 @@ export function chainAccelerations(model: ChainModel, t: number, y: ArrayLike<nu
   const r = work.subarray(2 * n, 3 * n);
   const m = work.subarray(3 * n, 3 * n + n * n);
   for (let i = 0; i < n; i++) {
-    s[i] = pm.sin(y[i]);
-    c[i] = pm.cos(y[i]);
+    s[i] = sin(y[i]);
+    c[i] = cos(y[i]);
   }
   for (let i = 0; i < n; i++) {
     let ri = mu[i] * (g * s[i] + sa * (s[i] * cosBeta - c[i] * sinBeta));
@@ -154,8 +154,8 @@ export function chainEnergy(model: ChainModel, y: ArrayLike<number>): number {
   let kinetic = 0;
   let potential = 0;
   for (let i = 0; i < n; i++) {
-    potential += g * mu[i] * (1 + pm.cos(y[i]));
-    for (let j = 0; j < n; j++) kinetic += a[i * n + j] * pm.cos(y[i] - y[j]) * y[n + i] * y[n + j];
+    potential += g * mu[i] * (1 + cos(y[i]));
+    for (let j = 0; j < n; j++) kinetic += a[i * n + j] * cos(y[i] - y[j]) * y[n + i] * y[n + j];
   }
   return 0.5 * kinetic + potential;
 }
@@ -172,13 +172,13 @@ export function chainPivotForce(model: ChainModel, t: number, y: ArrayLike<numbe
   let rx = model.totalMass * sa * model.sinBeta;
   let ry = model.totalMass * (sa * model.cosBeta + model.g);
   for (let j = 0; j < n; j++) {
-    const st = pm.sin(y[j]);
-    const ct = pm.cos(y[j]);
+    const st = sin(y[j]);
+    const ct = cos(y[j]);
     const w2 = y[n + j] * y[n + j];
     rx += model.mu[j] * (alpha[j] * ct - w2 * st);
     ry += model.mu[j] * (-alpha[j] * st - w2 * ct);
   }
-  return pm.hypot(rx, ry);
+  return hypot(rx, ry);
 }
 
 /**
@@ -262,7 +262,7 @@ export function eigenvalues(rows: number[][]): Complex[] {
   const im = evd.imaginaryEigenvalues;
   return re
     .map((x, i) => ({ re: x, im: im[i] }))
-    .sort((p, q) => pm.hypot(q.re, q.im) - pm.hypot(p.re, p.im) || q.im - p.im);
+    .sort((p, q) => hypot(q.re, q.im) - hypot(p.re, p.im) || q.im - p.im);
 }
 
 /** A Floquet mode of the chain's upright: its multiplier and the shape of the link angles in it. */
@@ -297,11 +297,11 @@ export function floquetModes(rows: number[][], n: number): FloquetMode[] {
       vi.push(im[j] > 0 ? vectors.get(k, j + 1) : 0);
     }
     let big = 0;
-    for (let k = 1; k < n; k++) if (pm.hypot(vr[k], vi[k]) > pm.hypot(vr[big], vi[big])) big = k;
-    const size = pm.hypot(vr[big], vi[big]);
+    for (let k = 1; k < n; k++) if (hypot(vr[k], vi[k]) > hypot(vr[big], vi[big])) big = k;
+    const size = hypot(vr[big], vi[big]);
     // rotate so the largest component is real and positive: v conj(v_big) / |v_big|^2
     const shape = vr.map((x, k) => (size > 0 ? (x * vr[big] + vi[k] * vi[big]) / (size * size) : 0));
-    modes.push({ multiplier: { re: re[j], im: im[j] }, modulus: pm.hypot(re[j], im[j]), shape });
+    modes.push({ multiplier: { re: re[j], im: im[j] }, modulus: hypot(re[j], im[j]), shape });
   }
   return modes.sort((a, b) => b.modulus - a.modulus);
 }
