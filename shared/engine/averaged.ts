@@ -2,7 +2,9 @@ import type { CaseParams, Drive } from '../case/case-schema';
 import { assertCase } from '../case/validate';
 import { bodyProperties } from './body';
 import { driveKinematics } from './drive';
-import { cos, sin } from './portable-math';
+import { portable } from './portable-math';
+
+const { cos, sin } = portable;
 
 export interface AveragedEquilibrium {
   /** rad from the upright, in (-pi, pi] */

@@ -23,7 +23,9 @@ import { magnusMonodromySampled, richardson4, spectralRadius2 } from './monodrom
 import { uprightMaxMultiplier, uprightMotion } from './floquet';
 import { steadyDrive } from './periodic-system';
 import { ENGINE_VERSION } from './version';
-import { pow, sin } from './portable-math';
+import { portable } from './portable-math';
+
+const { pow, sin } = portable;
 
 /** One axis of a chart or map: a numeric case field sampled at `count` points from `from` to `to`. */
 export interface GridAxis {

@@ -1,5 +1,7 @@
 import type { Drive } from '../case/case-schema';
-import { cos, sin } from './portable-math';
+import { portable } from './portable-math';
+
+const { cos, sin } = portable;
 
 /** Pivot displacement along the drive line as a function of drive phase phi (rad), with its phi-derivatives. */
 export interface DriveShape {

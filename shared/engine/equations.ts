@@ -1,7 +1,9 @@
 import type { CaseParams } from '../case/case-schema';
 import { bodyProperties, type BodyProperties } from './body';
 import { driveKinematics, type DriveKinematics } from './drive';
-import { cos, cosh, sin, tanh } from './portable-math';
+import { portable } from './portable-math';
+
+const { cos, cosh, sin, tanh } = portable;
 
 /** Everything the equation of motion needs, precomputed from a validated case. */
 export interface RigModel {

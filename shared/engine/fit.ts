@@ -1,7 +1,9 @@
 import { levenbergMarquardt } from 'ml-levenberg-marquardt';
 import { integrate } from './integrate';
 import { EngineCancelledError, type MotionHooks } from './motion';
-import { log, sin, tanh } from './portable-math';
+import { portable } from './portable-math';
+
+const { log, sin, tanh } = portable;
 
 /** Damping terms the fit estimates besides the viscous ratio. */
 export type FitModel = 'viscous' | 'viscous+quadratic' | 'viscous+friction';

@@ -24,7 +24,9 @@ import {
 } from './monodromy';
 import { findPeriodicMotion, PeriodicSystem } from './period-map';
 import { periodicSystem, steadyDrive } from './periodic-system';
-import { pow, sin } from './portable-math';
+import { portable } from './portable-math';
+
+const { pow, sin } = portable;
 
 /** How a periodic motion sits: near the upright, hanging down, or tilted between. */
 export type PeriodicMotionKind = 'upright' | 'tilted' | 'hanging';

@@ -1,6 +1,8 @@
 import { Outcome, Solver } from 'odex';
 import { rhs, type RigModel } from './equations';
-import { cos, sin } from './portable-math';
+import { portable } from './portable-math';
+
+const { cos, sin } = portable;
 
 /** y' = f(t, y); must return a new array (odex copies it). */
 export type Derivative = (t: number, y: number[]) => number[];

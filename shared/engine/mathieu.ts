@@ -7,7 +7,9 @@
  * Functions (1964), ch. 20; NIST DLMF section 28.17).
  */
 import { Mat2, magnusMonodromy, richardson4 } from './monodromy';
-import { cos } from './portable-math';
+import { portable } from './portable-math';
+
+const { cos } = portable;
 
 /** Dimensionless Mathieu parameters of the upright under a vertical sine drive. */
 export interface MathieuPoint {

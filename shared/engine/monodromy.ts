@@ -11,7 +11,9 @@
  * exponential of a 2x2 matrix, so strongly oscillating or growing cells stay accurate with few steps; the global
  * error is O(h^4) and one Richardson step (n and 2n steps) lifts it to about O(h^6).
  */
-import { cos, cosh, exp, hypot, sin, sinh } from './portable-math';
+import { portable } from './portable-math';
+
+const { cos, cosh, exp, hypot, sin, sinh } = portable;
 
 /** A 2x2 matrix stored row-major: [m11, m12, m21, m22]. */
 export type Mat2 = readonly [number, number, number, number];

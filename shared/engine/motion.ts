@@ -6,7 +6,9 @@ import { simulateChainMotion } from './chain-motion';
 import { buildModel, rhs, type RigModel } from './equations';
 import { integrate, rigDerivative, type IntegrateStatus } from './integrate';
 import { ENGINE_VERSION } from './version';
-import { cos, hypot, sin } from './portable-math';
+import { portable } from './portable-math';
+
+const { cos, hypot, sin } = portable;
 
 /** Thrown by engine functions when their cancellation check returns true. */
 export class EngineCancelledError extends Error {

@@ -3,7 +3,9 @@ import { amplitudeForMeanSquare, averagedLowerFrequency } from './averaged';
 import { assertCase } from '../case/validate';
 import { bodyProperties } from './body';
 import { driveKinematics } from './drive';
-import { cos, hypot, sin } from './portable-math';
+import { portable } from './portable-math';
+
+const { cos, hypot, sin } = portable;
 
 /** A shaker's rated envelope (all optional limits are peak values except the stroke). */
 export interface ShakerEnvelope {

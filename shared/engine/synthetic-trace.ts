@@ -1,7 +1,9 @@
 import type { CaseParams } from '../case/case-schema';
 import { buildModel, rhs } from './equations';
 import { integrate } from './integrate';
-import { cos, log } from './portable-math';
+import { portable } from './portable-math';
+
+const { cos, log } = portable;
 
 /**
  * Invented bench traces for tests, the benchmark and the demo data: the engine's own motion sampled on a uniform

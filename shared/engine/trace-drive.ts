@@ -4,7 +4,9 @@ import { polynomialFit, upwardCrossings } from './fit';
 import { driveLimits } from './floquet';
 import { integrate } from './integrate';
 import { EngineCancelledError, type MotionHooks } from './motion';
-import { atan2, cos, hypot, sin } from './portable-math';
+import { portable } from './portable-math';
+
+const { atan2, cos, hypot, sin } = portable;
 
 /** A measured driven trace: times (s), angle from the upright (rad) and pivot position along the drive line (m). */
 export interface DrivenTrace {
