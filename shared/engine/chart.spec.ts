@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { DEMO_RIGS, setField, templateCase } from '../case';
+import { DEMO_RIGS, demoRigCase, setField, templateCase } from '../case';
+import { bodyProperties } from './body';
 import { assembleChart, axisValues, defaultChartGrid, stabilityChart, stabilityChartRows, type Grid2 } from './chart';
 import { uprightMaxMultiplier } from './floquet';
 import { mathieuA, mathieuB } from './mathieu';
@@ -136,5 +137,22 @@ describe('stabilityChart', () => {
     const ms = performance.now() - t0;
     expect(chart.maxMultiplier.length).toBe(40000);
     expect(ms).toBeLessThan(6000);
+  });
+
+  it('charts a chain cell by cell with its Floquet multipliers and draws its averaged lower limit (Acheson bound, physics.md Chains)', () => {
+    const c = demoRigCase('two-link-shaker');
+    if (!c) throw new Error('two-link demo missing');
+    const grid = defaultChartGrid(c, 4);
+    const chart = stabilityChart(c, grid);
+    expect(chart.method).toBe('general');
+    const xs = chart.xValues;
+    const ys = chart.yValues;
+    for (const [r, i] of [[0, 0], [3, 3], [2, 1]]) {
+      const cell = setField(setField(c, 'drive.amplitude', ys[r]), 'drive.frequency', xs[i]);
+      expect(chart.maxMultiplier[r * 4 + i]).toBe(uprightMaxMultiplier(cell));
+    }
+    const L = bodyProperties(c.body, c.gravity).equivalentLength;
+    const f = xs[1];
+    expect(chart.averagedLowerLimit?.amplitude[1]).toBeCloseTo(Math.sqrt(2 * c.gravity * L) / (2 * Math.PI * f), 12);
   });
 });

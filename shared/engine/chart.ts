@@ -219,6 +219,13 @@ export function assembleChart(params: CaseParams, grid: Grid2, maxMultiplier: Fl
   const xValues = axisValues(grid.x);
   let averagedLowerLimit: StabilityChart['averagedLowerLimit'] = null;
   let mathieu: StabilityChart['mathieu'] = null;
+  const chainFreqAmp = steady.body.kind === 'chain' && grid.x.field === 'drive.frequency' && grid.y.field === 'drive.amplitude';
+  if (chainFreqAmp) {
+    // A chain's averaged threshold: <s'^2> = g L with L its slowest swing's length (Acheson's bound; physics.md).
+    const amplitude = new Float64Array(xValues.length);
+    for (let i = 0; i < xValues.length; i++) amplitude[i] = averagedLowerAmplitude(steady, xValues[i]) ?? NaN;
+    averagedLowerLimit = { frequency: Float64Array.from(xValues), amplitude };
+  }
   if (magnus) {
     // Averaged upright threshold <s'^2> = g L for the case's waveform (exact crank-slider shape per frequency).
     const amplitude = new Float64Array(xValues.length);
