@@ -5,7 +5,8 @@
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { CAUTION_DEFERRAL, CAUTION_NOTES } from '../../shared/case/caution';
-import { formatFrequency, formatLength, formatPercent } from '../../shared/case/display';
+import { chainLinkWords, formatFrequency, formatLength, formatPercent } from '../../shared/case/display';
+import { demoRigCase } from '../../shared/case/templates';
 import { computeRun, makeRunRecord, type RunRecord } from '../../shared/engine/run-record';
 import { pdfText } from '../support/pdf-text';
 import { errorOf, startApi, type TestApi } from './support';
@@ -52,6 +53,21 @@ describe('GET /api/cases/:caseId/revisions/:rev/report.pdf', () => {
     expect(text).toContain(`Lower frequency limit ${formatFrequency(margins.summary['frequencyLower'] as number, 6)}`);
     expect(text).toContain(margins.resultDigest);
     for (const line of [...CAUTION_NOTES, CAUTION_DEFERRAL]) expect(text).toContain(line);
+  });
+
+  it('describes a chain link by link, with its margin', async () => {
+    const demo = demoRigCase('two-link-shaker');
+    if (!demo || demo.body.kind !== 'chain') throw new Error('two-link demo missing');
+    const chain = { ...demo, run: { ...demo.run, duration: 0.5, outputPoints: 200 } };
+    const id = await createCaseVia(api.app, fx.tokens.analyst, fx.lab.id, { title: 'Report: two links', params: chain });
+    const run = makeRunRecord(chain, { kind: 'margins', relTolerance: 1e-6 }, computeRun(chain, { kind: 'margins', relTolerance: 1e-6 }));
+    expect((await as('analyst').post(`/api/cases/${id}/revisions/1/runs`, run)).status).toBe(201);
+    const res = await pdfGet(`/api/cases/${id}/revisions/1/report.pdf`, fx.tokens.viewer);
+    expect(res.status).toBe(200);
+    const text = pdfText(res.body as Buffer).replace(/\s+/g, ' ');
+    expect(text).toContain('Chain of 2 links, hinged end to end');
+    for (const [i, link] of demo.body.links.entries()) expect(text).toContain(chainLinkWords(link, i).replace(/^Link \d+: /, ''));
+    expect(text).toContain(`Margin of the upright ${formatPercent(run.summary['marginPercent'] as number)}`);
   });
 
   it.each(ROLES)('is open to a %s of the lab', async (who) => {
