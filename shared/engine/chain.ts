@@ -18,7 +18,9 @@ import { chainLinkProperties, type ChainLinkProperties } from './body';
 import { driveKinematics, type DriveKinematics } from './drive';
 import { integrate, type Derivative } from './integrate';
 import type { Complex } from './monodromy';
-import { cos, hypot, sin } from './portable-math';
+import { portable } from './portable-math';
+
+const { cos, hypot, sin } = portable;
 
 /** Everything the chain's equations need, precomputed. */
 export interface ChainModel {
