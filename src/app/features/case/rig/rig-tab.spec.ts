@@ -68,6 +68,23 @@ describe('RigTab', () => {
     expect(TestBed.inject(CaseWorkspace).draft().drive.amplitude).toBeCloseTo(0.008, 12);
   });
 
+  it('fills a chain preset: every link editable, the summary naming the slowest swing', async () => {
+    const loader = TestbedHarnessEnvironment.loader(fixture);
+    const preset = await loader.getHarness(MatSelectHarness.with({ selector: '[data-testid=preset-select]' }));
+    await preset.open();
+    await preset.clickOptions({ text: 'Three beads on light hinged links' });
+    [...host.querySelectorAll('button')].find((b) => b.textContent?.includes('Fill the form'))?.click();
+    fixture.detectChanges();
+    await fixture.whenStable();
+    expect(host.querySelectorAll('fieldset.link')).toHaveLength(3);
+    expect(field('body.links.2.length')?.value).toBe('100');
+    await type('body.links.2.length', '120');
+    const draft = TestBed.inject(CaseWorkspace).draft();
+    expect(draft.body.kind === 'chain' && draft.body.links[2]).toMatchObject({ kind: 'point-mass', length: 0.12 });
+    expect(host.textContent).toContain('of the chain’s slowest free swing');
+    expect(host.textContent).toContain('Link 3: point mass 0.05 kg at 120 mm');
+  });
+
   it('shows a refused value under its field, in the shown unit, and clears it once fixed', async () => {
     await type('drive.amplitude', '-3');
     expect(host.querySelector('mat-error')?.textContent?.trim()).toBe('Must be at least 0 mm');

@@ -141,11 +141,15 @@ export class RigTab {
     const omega = 2 * Math.PI * p.drive.frequency;
     const aw2 = (p.drive.amplitude * omega) ** 2 / (p.gravity * body.equivalentLength);
     const rows: SummaryRow[] = [
-      { label: 'Equivalent length L', value: formatIn(body.equivalentLength, 'length', units) },
+      {
+        label: 'Equivalent length L',
+        value: formatIn(body.equivalentLength, 'length', units),
+        ...(p.body.kind === 'chain' ? { note: 'of the chain’s slowest free swing' } : {}),
+      },
       {
         label: 'Natural frequency ω₀ = √(g/L)',
         value: `${formatNumber(body.naturalFrequency)} rad/s`,
-        note: `free swing ${formatIn(body.swingFrequencyHz, 'frequency', units)}`,
+        note: `${p.body.kind === 'chain' ? 'slowest ' : ''}free swing ${formatIn(body.swingFrequencyHz, 'frequency', units)}`,
       },
       { label: 'Drive to swing ratio ω/ω₀', value: formatNumber(averaged.frequencyRatio, 3), note: 'averaged theory wants ≫ 1' },
       { label: '(aω)²/(gL)', value: formatNumber(aw2, 3), note: 'a vertical sine holds the upright above 2 (averaged theory)' },
