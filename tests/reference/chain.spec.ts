@@ -6,6 +6,7 @@ import { bodyProperties, chainLinkProperties } from '../../shared/engine/body';
 import { chainModel, chainUprightLinearisation, chainUprightMonodromy } from '../../shared/engine/chain';
 import { driveKinematics } from '../../shared/engine/drive';
 import { driveLimits, uprightMotion } from '../../shared/engine/floquet';
+import { highFrequencyUpperQ } from '../../shared/engine/mathieu';
 import { modulus } from '../../shared/engine/monodromy';
 import { simulateMotion } from '../../shared/engine/motion';
 import { expectNear, expectRelative } from './check';
@@ -136,7 +137,7 @@ describe('chains of links on a vibrating pivot', () => {
     expect(e[e.length - 1]).toBeLessThan(0.5 * e[0]);
   });
 
-  // Acheson (1993), "A pendulum theorem", Proc. R. Soc. Lond. A 443, 239-245, cited from memory: at high frequency
+  // Acheson (1993), "A pendulum theorem", Proc. R. Soc. Lond. A 443, 239-245, cited from memory (see docs/physics.md, Chains): at high frequency
   // the upright N-link pendulum on a vertically vibrated pivot is stable when a w exceeds a lower bound given by
   // averaging the linearised equations, a^2 w^2 > 2 g lambda_max with lambda_max = g / Omega_min^2, Omega_min the
   // slowest small free swing of the hanging chain (i.e. a w > sqrt(2) g / Omega_min). Compared here: the exact
@@ -174,5 +175,40 @@ describe('chains of links on a vibrating pivot', () => {
     expectNear(top.shape[0], Math.SQRT1_2, 5e-3, 'link angles 1 : sqrt 2 in the growing mode');
     expect(top.shape[1]).toBe(1);
     expect(below?.multipliers).toHaveLength(4);
+  });
+
+  // Acheson (1993), cited from memory: without damping the linearised chain splits into its normal modes, each a
+  // single pendulum of length lambda_k (the roots of det(M0 - lambda D) = 0), so the upright chain holds exactly when
+  // every one of those pendulums would hold. Compared: the chain's multipliers against the single bodies' (Magnus),
+  // and the high-frequency upper amplitude limit against Butikov's a/L = 0.454 for the shortest lambda.
+  it('the undamped chain\'s multipliers are those of single pendulums of the modal lengths lambda_k (Acheson, Proc. R. Soc. Lond. A 443 (1993) 239; from memory)', () => {
+    const l = 0.2;
+    for (const links of [2, 3]) {
+      const m0 = Array.from({ length: links }, (_, i) => Array.from({ length: links }, (_, j) => 0.05 * l * l * (links - Math.max(i, j))));
+      const d = Array.from({ length: links }, (_, i) => 0.05 * l * (links - i));
+      const lambdas = generalisedEigenvalues(m0, d);
+      const chain = chainCase(Array.from({ length: links }, () => pointLink(l, 0.05)), 0.008, 60);
+      const got = uprightMotion(chain)?.multipliers ?? [];
+      const want = lambdas.flatMap((length) => {
+        const single: CaseParams = { ...chain, body: { kind: 'point-mass', length, mass: 0.1 } };
+        return uprightMotion(single)?.multipliers ?? [];
+      });
+      const key = (z: { re: number; im: number }) => [z.re, z.im] as const;
+      const sortBy = (zs: Array<{ re: number; im: number }>) => zs.map(key).sort((p, q) => p[0] - q[0] || p[1] - q[1]);
+      const [g, w] = [sortBy(got), sortBy(want)];
+      expect(g).toHaveLength(2 * links);
+      g.forEach((z, i) => {
+        expectNear(z[0], w[i][0], 1e-9, `${links} links: multiplier ${i} real part vs the modal pendulum's`);
+        expectNear(z[1], w[i][1], 1e-9, `${links} links: multiplier ${i} imaginary part vs the modal pendulum's`);
+      });
+    }
+  });
+
+  it('the upright double chain\'s upper amplitude limit at high frequency is a = 0.454 lambda_min (Acheson 1993, from memory, with Butikov, Am. J. Phys. 69, 755 (2001))', () => {
+    const l = 0.2;
+    const lambdaMin = l * (1 - Math.SQRT1_2);
+    const chain = chainCase([pointLink(l, 0.05), pointLink(l, 0.05)], 0.02, 2000, { run: { ...templateCase().run, duration: 0.1 } });
+    const upper = driveLimits(chain, 'drive.amplitude', 1e-7).upper ?? NaN;
+    expectNear(upper / lambdaMin, highFrequencyUpperQ() / 2, 1e-4, 'a_upper / lambda_min vs q*/2 = 0.454');
   });
 });
