@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { fieldDisplay, formatAngle, formatLength, formatNumber, formatPercent, outcomeWords } from './display';
+import { chainLinkWords, fieldDisplay, formatAngle, formatLength, formatNumber, formatPercent, outcomeWords } from './display';
 
 describe('display', () => {
   it('shows SI values in mm, Hz and ° with their unit', () => {
@@ -21,5 +21,16 @@ describe('display', () => {
     expect(fieldDisplay('damping.viscousRatio').unit.unit).toBe('');
     expect(outcomeWords('holds-upright')).toBe('holds upright');
     expect(outcomeWords(null)).toBe('no valid case');
+  });
+});
+
+describe('chainLinkWords', () => {
+  it('says a link in shown units, with its bend only when it has one', () => {
+    expect(chainLinkWords({ kind: 'rod-bob', rodLength: 0.3, rodMass: 0.2, bobMass: 0.05, bobRadius: 0.01, bobDistance: 0.28, jointDamping: 0.001 }, 0)).toBe(
+      'Link 1: rod 300 mm, 0.2 kg, bob 0.05 kg (radius 10 mm) at 280 mm; joint damping 0.001 N·m·s/rad',
+    );
+    expect(chainLinkWords({ kind: 'point-mass', length: 0.1, mass: 0.05, jointDamping: 0, startBend: -0.04, startBendRate: 0.5 }, 2)).toBe(
+      'Link 3: point mass 0.05 kg at 100 mm; joint damping 0 N·m·s/rad; starts bent −2.292° turning 28.65 °/s',
+    );
   });
 });
