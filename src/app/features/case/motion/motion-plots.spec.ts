@@ -1,7 +1,7 @@
 import { demoRigCase } from '../../../../../shared/case/templates';
 import { simulateMotion } from '../../../../../shared/engine/motion';
 import { DEFAULT_UNITS } from '../../../core/units/display-units';
-import { angleTimePlot } from './motion-plots';
+import { angleTimePlot, phasePortraitPlot } from './motion-plots';
 
 describe('angleTimePlot', () => {
   it('draws every link of a chain with its slow motion, and puts every joint in the CSV', () => {
@@ -17,6 +17,9 @@ describe('angleTimePlot', () => {
     const first = plot.csv.rows[0];
     expect(first[1]).toBeCloseTo((0.05 * 180) / Math.PI, 10);
     expect(first[3]).toBeCloseTo((0.01 * 180) / Math.PI, 10);
+    const phase = phasePortraitPlot(r, DEFAULT_UNITS);
+    expect(phase.data.map((d) => d['name'])).toEqual(['link 1', 'link 2', 'link 3']);
+    expect(phase.csv.columns).toHaveLength(7);
   });
 
   it('keeps one angle trace for a single body', () => {

@@ -72,9 +72,27 @@ export function angleTimePlot(r: MotionResult, units: DisplayUnits): MotionPlot 
   return { data, layout, csv };
 }
 
-/** Rate against angle, full and slow motion. */
+/** Rate against angle, full and slow motion; a chain's every link (full motion). */
 export function phasePortraitPlot(r: MotionResult, units: DisplayUnits): MotionPlot {
   const { factor, unit, rateUnit } = angleUnits(units);
+  const chain = r.chain;
+  if (chain) {
+    const links = Array.from({ length: chain.links }, (_, k) => k);
+    return {
+      data: links.map((k) => ({
+        type: 'scatter', mode: 'lines', name: `link ${k + 1}`, x: scaled(chain.theta[k], factor), y: scaled(chain.rate[k], factor),
+        line: { width: 1, color: LINK_COLOURS[k % LINK_COLOURS.length][1] },
+      })),
+      layout: {
+        xaxis: { title: { text: `angle of the link θ (${unit})` } },
+        yaxis: { title: { text: `rate of the link θ̇ (${rateUnit})` } },
+      },
+      csv: {
+        columns: [{ header: 't', unit: 's' }, ...links.flatMap((k) => [{ header: `theta${k + 1}`, unit }, { header: `rate${k + 1}`, unit: rateUnit }])],
+        rows: Array.from(r.series.t, (t, i) => [t, ...links.flatMap((k) => [chain.theta[k][i] * factor, chain.rate[k][i] * factor])]),
+      },
+    };
+  }
   const data: PlotSpec[] = [
     { type: 'scatter', mode: 'lines', name: 'full motion', x: scaled(r.series.theta, factor), y: scaled(r.series.rate, factor), line: { width: 1, color: '#7a8fa6' } },
     { type: 'scatter', mode: 'lines', name: 'slow motion', x: scaled(r.slow.theta, factor), y: scaled(r.slow.rate, factor), line: { width: 2, color: '#0b6e69' } },
