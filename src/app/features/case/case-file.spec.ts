@@ -28,7 +28,7 @@ describe('case files', () => {
     const params = { ...templateCase(), body: { kind: 'cube' } };
     const r = readCaseFile(JSON.stringify({ format: 'quiverpoint-case', schemaVersion: 1, title: 't', params }));
     expect(r.ok ? '' : r.message).toBe(
-      'That case file has invalid parameters: Body: Must be one of: point mass on a light rod, rod with a bob, measured free swing. Nothing was changed.',
+      'That case file has invalid parameters: Body: Must be one of: point mass on a light rod, rod with a bob, measured free swing, chain of hinged links. Nothing was changed.',
     );
     expect(r.ok ? '' : r.message).not.toMatch(/discriminator|Expected/);
     const { drive: _drive, ...withoutDrive } = templateCase();
