@@ -6,8 +6,13 @@
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 
-import { DESKTOP, launchBrowser, type TestBrowser } from './support/browser';
+import { resolve } from 'node:path';
+
+import { DESKTOP, NARROW, launchBrowser, screenshot, type TestBrowser } from './support/browser';
 import { DEMO_ACCOUNTS, startE2eServer, type E2eServer } from './support/server';
+
+/** This file's screenshots (each also runs the axe check), in their own folder. */
+const SHOTS = resolve(__dirname, '..', '..', 'test-results', 'chain');
 
 const analyst = DEMO_ACCOUNTS.find((a) => a.role === 'analyst') ?? DEMO_ACCOUNTS[0];
 
@@ -64,6 +69,7 @@ describe('two-link chain', () => {
     await openTab(page, 'Rig');
     await expect.poll(() => links.count()).toBe(2);
     expect(await links.first().textContent()).toContain('rod 200 mm');
+    await screenshot(page, 'chain-rig-desktop', { dir: SHOTS });
 
     await openTab(page, 'Margins');
     await page.getByTestId('run-margins').click();
@@ -79,6 +85,7 @@ describe('two-link chain', () => {
     const modeRows = page.getByTestId('chain-modes').locator('tbody tr');
     expect(await modeRows.count()).toBeGreaterThanOrEqual(2);
     expect((await modeRows.first().locator('td').allTextContents())[2]).toMatch(/^−?[\d.]+ : −?[\d.]+$/);
+    await screenshot(page, 'chain-margins-desktop', { dir: SHOTS });
 
     await openTab(page, 'Motion');
     await page.getByTestId('run-motion').click();
@@ -88,5 +95,16 @@ describe('two-link chain', () => {
     );
     // the animation draws both links
     await expect.poll(() => page.getByRole('img', { name: /^Body at t = / }).locator('line.rod').count()).toBe(2);
+    await screenshot(page, 'chain-motion-desktop', { dir: SHOTS });
+
+    // The same case on a phone: the links and the modes fit without sideways scrolling of the page.
+    const phone = await browser.newPage(NARROW);
+    await phone.goto(`${server.baseUrl}/sign-in?returnUrl=${encodeURIComponent(new URL(page.url()).pathname.replace(/motion$/, 'rig'))}`);
+    await phone.getByLabel('Email').fill(analyst.email);
+    await phone.getByLabel('Password', { exact: true }).fill(analyst.password);
+    await phone.getByRole('button', { name: 'Sign in', exact: true }).click();
+    await phone.getByTestId('chain-links').locator('li').first().waitFor();
+    await screenshot(phone, 'chain-rig-phone', { dir: SHOTS });
+    expect(await phone.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth)).toBeLessThanOrEqual(1);
   }, 240_000);
 });
