@@ -180,6 +180,7 @@ export function simulateChainMotion(params: CaseParams, hooks: MotionHooks = {})
     theta: trimAll(out.theta, kOut),
     rate: trimAll(out.rate, kOut),
     strobeTheta: trimAll(strobe.theta, kStrobe),
+    strobeRate: trimAll(strobe.rate, kStrobe),
     slowTheta: trimAll(slow.theta, kSlow),
     outcomes: linkOutcomes.map((o) => o.outcome),
     decidingLink: worst + 1,
@@ -198,7 +199,7 @@ export function simulateChainMotion(params: CaseParams, hooks: MotionHooks = {})
       energy: trim(out.energy, kOut),
       pivotForce: trim(out.pivotForce, kOut),
     },
-    strobe: { t: trim(strobe.t, kStrobe), theta: chain.strobeTheta[0], rate: trim(strobe.rate[0], kStrobe) },
+    strobe: { t: trim(strobe.t, kStrobe), theta: chain.strobeTheta[0], rate: chain.strobeRate[0] },
     slow: { t: slowT, theta: chain.slowTheta[0], rate: trim(slow.rate[0], kSlow) },
     summary: {
       equivalentLength: rigid.equivalentLength,

@@ -82,6 +82,8 @@ export interface ChainMotion {
   rate: Float64Array[];
   /** on the strobe's time grid */
   strobeTheta: Float64Array[];
+  /** rad/s, absolute, on the strobe's time grid */
+  strobeRate: Float64Array[];
   /** on the slow motion's time grid */
   slowTheta: Float64Array[];
   /** each link's outcome; the chain's is the worst */

@@ -1,7 +1,7 @@
 import { demoRigCase } from '../../../../../shared/case/templates';
 import { simulateMotion } from '../../../../../shared/engine/motion';
 import { DEFAULT_UNITS } from '../../../core/units/display-units';
-import { angleTimePlot, phasePortraitPlot } from './motion-plots';
+import { angleTimePlot, phasePortraitPlot, strobePlot } from './motion-plots';
 
 describe('angleTimePlot', () => {
   it('draws every link of a chain with its slow motion, and puts every joint in the CSV', () => {
@@ -20,6 +20,16 @@ describe('angleTimePlot', () => {
     const phase = phasePortraitPlot(r, DEFAULT_UNITS);
     expect(phase.data.map((d) => d['name'])).toEqual(['link 1', 'link 2', 'link 3']);
     expect(phase.csv.columns).toHaveLength(7);
+    // The stroboscopic section: every link's angle and rate once per drive period.
+    const strobe = strobePlot(r, DEFAULT_UNITS);
+    expect(strobe.data.map((d) => d['name'])).toEqual(['link 1', 'link 2', 'link 3']);
+    expect(strobe.csv.columns.map((c) => c.header)).toEqual(['t', 'theta1', 'rate1', 'theta2', 'rate2', 'theta3', 'rate3']);
+    expect(strobe.csv.rows.length).toBe(r.strobe.t.length);
+    expect(strobe.csv.rows.length).toBeGreaterThan(5);
+    const chain = r.chain;
+    if (!chain) throw new Error('chain motion missing');
+    expect(strobe.csv.rows[2][4]).toBeCloseTo((chain.strobeRate[1][2] * 180) / Math.PI, 9);
+    expect(Array.from(r.strobe.rate)).toEqual(Array.from(chain.strobeRate[0]));
   });
 
   it('keeps one angle trace for a single body', () => {

@@ -111,6 +111,24 @@ export function phasePortraitPlot(r: MotionResult, units: DisplayUnits): MotionP
 /** The stroboscopic section: angle and rate once per drive period, coloured by time. */
 export function strobePlot(r: MotionResult, units: DisplayUnits): MotionPlot {
   const { factor, unit, rateUnit } = angleUnits(units);
+  const chain = r.chain;
+  if (chain) {
+    const links = Array.from({ length: chain.links }, (_, k) => k);
+    return {
+      data: links.map((k) => ({
+        type: 'scatter', mode: 'markers', name: `link ${k + 1}`, x: scaled(chain.strobeTheta[k], factor), y: scaled(chain.strobeRate[k], factor),
+        marker: { size: 5, color: LINK_COLOURS[k % LINK_COLOURS.length][1] },
+      })),
+      layout: {
+        xaxis: { title: { text: `angle of the link θ at the strobe phase (${unit})` } },
+        yaxis: { title: { text: `rate of the link θ̇ (${rateUnit})` } },
+      },
+      csv: {
+        columns: [{ header: 't', unit: 's' }, ...links.flatMap((k) => [{ header: `theta${k + 1}`, unit }, { header: `rate${k + 1}`, unit: rateUnit }])],
+        rows: Array.from(r.strobe.t, (t, i) => [t, ...links.flatMap((k) => [chain.strobeTheta[k][i] * factor, chain.strobeRate[k][i] * factor])]),
+      },
+    };
+  }
   const data: PlotSpec[] = [
     {
       type: 'scatter',
