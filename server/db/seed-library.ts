@@ -98,6 +98,12 @@ function demoCases(): DemoCase[] {
       revisions: [{ params: arm, note: 'Sideways drive, started near hanging down.' }],
     },
     {
+      title: DEMO_RIGS.find((r) => r.id === 'two-link-shaker')?.title ?? 'Two hinged rods on a shaker',
+      tags: ['chain', 'shaker', 'demo'],
+      author: 'analyst',
+      revisions: [{ params: rig('two-link-shaker'), note: 'Two links as built: 200 mm rod, 150 mm rod hinged on its tip.' }],
+    },
+    {
       title: 'Teaching rod: point mass on a sine drive',
       tags: ['teaching'],
       author: 'analyst',

@@ -28,7 +28,16 @@ describe('demo seed of the case library', () => {
   it('is idempotent', async () => {
     expect(firstSeeded).toBeGreaterThan(0);
     expect(secondSeeded).toBe(0);
-    expect(await CaseRecord.count()).toBe(4);
+    expect(await CaseRecord.count()).toBe(5);
+  });
+
+  it('holds a two-link chain with both links and a stored motion run', async () => {
+    const chain = await CaseRecord.findOne({ where: { title: 'Two hinged rods on a shaker' } });
+    const revision = await Revision.findOne({ where: { caseId: chain?.id ?? '' } });
+    const body = (revision?.params as { body?: { kind?: string; links?: unknown[] } } | undefined)?.body;
+    expect(body?.kind).toBe('chain');
+    expect(body?.links).toHaveLength(2);
+    expect(await Run.count({ where: { revisionId: revision?.id ?? '' } })).toBeGreaterThan(0);
   });
 
   it('stores several revisions with runs whose digests the engine reproduces', async () => {
