@@ -19,15 +19,10 @@ import { resolve } from 'node:path';
 
 import { DESKTOP, NARROW, launchBrowser, screenshot as saveScreenshot, type TestBrowser } from './support/browser';
 import { contrastRatio, textAndBackground } from './support/axe';
-import { DEMO_ACCOUNTS, DEMO_LAB_NAME, startE2eServer, type E2eServer } from './support/server';
+import { DEMO_LAB_NAME, startE2eServer, type E2eServer } from './support/server';
+import { apiClient, demoAccount } from './support/api-client';
 
 const CASE_TITLE = 'Tall rod on the long-stroke shaker';
-
-function account(role: string): { email: string; name: string; password: string } {
-  const found = DEMO_ACCOUNTS.find((a) => a.role === role);
-  if (!found) throw new Error(`no demo ${role}`);
-  return found;
-}
 
 /** This file's screenshots, in their own folder so other browser tests running alongside leave them alone. */
 const SHOTS = process.env['QP_E2E_SHOTS'] ?? resolve(__dirname, '..', '..', 'test-results', 'library');
@@ -37,32 +32,14 @@ async function screenshot(page: Page, name: string): Promise<void> {
 }
 
 let server: E2eServer;
+const { api, tokenOf } = apiClient(() => server.baseUrl);
 let browser: TestBrowser;
 let caseId = '';
 let visitorUrl = '';
 let r1Margins: ReturnType<typeof engineRun>;
 
-async function api<T>(path: string, init: { token?: string; method?: string; body?: unknown } = {}): Promise<{ status: number; body: T }> {
-  const response = await fetch(`${server.baseUrl}${path}`, {
-    method: init.method ?? (init.body === undefined ? 'GET' : 'POST'),
-    headers: {
-      ...(init.body === undefined ? {} : { 'Content-Type': 'application/json' }),
-      ...(init.token ? { Authorization: `Bearer ${init.token}` } : {}),
-    },
-    body: init.body === undefined ? undefined : JSON.stringify(init.body),
-  });
-  const text = await response.text();
-  return { status: response.status, body: (text ? JSON.parse(text) : null) as T };
-}
-
-async function tokenOf(role: string): Promise<string> {
-  const { email, password } = account(role);
-  const { body } = await api<{ token: string }>('/api/auth/sign-in', { body: { email, password } });
-  return body.token;
-}
-
 async function signIn(page: Page, role: string, returnUrl: string): Promise<void> {
-  const { email, password } = account(role);
+  const { email, password } = demoAccount(role);
   await page.goto(`${server.baseUrl}/sign-in?returnUrl=${encodeURIComponent(returnUrl)}`);
   await page.getByLabel('Email').fill(email);
   await page.getByLabel('Password', { exact: true }).fill(password);
@@ -86,7 +63,7 @@ beforeAll(async () => {
   // The seed has no site admin; the lab owner doubles as one here so the mail sink can be read.
   const db = new Client({ connectionString: server.databaseUrl });
   await db.connect();
-  await db.query('UPDATE users SET is_site_admin = true WHERE email = $1', [account('owner').email]);
+  await db.query('UPDATE users SET is_site_admin = true WHERE email = $1', [demoAccount('owner').email]);
   await db.end();
 
   // The stored case the analyst starts from: a demo rig, kept short so reruns take a few seconds.
@@ -243,8 +220,8 @@ describe('case library', () => {
 
   it('delivered both notices to the local mail sink', async () => {
     const owner = await tokenOf('owner');
-    const reviewer = account('reviewer').email;
-    const analyst = account('analyst').email;
+    const reviewer = demoAccount('reviewer').email;
+    const analyst = demoAccount('analyst').email;
     type Mail = { to: string[] | string; subject: string };
     const received = async () => {
       const { body } = await api<{ items: Mail[] } | Mail[]>('/api/admin/mails', { token: owner });
@@ -385,7 +362,7 @@ describe('case library', () => {
     const page = await browser.newPage(DESKTOP);
     await signIn(page, 'analyst', `/cases/${caseId}/r/${rev}/history`);
     const check = page.locator('qp-stored-runs-table td.check');
-    await expect.poll(async () => { await page.reload(); await check.first().waitFor(); return (await check.first().textContent())?.trim(); }, { timeout: 60_000, intervals: [2_000] })
+    await expect.poll(async () => { await page.reload(); await check.first().waitFor(); return (await check.first().textContent())?.trim(); }, { timeout: 60_000, interval: 2_000 })
       .toBe('Unreproduced: 1 number differs');
     await screenshot(page, 'history-unreproduced-desktop');
 

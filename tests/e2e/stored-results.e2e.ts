@@ -12,41 +12,18 @@ import type { CaseParams } from '../../shared/case/case-schema';
 import { demoRigCase } from '../../shared/case/templates';
 import { computeRun, makeRunRecord, type RunSettings } from '../../shared/engine/run-record';
 import { DESKTOP, NARROW, launchBrowser, screenshot as saveScreenshot, type TestBrowser } from './support/browser';
-import { DEMO_ACCOUNTS, DEMO_LAB_NAME, startE2eServer, type E2eServer } from './support/server';
+import { DEMO_LAB_NAME, startE2eServer, type E2eServer } from './support/server';
+import { apiClient, demoAccount } from './support/api-client';
 
 const CASE_TITLE = 'Stored tall rod';
 const SWEEP_POINTS = 5;
 const SHOTS = process.env['QP_E2E_SHOTS'] ?? resolve(__dirname, '..', '..', 'test-results', 'stored-results');
 
 let server: E2eServer;
+const { api, tokenOf } = apiClient(() => server.baseUrl);
 let browser: TestBrowser;
 let caseId = '';
 let linkUrl = '';
-
-function account(role: string): { email: string; name: string; password: string } {
-  const found = DEMO_ACCOUNTS.find((a) => a.role === role);
-  if (!found) throw new Error(`no demo ${role}`);
-  return found;
-}
-
-async function api<T>(path: string, init: { token?: string; body?: unknown } = {}): Promise<{ status: number; body: T }> {
-  const response = await fetch(`${server.baseUrl}${path}`, {
-    method: init.body === undefined ? 'GET' : 'POST',
-    headers: {
-      ...(init.body === undefined ? {} : { 'Content-Type': 'application/json' }),
-      ...(init.token ? { Authorization: `Bearer ${init.token}` } : {}),
-    },
-    body: init.body === undefined ? undefined : JSON.stringify(init.body),
-  });
-  const text = await response.text();
-  return { status: response.status, body: (text ? JSON.parse(text) : null) as T };
-}
-
-async function tokenOf(role: string): Promise<string> {
-  const { email, password } = account(role);
-  const { body } = await api<{ token: string }>('/api/auth/sign-in', { body: { email, password } });
-  return body.token;
-}
 
 /** A run record computed by the engine here, as the browser would post it. */
 function engineRun(params: CaseParams, settings: RunSettings) {
@@ -90,7 +67,7 @@ async function workerUse(page: Page): Promise<{ made: number; posted: number }> 
 }
 
 async function signIn(page: Page, role: string): Promise<void> {
-  const { email, password } = account(role);
+  const { email, password } = demoAccount(role);
   await page.goto(`${server.baseUrl}/sign-in?returnUrl=${encodeURIComponent('/library')}`);
   await page.getByLabel('Email').fill(email);
   await page.getByLabel('Password', { exact: true }).fill(password);

@@ -72,27 +72,34 @@ export function angleTimePlot(r: MotionResult, units: DisplayUnits): MotionPlot 
   return { data, layout, csv };
 }
 
+/** Every link's rate against its angle (a phase portrait or a stroboscopic section), each link in its colour. */
+function linkPhasePlot(
+  t: Float64Array, theta: Float64Array[], rate: Float64Array[], mode: 'lines' | 'markers', where: string, units: DisplayUnits,
+): MotionPlot {
+  const { factor, unit, rateUnit } = angleUnits(units);
+  const links = theta.map((_, k) => k);
+  const colour = (k: number) => LINK_COLOURS[k % LINK_COLOURS.length][1];
+  return {
+    data: links.map((k) => ({
+      type: 'scatter', mode, name: `link ${k + 1}`, x: scaled(theta[k], factor), y: scaled(rate[k], factor),
+      ...(mode === 'lines' ? { line: { width: 1, color: colour(k) } } : { marker: { size: 5, color: colour(k) } }),
+    })),
+    layout: {
+      xaxis: { title: { text: `angle of the link θ${where} (${unit})` } },
+      yaxis: { title: { text: `rate of the link θ̇ (${rateUnit})` } },
+    },
+    csv: {
+      columns: [{ header: 't', unit: 's' }, ...links.flatMap((k) => [{ header: `theta${k + 1}`, unit }, { header: `rate${k + 1}`, unit: rateUnit }])],
+      rows: Array.from(t, (time, i) => [time, ...links.flatMap((k) => [theta[k][i] * factor, rate[k][i] * factor])]),
+    },
+  };
+}
+
 /** Rate against angle, full and slow motion; a chain's every link (full motion). */
 export function phasePortraitPlot(r: MotionResult, units: DisplayUnits): MotionPlot {
   const { factor, unit, rateUnit } = angleUnits(units);
   const chain = r.chain;
-  if (chain) {
-    const links = Array.from({ length: chain.links }, (_, k) => k);
-    return {
-      data: links.map((k) => ({
-        type: 'scatter', mode: 'lines', name: `link ${k + 1}`, x: scaled(chain.theta[k], factor), y: scaled(chain.rate[k], factor),
-        line: { width: 1, color: LINK_COLOURS[k % LINK_COLOURS.length][1] },
-      })),
-      layout: {
-        xaxis: { title: { text: `angle of the link θ (${unit})` } },
-        yaxis: { title: { text: `rate of the link θ̇ (${rateUnit})` } },
-      },
-      csv: {
-        columns: [{ header: 't', unit: 's' }, ...links.flatMap((k) => [{ header: `theta${k + 1}`, unit }, { header: `rate${k + 1}`, unit: rateUnit }])],
-        rows: Array.from(r.series.t, (t, i) => [t, ...links.flatMap((k) => [chain.theta[k][i] * factor, chain.rate[k][i] * factor])]),
-      },
-    };
-  }
+  if (chain) return linkPhasePlot(r.series.t, chain.theta, chain.rate, 'lines', '', units);
   const data: PlotSpec[] = [
     { type: 'scatter', mode: 'lines', name: 'full motion', x: scaled(r.series.theta, factor), y: scaled(r.series.rate, factor), line: { width: 1, color: '#7a8fa6' } },
     { type: 'scatter', mode: 'lines', name: 'slow motion', x: scaled(r.slow.theta, factor), y: scaled(r.slow.rate, factor), line: { width: 2, color: '#0b6e69' } },
@@ -112,23 +119,7 @@ export function phasePortraitPlot(r: MotionResult, units: DisplayUnits): MotionP
 export function strobePlot(r: MotionResult, units: DisplayUnits): MotionPlot {
   const { factor, unit, rateUnit } = angleUnits(units);
   const chain = r.chain;
-  if (chain) {
-    const links = Array.from({ length: chain.links }, (_, k) => k);
-    return {
-      data: links.map((k) => ({
-        type: 'scatter', mode: 'markers', name: `link ${k + 1}`, x: scaled(chain.strobeTheta[k], factor), y: scaled(chain.strobeRate[k], factor),
-        marker: { size: 5, color: LINK_COLOURS[k % LINK_COLOURS.length][1] },
-      })),
-      layout: {
-        xaxis: { title: { text: `angle of the link θ at the strobe phase (${unit})` } },
-        yaxis: { title: { text: `rate of the link θ̇ (${rateUnit})` } },
-      },
-      csv: {
-        columns: [{ header: 't', unit: 's' }, ...links.flatMap((k) => [{ header: `theta${k + 1}`, unit }, { header: `rate${k + 1}`, unit: rateUnit }])],
-        rows: Array.from(r.strobe.t, (t, i) => [t, ...links.flatMap((k) => [chain.strobeTheta[k][i] * factor, chain.strobeRate[k][i] * factor])]),
-      },
-    };
-  }
+  if (chain) return linkPhasePlot(r.strobe.t, chain.strobeTheta, chain.strobeRate, 'markers', ' at the strobe phase', units);
   const data: PlotSpec[] = [
     {
       type: 'scatter',
