@@ -3,7 +3,7 @@ import { driveKinematics } from '../../shared/engine/drive';
 import type { Drive } from '../../shared/case/case-schema';
 import { expectNear, expectRelative } from './check';
 
-// Source: crank-slider kinematics, any machine-design handbook (REFERENCES.md): slider position
+// Source: crank-slider kinematics, any machine-design handbook (docs/physics.md): slider position
 // x = r cos(wt) + sqrt(l^2 - r^2 sin^2(wt)); stroke 2r; l -> infinity gives the sine r cos(wt).
 
 const r = 0.02;

@@ -3,7 +3,7 @@ import { simulateMotion } from '../../shared/engine/motion';
 import { templateCase } from '../../shared/case/templates';
 import { expectNear } from './check';
 
-// Source: damping from a measured decay, common practice (REFERENCES.md): logarithmic decrement
+// Source: damping from a measured decay, common practice (docs/physics.md): logarithmic decrement
 // delta = ln(x_k / x_{k+1}) between successive peaks, zeta = delta / sqrt(4 pi^2 + delta^2).
 
 describe('logarithmic decrement of a free decay gives back the damping ratio (common practice)', () => {

@@ -31,7 +31,7 @@ describe('drive limits of the upright from Floquet multipliers', () => {
     expect(Math.abs(f / averaged - 1), `Floquet ${f} Hz vs averaged ${averaged} Hz`).toBeLessThan(1e-3);
   });
 
-  it('a body with a 1.2 Hz free swing on a 2 cm drive needs roughly 15 Hz (REFERENCES.md, facts of the trade)', () => {
+  it('a body with a 1.2 Hz free swing on a 2 cm drive needs roughly 15 Hz (docs/physics.md, facts of the trade)', () => {
     const c = templateCase();
     const rig: CaseParams = {
       ...c,

@@ -9,7 +9,7 @@ import type { CaseParams } from '../../shared/case/case-schema';
 import { expectNear, expectRelative } from './check';
 
 // Source: Abramowitz & Stegun ch. 17 (complete elliptic integral K) and ch. 16 (Jacobi elliptic functions), as
-// listed in REFERENCES.md, computed by @stdlib/math-base-special-ellipk and -ellipj. A free pendulum swinging
+// listed in docs/physics.md, computed by @stdlib/math-base-special-ellipk and -ellipj. A free pendulum swinging
 // to amplitude theta0 from the downward vertical has period T = 4 sqrt(L/g) K(m), m = sin^2(theta0/2), and
 // phi(t) = 2 arcsin(k sn(K - omega0 t | m)), k = sqrt(m), when released at rest from phi = theta0.
 

@@ -7,7 +7,7 @@ import type { CaseParams } from '../../shared/case/case-schema';
 import { expectNear } from './check';
 
 // Source: an independent integrator, the fifth-order Cash-Karp Runge-Kutta of the ode45-cash-karp package
-// (REFERENCES.md asks for two integrators agreeing), against odex on driven nonlinear cases.
+// (docs/physics.md asks for two integrators agreeing), against odex on driven nonlinear cases.
 
 const rtol = 1e-12;
 

@@ -6,7 +6,7 @@ import type { CaseParams } from '../../shared/case/case-schema';
 import { expectNear, expectRelative } from './check';
 
 // Source for every check in this file: P. L. Kapitza, Zh. Eksp. Teor. Fiz. 21, 588 (1951); L. D. Landau &
-// E. M. Lifshitz, Mechanics, section 30 (REFERENCES.md): the upright holds with a vertical drive iff
+// E. M. Lifshitz, Mechanics, section 30 (docs/physics.md): the upright holds with a vertical drive iff
 // a^2 w^2 > 2 g L, slow frequency Omega^2 = a^2 w^2 / (2 L^2) - g / L; horizontal drive tilts the body to
 // cos(phi*) = 2 g L / (a^2 w^2), phi* from the downward vertical.
 

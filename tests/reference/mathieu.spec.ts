@@ -11,7 +11,7 @@ function expectClose(value: number, reference: number, relTol: number, what: str
 }
 
 // Source: M. Abramowitz & I. Stegun, Handbook of Mathematical Functions (1964), Table 20.1 (DLMF section 28),
-// the 10-digit values listed in REFERENCES.md.
+// the 10-digit values listed in docs/physics.md.
 const TABLE_20_1 = [
   { q: 1, a0: -0.4551386041, b1: -0.1102488170, a1: 1.859108073, b2: 3.917024773, a2: 4.371300983 },
   { q: 5, a0: -5.800046021, b1: -5.790080599, a1: 1.858187542, b2: 2.099460445, a2: 7.449109740 },

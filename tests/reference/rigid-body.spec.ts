@@ -2,7 +2,7 @@ import { describe, it } from 'vitest';
 import { bodyProperties } from '../../shared/engine/body';
 import { expectRelative } from './check';
 
-// Source: rigid (physical) pendulum, any mechanics handbook (REFERENCES.md): L = I_pivot / (m d); a uniform rod
+// Source: rigid (physical) pendulum, any mechanics handbook (docs/physics.md): L = I_pivot / (m d); a uniform rod
 // hinged at its end has L = 2/3 of its length; a solid sphere of radius R centred at D has I = (2/5) m R^2 + m D^2.
 
 const g = 9.80665;

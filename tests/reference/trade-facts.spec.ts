@@ -6,7 +6,7 @@ import { templateCase } from '../../shared/case/templates';
 import type { CaseParams } from '../../shared/case/case-schema';
 import { expectNear } from './check';
 
-// Source: facts of the trade (REFERENCES.md, common practice, no published source): a body whose free small swing
+// Source: facts of the trade (docs/physics.md, common practice, no published source): a body whose free small swing
 // is 1.2 Hz has an equivalent length of about 17 cm; on a 2 cm (amplitude) vertical drive it needs roughly 15 Hz to
 // stay upright.
 
