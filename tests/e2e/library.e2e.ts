@@ -166,6 +166,7 @@ describe('case library', () => {
     await page.getByLabel('Message (optional)').fill('Amplitude raised to 9 mm; please confirm it still holds.');
     await page.getByRole('button', { name: 'Send request' }).click();
     await expect.poll(() => page.locator('.card-head qp-recheck-chip').first().textContent()).toContain('Awaiting recheck');
+    await page.locator('mat-dialog-container').waitFor({ state: 'detached' });
     await screenshot(page, 'history-desktop');
   }, 180_000);
 

@@ -60,6 +60,18 @@ export async function screenshot(page: Page, name: string, options: { dir?: stri
   const dir = options.dir ?? SCREENSHOT_DIR;
   mkdirSync(dir, { recursive: true });
   const path = join(dir, `${name}.png`);
+  // A dialog that is closing hides the page from screen readers (aria-hidden on the overlay's siblings) until its
+  // animation ends; let such transient states settle first. A lasting one still reaches axe below.
+  await page
+    .waitForFunction(
+      () =>
+        !Array.from(document.querySelectorAll('[aria-hidden="true"]')).some((el) =>
+          el.querySelector('a[href], button:not([disabled]), input:not([disabled]), select, textarea, [tabindex]:not([tabindex="-1"])'),
+        ),
+      undefined,
+      { timeout: 3_000 },
+    )
+    .catch(() => undefined);
   await page.screenshot({ path, fullPage: true });
   if (options.axe !== false) await expectAccessible(page, `${name} (${page.viewportSize()?.width ?? '?'} px wide, ${page.url()})`);
   return path;
