@@ -8,6 +8,8 @@ import type { CaseParams } from '../case/case-schema';
 import { stabilityChartRows, type Grid2 } from './chart';
 import { fitFreeSwing, type FitModel, type FitResult } from './fit';
 import { floquetAnalysis, type FloquetAnalysis } from './floquet';
+import { axisValues } from './chart';
+import { leanestColumns, leanestRefine, type LeanestOptimum, type LeanestPoint, type LeanestSpec } from './leanest';
 import { EngineCancelledError, simulateMotion, type MotionResult } from './motion';
 import { overlayDrivenTrace, type OverlayResult } from './trace-drive';
 import {
@@ -81,13 +83,34 @@ export interface OverlayTask {
   holdLimit?: number;
 }
 
+/**
+ * Leanest drive, coarse pass: the cheapest admissible drive at chart columns [from, to) with their admissible
+ * cells, or (no range) at the given extra frequencies (the envelope's frequency ends) without cells.
+ */
+export interface LeanestPointsTask {
+  type: 'leanest-points';
+  params: CaseParams;
+  spec: LeanestSpec;
+  part: { kind: 'columns'; from: number; to: number } | { kind: 'frequencies'; frequencies: number[] };
+}
+
+/** Leanest drive, refinement from the coarse points: edges, golden section, the optimum described. */
+export interface LeanestRefineTask {
+  type: 'leanest-refine';
+  params: CaseParams;
+  spec: LeanestSpec;
+  points: LeanestPoint[];
+}
+
 export type EngineTask =
-  | FitTask | OverlayTask | MotionTask | MarginsTask | SweepChunkTask | ChartChunkTask | BasinChunkTask | MapChunkTask;
+  | FitTask | OverlayTask | MotionTask | MarginsTask | SweepChunkTask | ChartChunkTask | BasinChunkTask | MapChunkTask
+  | LeanestPointsTask | LeanestRefineTask;
 
 export type EngineTaskType = EngineTask['type'];
 
 export const ENGINE_TASK_TYPES: readonly EngineTaskType[] = [
   'fit', 'overlay', 'motion', 'margins', 'sweep-chunk', 'chart-chunk', 'basin-chunk', 'map-chunk',
+  'leanest-points', 'leanest-refine',
 ];
 
 /** Result payloads, one per task type. */
@@ -100,7 +123,9 @@ export type TaskResult =
   | { kind: 'basin-rows'; rowFrom: number; rowTo: number; cells: BasinCell[] }
   | { kind: 'map-rows'; rowFrom: number; rowTo: number; cells: MapCell[] }
   | { kind: 'fit'; fit: FitResult }
-  | { kind: 'overlay'; overlay: OverlayResult };
+  | { kind: 'overlay'; overlay: OverlayResult }
+  | { kind: 'leanest-points'; part: LeanestPointsTask['part']; points: LeanestPoint[]; cells: Float64Array }
+  | { kind: 'leanest-optimum'; optimum: LeanestOptimum | null };
 
 /**
  * Computes one task (its case already validated). Throws EngineCancelledError when `shouldCancel` turns true, and
@@ -143,5 +168,14 @@ export function computeTask(task: EngineTask, hooks: ChunkHooks = {}): TaskResul
         kind: 'map-rows', rowFrom: task.rowFrom, rowTo: task.rowTo,
         cells: outcomeMapRows(params, task.grid, task.rowFrom, task.rowTo, hooks),
       };
+    case 'leanest-points': {
+      const { spec, part } = task;
+      const { points, cells } = part.kind === 'columns'
+        ? leanestColumns(params, spec, Array.from(axisValues(spec.grid.x).subarray(part.from, part.to)), axisValues(spec.grid.y), hooks)
+        : leanestColumns(params, spec, part.frequencies, null, hooks);
+      return { kind: 'leanest-points', part, points, cells };
+    }
+    case 'leanest-refine':
+      return { kind: 'leanest-optimum', optimum: leanestRefine(params, task.spec, task.points, hooks) };
   }
 }

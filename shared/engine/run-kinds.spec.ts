@@ -3,13 +3,14 @@ import { describe, expect, it } from 'vitest';
 import { demoRigCase, templateCase, type CaseParams } from '../case';
 import { handleEngineRequest } from '../compute/handle-request';
 import { WorkerPool, type WorkerLike } from '../compute/worker-pool';
-import { stabilityChart } from './chart';
+import { axisValues, stabilityChart } from './chart';
+import { assembleLeanest, leanestColumns, leanestEdgeFrequencies, leanestRefine } from './leanest';
 import { floquetAnalysis } from './floquet';
 import { simulateMotion } from './motion';
 import { resultDigest } from './run-record';
 import {
   computeRun, defaultRunSettings, MAX_CHART_COUNT, MAX_MAP_COUNT, MAX_SWEEP_STEPS, parseRunSettings, parseRunSettingsFor,
-  RUN_KINDS, type RunKind, type RunResult, type RunSettings,
+  leanestSpecOf, RUN_KINDS, type RunKind, type RunResult, type RunSettings,
 } from './run-kinds';
 import {
   assembleCellMap, assembleSweep, basinMapRows, outcomeMapRows, sweepPoints, sweepThresholds, thresholdBrackets,
@@ -27,6 +28,13 @@ function smallSettings(kind: RunKind, c: CaseParams): RunSettings {
   if (s.kind === 'chart') return { ...s, grid: { x: { ...s.grid.x, count: 12 }, y: { ...s.grid.y, count: 10 } } };
   if (s.kind === 'map') return { ...s, grid: { x: { ...s.grid.x, count: 3 }, y: { ...s.grid.y, count: 3 } } };
   if (s.kind === 'basin') return { ...s, grid: { x: { ...s.grid.x, count: 3 }, y: { ...s.grid.y, count: 3 } } };
+  // Nine columns (three tasks of four and one of one) and an envelope end inside the range (an extra task).
+  if (s.kind === 'leanest') {
+    return {
+      ...s, relTolerance: 1e-4, envelope: { kind: 'shaker', minFrequency: 1.1 * s.grid.x.from },
+      grid: { x: { ...s.grid.x, count: 9 }, y: { ...s.grid.y, count: 5 } },
+    };
+  }
   return s;
 }
 
@@ -50,6 +58,13 @@ function directRun(c: CaseParams, s: RunSettings): RunResult {
       return { kind: 'map', value: assembleCellMap(s.grid, outcomeMapRows(c, s.grid, 0, s.grid.y.count)) };
     case 'basin':
       return { kind: 'basin', value: assembleCellMap(s.grid, basinMapRows(c, s.grid, 0, s.grid.y.count)) };
+    case 'leanest': {
+      const spec = leanestSpecOf(s);
+      const columns = leanestColumns(c, spec, Array.from(axisValues(s.grid.x)), axisValues(s.grid.y));
+      const extra = leanestColumns(c, spec, leanestEdgeFrequencies(c, spec), null).points;
+      const optimum = leanestRefine(c, spec, [...columns.points, ...extra]);
+      return { kind: 'leanest', value: assembleLeanest(spec, stabilityChart(c, s.grid), columns.points, columns.cells, optimum) };
+    }
   }
 }
 
@@ -90,6 +105,7 @@ describe('run registry: one job per kind', () => {
 
 describe('run settings schema', () => {
   const c = templateCase();
+  const leanestBase = () => defaultRunSettings('leanest', c);
 
   it.each(RUN_KINDS)('accepts the default %s settings', (kind) => {
     expect(parseRunSettings(defaultRunSettings(kind, c))).toEqual({ ok: true, value: defaultRunSettings(kind, c) });
@@ -109,6 +125,11 @@ describe('run settings schema', () => {
     ['a map over one field twice', { kind: 'map', grid: { x: { field: 'drive.frequency', from: 10, to: 20, count: 3 }, y: { field: 'drive.frequency', from: 30, to: 40, count: 3 } } }, 'grid.y.field', /differ/],
     ['a basin over other fields', { kind: 'basin', grid: { x: { field: 'drive.frequency', from: 10, to: 20, count: 3 }, y: { field: 'start.rate', from: -1, to: 1, count: 3 } } }, 'grid.x.field', /.+/],
     ['a margins tolerance of zero', { kind: 'margins', relTolerance: 0 }, 'relTolerance', /1e-14/],
+    ['a leanest margin of 100 %', { ...leanestBase(), marginPercent: 100 }, 'marginPercent', /at most 90/],
+    ['a leanest cost nobody offers', { ...leanestBase(), cost: 'noise' }, 'cost', /one of/],
+    ['a crank whose largest radius is below its smallest', { ...leanestBase(), envelope: { kind: 'crank', minRadius: 0.02, maxRadius: 0.01 } }, 'envelope.maxRadius', /above minRadius/],
+    ['a shaker force of zero', { ...leanestBase(), envelope: { kind: 'shaker', ratedForce: 0 } }, 'envelope.ratedForce', /above zero/],
+    ['a leanest search from zero frequency', { ...leanestBase(), grid: { ...leanestBase().grid, x: { field: 'drive.frequency', from: 0, to: 20, count: 5 } } }, 'grid.x.from', /above zero/],
     ['a non-number limit', { kind: 'sweep', spec: { field: 'drive.amplitude', from: '0.001', to: 0.01, steps: 5 } }, 'spec.from', /finite number/],
   ])('refuses %s, naming the field', (_what, input, field, reason) => {
     const r = parseRunSettings(input);

@@ -11,6 +11,9 @@ import { z } from 'zod';
 import type { CaseParams } from '../case/case-schema';
 import { SWEEPABLE_FIELDS, sweepableFieldsFor } from '../case/case-fields';
 import { assembleChart, defaultChartGrid, type StabilityChart } from './chart';
+import {
+  assembleLeanest, leanestEdgeFrequencies, type LeanestEnvelope, type LeanestPoint, type LeanestResult, type LeanestSpec,
+} from './leanest';
 import type { TaskResult } from './engine-task';
 import { MULTIPLIER_UNIT_TOLERANCE, type FloquetAnalysis } from './floquet';
 import type { MotionResult } from './motion';
@@ -33,6 +36,10 @@ export const MAX_MAP_COUNT = 200;
 export const CHART_ROWS_PER_CHUNK = 8;
 export const MAP_ROWS_PER_CHUNK = 1;
 export const SWEEP_POINTS_PER_CHUNK = 2;
+/** Most samples per axis of a leanest-drive search (each column is a Floquet limit search). */
+export const MAX_LEANEST_COUNT = 120;
+/** Chart columns per task of a leanest-drive search. */
+export const LEANEST_COLUMNS_PER_CHUNK = 4;
 
 const SWEEPABLE_PATHS = SWEEPABLE_FIELDS.map((f) => f.path);
 const fieldPath = z.string().refine((p) => SWEEPABLE_PATHS.includes(p), {
@@ -99,12 +106,89 @@ export const basinSettingsSchema = z.strictObject({
   }),
 });
 
+const positive = z.number({ message: 'must be a finite number' }).positive({ message: 'must be above zero' });
+const ordered = <T extends Record<string, unknown>>(lo: keyof T & string, hi: keyof T & string) => ({
+  check: (v: T) => v[lo] === undefined || v[hi] === undefined || Number(v[lo]) < Number(v[hi]),
+  message: { message: `must be above ${lo}`, path: [hi] },
+});
+const positiveAxis = <F extends z.ZodType<string>>(field: F) =>
+  axisSchema(field, MAX_LEANEST_COUNT)
+    .refine((a) => a.from > 0 && a.to > 0 && a.from !== a.to, { message: 'must be above zero and differ from to', path: ['from'] });
+const shakerEnvelopeSchema = z.strictObject({
+  kind: z.literal('shaker'),
+  ratedForce: positive.optional(),
+  maxStroke: positive.optional(),
+  maxVelocity: positive.optional(),
+  minFrequency: positive.optional(),
+  maxFrequency: positive.optional(),
+});
+const crankEnvelopeSchema = z.strictObject({
+  kind: z.literal('crank'),
+  minRadius: positive.optional(),
+  maxRadius: positive.optional(),
+  /** Hz (rev/s): the motor's speed range */
+  minSpeed: positive.optional(),
+  maxSpeed: positive.optional(),
+});
+const shakerOrder = ordered<z.infer<typeof shakerEnvelopeSchema>>('minFrequency', 'maxFrequency');
+const radiusOrder = ordered<z.infer<typeof crankEnvelopeSchema>>('minRadius', 'maxRadius');
+const speedOrder = ordered<z.infer<typeof crankEnvelopeSchema>>('minSpeed', 'maxSpeed');
+/** The drive hardware's limits: none, a shaker's ratings, or a motor and crank's ranges (SI). */
+export const leanestEnvelopeSchema = z.discriminatedUnion('kind', [
+  z.strictObject({ kind: z.literal('none') }),
+  shakerEnvelopeSchema.refine(shakerOrder.check, shakerOrder.message),
+  crankEnvelopeSchema.refine(radiusOrder.check, radiusOrder.message).refine(speedOrder.check, speedOrder.message),
+]);
+export const LEANEST_COSTS = ['acceleration', 'stroke', 'force', 'power'] as const;
+export const leanestSettingsSchema = z.strictObject({
+  kind: z.literal('leanest'),
+  /** percent: wanted amplitude margin above the lower limit and below the upper */
+  marginPercent: z.number({ message: 'must be a finite number' }).min(0, { message: 'must be at least 0' })
+    .max(90, { message: 'must be at most 90' }),
+  cost: z.enum(LEANEST_COSTS, { message: `must be one of ${LEANEST_COSTS.join(', ')}` }),
+  grid: z.strictObject({ x: positiveAxis(onlyField('drive.frequency')), y: positiveAxis(onlyField('drive.amplitude')) }),
+  /** kg moving with the pivot besides the body */
+  movingMass: z.number({ message: 'must be a finite number' }).min(0, { message: 'must be at least 0' })
+    .max(1e6, { message: 'must be at most 1000000' }),
+  envelope: leanestEnvelopeSchema,
+  relTolerance: z.number().min(1e-10, { message: 'must be at least 1e-10' }).max(1e-2, { message: 'must be at most 0.01' }),
+});
+
 export type MotionSettings = z.infer<typeof motionSettingsSchema>;
 export type MarginsSettings = z.infer<typeof marginsSettingsSchema>;
 export type SweepSettings = z.infer<typeof sweepSettingsSchema>;
 export type ChartSettings = z.infer<typeof chartSettingsSchema>;
 export type MapSettings = z.infer<typeof mapSettingsSchema>;
 export type BasinSettings = z.infer<typeof basinSettingsSchema>;
+export type LeanestSettings = z.infer<typeof leanestSettingsSchema>;
+
+/** The engine's form of leanest-drive settings: one flat envelope in SI. */
+export function leanestSpecOf(settings: LeanestSettings): LeanestSpec {
+  const e = settings.envelope;
+  let envelope: LeanestEnvelope = {};
+  if (e.kind === 'shaker') {
+    envelope = {
+      ratedForce: e.ratedForce, maxStroke: e.maxStroke, maxVelocity: e.maxVelocity,
+      minFrequency: e.minFrequency, maxFrequency: e.maxFrequency,
+    };
+  } else if (e.kind === 'crank') {
+    envelope = { minAmplitude: e.minRadius, maxAmplitude: e.maxRadius, minFrequency: e.minSpeed, maxFrequency: e.maxSpeed };
+  }
+  // Absent limits stay absent (no undefined keys), so the spec is the same however it travelled.
+  const defined = Object.fromEntries(Object.entries(envelope).filter(([, v]) => v !== undefined)) as LeanestEnvelope;
+  return {
+    marginPercent: settings.marginPercent, cost: settings.cost, grid: settings.grid, movingMass: settings.movingMass,
+    envelope: defined, relTolerance: settings.relTolerance,
+  };
+}
+
+/** Default leanest-drive settings: +15 % on the chart's default frequency-by-amplitude rectangle, 40 by 40. */
+export function defaultLeanestSettings(params: CaseParams): LeanestSettings {
+  return {
+    kind: 'leanest', marginPercent: 15, cost: 'acceleration', grid: defaultChartGrid(params, 40) as LeanestSettings['grid'],
+    movingMass: 0, envelope: { kind: 'none' }, relTolerance: 1e-6,
+  };
+}
 
 /** A finished row range of a chunked chart or map, for plots that fill in while the job runs. */
 export interface RowsPartial<V> {
@@ -121,6 +205,7 @@ export interface RunKindTypes {
   chart: { settings: ChartSettings; value: StabilityChart; partial: RowsPartial<Float64Array> };
   map: { settings: MapSettings; value: CellMap; partial: RowsPartial<MapCell[]> };
   basin: { settings: BasinSettings; value: CellMap; partial: RowsPartial<MapCell[]> };
+  leanest: { settings: LeanestSettings; value: LeanestResult; partial: RowsPartial<Float64Array> };
 }
 
 export type RunKind = keyof RunKindTypes;
@@ -197,6 +282,41 @@ function countOutcomes(cells: readonly MapCell[]): RunSummary {
     summary[key] = Number(summary[key]) + 1;
   }
   return summary;
+}
+
+function* leanestJob(params: CaseParams, settings: LeanestSettings): RunJob<LeanestResult> {
+  const spec = leanestSpecOf(settings);
+  const grid = settings.grid;
+  const chartTasks = rowRanges(grid.y.count, CHART_ROWS_PER_CHUNK).map(([rowFrom, rowTo]) => ({
+    type: 'chart-chunk' as const, params, grid, rowFrom, rowTo,
+  }));
+  const columnTasks = rowRanges(grid.x.count, LEANEST_COLUMNS_PER_CHUNK).map(([from, to]) => ({
+    type: 'leanest-points' as const, params, spec, part: { kind: 'columns' as const, from, to },
+  }));
+  const edges = leanestEdgeFrequencies(params, spec);
+  const edgeTasks = edges.length
+    ? [{ type: 'leanest-points' as const, params, spec, part: { kind: 'frequencies' as const, frequencies: edges } }]
+    : [];
+  const coarse = yield { tasks: [...chartTasks, ...columnTasks, ...edgeTasks], span: [0, 0.7] };
+  const values = new Float64Array(grid.x.count * grid.y.count);
+  const columns: LeanestPoint[] = [];
+  const extra: LeanestPoint[] = [];
+  const cells = new Float64Array(grid.x.count * grid.y.count);
+  for (const r of coarse) {
+    if (r.kind === 'chart-rows') {
+      values.set(r.values, r.rowFrom * grid.x.count);
+      continue;
+    }
+    const p = expectResult(r, 'leanest-points');
+    if (p.part.kind === 'columns') {
+      columns.push(...p.points);
+      cells.set(p.cells, p.part.from * grid.y.count);
+    } else {
+      extra.push(...p.points);
+    }
+  }
+  const [refined] = yield { tasks: [{ type: 'leanest-refine', params, spec, points: [...columns, ...extra] }], span: [0.7, 1] };
+  return assembleLeanest(spec, assembleChart(params, grid, values), columns, cells, expectResult(refined, 'leanest-optimum').optimum);
 }
 
 /** The registry. */
@@ -332,6 +452,32 @@ export const RUN_KIND_REGISTRY: { readonly [K in RunKind]: RunKindDef<K> } = {
     fields: gridFields,
     summarise: (m) => countOutcomes(m.cells),
   },
+  leanest: {
+    settings: leanestSettingsSchema,
+    chunked: true,
+    defaults: defaultLeanestSettings,
+    job: leanestJob,
+    partial: (r) => (r.kind === 'chart-rows' ? { rowFrom: r.rowFrom, rowTo: r.rowTo, values: r.values.slice() } : undefined),
+    fields: gridFields,
+    summarise: (l) => {
+      const o = l.optimum;
+      let feasibleCells = 0;
+      for (const v of l.feasible) feasibleCells += v;
+      return {
+        cost: l.cost,
+        marginPercent: l.marginPercent,
+        feasibleCells,
+        found: o !== null,
+        optimumFrequency: o?.frequency ?? null,
+        optimumAmplitude: o?.amplitude ?? null,
+        optimumCost: o?.cost ?? null,
+        optimumPeakAcceleration: o?.peakAcceleration ?? null,
+        binding: o ? o.binding.join(', ') : null,
+        amplitudeMarginPercent: o?.amplitudeMarginPercent ?? null,
+        frequencyMarginPercent: o?.frequencyMarginPercent ?? null,
+      };
+    },
+  },
 };
 
 export const RUN_KINDS = Object.keys(RUN_KIND_REGISTRY) as readonly RunKind[];
@@ -343,6 +489,7 @@ export function isRunKind(value: unknown): value is RunKind {
 /** Settings of any kind: the kind's strict schema chosen by `kind`. */
 export const runSettingsSchema = z.discriminatedUnion('kind', [
   motionSettingsSchema, marginsSettingsSchema, sweepSettingsSchema, chartSettingsSchema, mapSettingsSchema, basinSettingsSchema,
+  leanestSettingsSchema,
 ]);
 
 /** The registry entry of a kind (typed for that kind). */

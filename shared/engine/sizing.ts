@@ -2,7 +2,7 @@ import type { CaseParams } from '../case/case-schema';
 import { amplitudeForMeanSquare, averagedLowerFrequency } from './averaged';
 import { assertCase } from '../case/validate';
 import { bodyProperties } from './body';
-import { driveKinematics } from './drive';
+import { driveKinematics, type DriveKinematics } from './drive';
 import { portable } from './portable-math';
 
 const { cos, hypot, sin } = portable;
@@ -61,6 +61,30 @@ export interface DriveSizing {
 }
 
 /**
+ * N: pivot force on a body held upright at rest, |m (s'' e + g up)|, at the drive's largest and smallest s''
+ * (the drive line e at beta from the vertical).
+ */
+export function pivotReactionPeak(bodyMass: number, beta: number, g: number, peakAcceleration: number): number {
+  const forceAt = (acc: number) => bodyMass * hypot(acc * sin(beta), acc * cos(beta) + g);
+  return Math.max(forceAt(peakAcceleration), forceAt(-peakAcceleration));
+}
+
+/**
+ * A shaker's load for a drive: force = (moving mass + body mass) x peak acceleration (the rated sine force is
+ * compared with it: vibration-testing practice), stroke and peak velocity, each as a share of its rating. A rating of
+ * Infinity is no limit (its use is 0).
+ */
+export function shakerCheck(
+  kin: Pick<DriveKinematics, 'peakAcceleration' | 'peakVelocity' | 'stroke'>, bodyMass: number, s: ShakerEnvelope,
+): ShakerCheck {
+  const force = (s.movingMass + bodyMass) * kin.peakAcceleration;
+  const forceUse = force / s.maxForce;
+  const strokeUse = kin.stroke / s.maxStroke;
+  const velocityUse = kin.peakVelocity / s.maxVelocity;
+  return { force, stroke: kin.stroke, velocity: kin.peakVelocity, forceUse, strokeUse, velocityUse, fits: forceUse <= 1 && strokeUse <= 1 && velocityUse <= 1 };
+}
+
+/**
  * Drive sizing from the case's drive and body.
  *
  * Method (vibration-testing practice): peak velocity and acceleration of the actual waveform (2 pi f a and
@@ -77,9 +101,7 @@ export function driveSizing(input: CaseParams, options: SizingOptions = {}): Dri
   const L = body.equivalentLength;
   const steadyDrive = { ...params.drive, ramp: undefined };
   const kin = driveKinematics(steadyDrive);
-  const beta = params.drive.direction;
-  const forceAt = (acc: number) => body.mass * hypot(acc * sin(beta), acc * cos(beta) + g);
-  const pivotForcePeak = Math.max(forceAt(kin.peakAcceleration), forceAt(-kin.peakAcceleration));
+  const pivotForcePeak = pivotReactionPeak(body.mass, params.drive.direction, g, kin.peakAcceleration);
   const targetRatio = options.targetRatio ?? 1.5;
   const stiffnessRatio = kin.meanSquareVelocity / (g * L);
 
@@ -87,15 +109,7 @@ export function driveSizing(input: CaseParams, options: SizingOptions = {}): Dri
   const lower = averagedLowerFrequency(params, params.drive.amplitude);
   const frequencyForTarget = lower === null ? null : lower * Math.sqrt(targetRatio);
 
-  let shaker: ShakerCheck | null = null;
-  if (options.shaker) {
-    const s = options.shaker;
-    const force = (s.movingMass + body.mass) * kin.peakAcceleration;
-    const forceUse = force / s.maxForce;
-    const strokeUse = kin.stroke / s.maxStroke;
-    const velocityUse = kin.peakVelocity / s.maxVelocity;
-    shaker = { force, stroke: kin.stroke, velocity: kin.peakVelocity, forceUse, strokeUse, velocityUse, fits: forceUse <= 1 && strokeUse <= 1 && velocityUse <= 1 };
-  }
+  const shaker = options.shaker ? shakerCheck(kin, body.mass, options.shaker) : null;
   return {
     peakAcceleration: kin.peakAcceleration,
     peakAccelerationG: kin.peakAcceleration / g,
