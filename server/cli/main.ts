@@ -13,7 +13,7 @@ import type { PoolEvent, WorkerPool } from '../../shared/compute/worker-pool';
 import { defaultChartGrid } from '../../shared/engine/chart';
 import { makeRunRecord, parseRunRecord, recheckRun } from '../../shared/engine/run-record';
 import {
-  computeRun, isRunKind, MAX_CHART_COUNT, MAX_MAP_COUNT, MAX_SWEEP_STEPS, parseRunSettingsFor, runKind,
+  computeRun, defaultLeanestSettings, isRunKind, MAX_CHART_COUNT, MAX_LEANEST_COUNT, MAX_MAP_COUNT, MAX_SWEEP_STEPS, parseRunSettingsFor, runKind,
   type RunKind, type RunResult, type RunSettings, type RunSettingsOf,
 } from '../../shared/engine/run-kinds';
 import { defaultBasinGrid } from '../../shared/engine/sweep';
@@ -32,6 +32,11 @@ const USAGE = `usage: npm run cli -- <command> [options]
   chart   <case.json> [--freq-from F --freq-to F --amp-from A --amp-to A --n 200 (40 oblique) --linear]
   map     <case.json> --x-field F --x-from X --x-to X --y-field F --y-from Y --y-to Y [--n 9]
   basin   <case.json> [--n 11 --angle-from -3.14 --angle-to 3.14 --rate-from R --rate-to R]
+  leanest <case.json> [--margin 15] [--cost acceleration|stroke|force|power] [--moving-mass KG]
+          [--freq-from F --freq-to F --amp-from A --amp-to A --n 40 --linear] [--tolerance 1e-6]
+          shaker: [--rated-force N --max-stroke M --max-velocity M/S --min-freq HZ --max-freq HZ]
+          motor and crank: [--min-radius M --max-radius M --min-rpm RPM --max-rpm RPM]
+                                           cheapest drive keeping the amplitude margin; optimum, binding limit
   fit     <trace.csv> [--model viscous|viscous+quadratic|viscous+friction] [--angle-unit deg|rad] [--case case.json]
                                            free-swing fit: L, zeta, [c | mu], sensor zero, start state (SI)
   check   <run.json>                       rerun a stored run record and compare digest and summary
@@ -41,7 +46,8 @@ const USAGE = `usage: npm run cli -- <command> [options]
   --version                                print the Quiverpoint and engine versions
 
   common: --csv (CSV instead of JSON), --record (print only the run record), --workers N (default: cores)
-  limits: sweep --steps <= ${MAX_SWEEP_STEPS}; chart --n <= ${MAX_CHART_COUNT}; map and basin --n <= ${MAX_MAP_COUNT}
+  limits: sweep --steps <= ${MAX_SWEEP_STEPS}; chart --n <= ${MAX_CHART_COUNT}; map and basin --n <= ${MAX_MAP_COUNT};
+          leanest --n <= ${MAX_LEANEST_COUNT}
   exit:   0 done, 1 recheck mismatch, 2 bad input, 3 engine failure`;
 
 class InputError extends Error {}
@@ -172,7 +178,61 @@ const SETTINGS_FROM_ARGS: { readonly [K in RunKind]: (args: ParsedArgs, params: 
       },
     };
   },
+  leanest: (args, params) => {
+    const def = defaultLeanestSettings(params);
+    const n = numberOption(args, 'n', def.grid.x.count);
+    const scale = flag(args, 'linear') ? 'linear' : 'log';
+    const cost = stringOption(args, 'cost') ?? def.cost;
+    return {
+      ...def,
+      marginPercent: numberOption(args, 'margin', def.marginPercent),
+      // the schema refuses a word outside the list, naming --cost
+      cost: cost as RunSettingsOf<'leanest'>['cost'],
+      movingMass: numberOption(args, 'moving-mass', def.movingMass),
+      relTolerance: numberOption(args, 'tolerance', def.relTolerance),
+      envelope: envelopeFromArgs(args),
+      grid: {
+        x: { ...def.grid.x, count: n, scale, from: numberOption(args, 'freq-from', def.grid.x.from), to: numberOption(args, 'freq-to', def.grid.x.to) },
+        y: { ...def.grid.y, count: n, scale, from: numberOption(args, 'amp-from', def.grid.y.from), to: numberOption(args, 'amp-to', def.grid.y.to) },
+      },
+    };
+  },
 };
+
+const SHAKER_OPTIONS = ['rated-force', 'max-stroke', 'max-velocity', 'min-freq', 'max-freq'] as const;
+const CRANK_OPTIONS = ['min-radius', 'max-radius', 'min-rpm', 'max-rpm'] as const;
+
+/** Leanest-drive envelope from the options: a shaker's ratings or a motor and crank's ranges, never both. */
+function envelopeFromArgs(args: ParsedArgs): RunSettingsOf<'leanest'>['envelope'] {
+  const given = (names: readonly string[]) => names.filter((n) => args.options.has(n));
+  const shaker = given(SHAKER_OPTIONS);
+  const crank = given(CRANK_OPTIONS);
+  if (shaker.length && crank.length) {
+    throw new UsageError(`--${shaker[0]} is a shaker limit and --${crank[0]} a crank limit: give one envelope`);
+  }
+  const opt = (name: string, scale = 1) => (args.options.has(name) ? { value: numberOption(args, name, NaN) * scale } : null);
+  const pick = (entries: Array<[string, { value: number } | null]>) =>
+    Object.fromEntries(entries.filter(([, v]) => v !== null).map(([k, v]) => [k, v?.value]));
+  if (shaker.length) {
+    return {
+      kind: 'shaker',
+      ...pick([
+        ['ratedForce', opt('rated-force')], ['maxStroke', opt('max-stroke')], ['maxVelocity', opt('max-velocity')],
+        ['minFrequency', opt('min-freq')], ['maxFrequency', opt('max-freq')],
+      ]),
+    };
+  }
+  if (crank.length) {
+    return {
+      kind: 'crank',
+      ...pick([
+        ['minRadius', opt('min-radius')], ['maxRadius', opt('max-radius')],
+        ['minSpeed', opt('min-rpm', 1 / 60)], ['maxSpeed', opt('max-rpm', 1 / 60)],
+      ]),
+    };
+  }
+  return { kind: 'none' };
+}
 
 /** Per kind, the option behind each settings field, so an error names what the user typed. */
 const OPTION_OF_FIELD: { readonly [K in RunKind]: Readonly<Record<string, string>> } = {
@@ -190,6 +250,15 @@ const OPTION_OF_FIELD: { readonly [K in RunKind]: Readonly<Record<string, string
   basin: {
     'grid.x.from': '--angle-from', 'grid.x.to': '--angle-to', 'grid.y.from': '--rate-from', 'grid.y.to': '--rate-to',
     'grid.x.count': '--n', 'grid.y.count': '--n',
+  },
+  leanest: {
+    marginPercent: '--margin', cost: '--cost', movingMass: '--moving-mass', relTolerance: '--tolerance',
+    'grid.x.from': '--freq-from', 'grid.x.to': '--freq-to', 'grid.y.from': '--amp-from', 'grid.y.to': '--amp-to',
+    'grid.x.count': '--n', 'grid.y.count': '--n',
+    'envelope.ratedForce': '--rated-force', 'envelope.maxStroke': '--max-stroke', 'envelope.maxVelocity': '--max-velocity',
+    'envelope.minFrequency': '--min-freq', 'envelope.maxFrequency': '--max-freq',
+    'envelope.minRadius': '--min-radius', 'envelope.maxRadius': '--max-radius',
+    'envelope.minSpeed': '--min-rpm', 'envelope.maxSpeed': '--max-rpm',
   },
 };
 

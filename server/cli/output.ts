@@ -14,6 +14,9 @@ export function toJson(value: unknown): string {
   );
 }
 
+/** SI unit of each leanest-drive cost, for the CSV header. */
+const COST_UNIT = { acceleration: 'peak_acceleration_m_s2', stroke: 'stroke_m', force: 'force_N', power: 'power_W' } as const;
+
 function cell(v: unknown): string {
   if (v === null || v === undefined) return '';
   // 15 significant digits hide binary noise such as 0.009000000000000001 and keep every digit the engine resolves.
@@ -82,6 +85,19 @@ export function toCsv(result: RunResult): string {
         }
       }
       return rows([m.grid.x.field, m.grid.y.field, 'outcome', 'mean_angle_rad', 'max_deviation_rad', 'slow_frequency_Hz', 'error'], body);
+    }
+    case 'leanest': {
+      // The optimum first, then every chart column's cheapest admissible drive (empty where none is).
+      const l = result.value;
+      const o = l.optimum;
+      const c = l.columns;
+      const finite = (v: number) => (Number.isFinite(v) ? v : null);
+      const body: unknown[][] = [];
+      if (o) body.push(['optimum', o.frequency, o.amplitude, o.lowerLimit, o.upperLimit, o.cost, o.binding.join(' ')]);
+      for (let i = 0; i < c.frequency.length; i++) {
+        body.push(['column', c.frequency[i], finite(c.amplitude[i]), finite(c.lower[i]), finite(c.upper[i]), finite(c.cost[i]), '']);
+      }
+      return rows(['row', 'frequency_Hz', 'amplitude_m', 'lower_limit_m', 'upper_limit_m', `cost_${COST_UNIT[l.cost]}`, 'binding'], body);
     }
   }
 }

@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import type { StabilityChart } from '../../shared/engine/chart';
 import { resultDigest, type RunResult } from '../../shared/engine/run-record';
-import { MAX_CHART_COUNT, MAX_MAP_COUNT, MAX_SWEEP_STEPS } from '../../shared/engine/run-kinds';
+import type { LeanestResult } from '../../shared/engine/leanest';
+import { MAX_CHART_COUNT, MAX_LEANEST_COUNT, MAX_MAP_COUNT, MAX_SWEEP_STEPS } from '../../shared/engine/run-kinds';
 import type { CellMap, MapCell, SweepPoint, SweepResult } from '../../shared/engine/sweep';
 import { ENGINE_VERSION } from '../../shared/engine/version';
 import {
@@ -61,12 +62,36 @@ function mapOf(n: number): RunResult {
   return { kind: 'map', value };
 }
 
+/** A leanest-drive result: its chart, per-column limits, admissible cells and an optimum with every constraint. */
+function leanestOf(n: number): RunResult {
+  const chart = chartOf(n).value as StabilityChart;
+  const column = () => Float64Array.from({ length: n }, noise);
+  const value: LeanestResult = {
+    engineVersion: ENGINE_VERSION,
+    marginPercent: 15,
+    cost: 'acceleration',
+    chart,
+    columns: { frequency: column(), lower: column(), upper: column(), amplitude: column(), cost: column() },
+    feasible: Float64Array.from({ length: n * n }, (_, i) => i % 2),
+    optimum: {
+      frequency: noise(), amplitude: noise(), cost: noise(), peakAcceleration: noise(), peakVelocity: noise(), stroke: noise(),
+      force: noise(), power: noise(), pivotForcePeak: noise(), lowerLimit: noise(), upperLimit: noise(),
+      amplitudeMarginPercent: 15, frequencyLimits: { lower: noise(), upper: null }, frequencyMarginPercent: noise(), marginPercent: 15,
+      binding: ['lower-margin', 'upper-margin'],
+      constraints: Array.from({ length: 13 }, () => ({ constraint: 'stroke' as const, sense: 'at-most' as const, value: noise(), limit: noise(), slack: noise() })),
+      found: 'edge',
+    },
+  };
+  return { kind: 'leanest', value };
+}
+
 describe('the run registry and the stored-result limits agree', () => {
   // A run the registry accepts must be storable: the largest of each kind fits both size limits.
   it.each([
     [`a ${MAX_SWEEP_STEPS}-point sweep`, () => sweepOf(MAX_SWEEP_STEPS)],
     [`a ${MAX_CHART_COUNT}x${MAX_CHART_COUNT} chart`, () => chartOf(MAX_CHART_COUNT)],
     [`a ${MAX_MAP_COUNT}x${MAX_MAP_COUNT} outcome map`, () => mapOf(MAX_MAP_COUNT)],
+    [`a ${MAX_LEANEST_COUNT}x${MAX_LEANEST_COUNT} leanest-drive search`, () => leanestOf(MAX_LEANEST_COUNT)],
   ])('stores %s, the largest the registry accepts', (_name, make) => {
     const stored = compressResult(make());
     expect(stored.rawBytes).toBeLessThan(RESULT_MAX_RAW_BYTES);

@@ -127,7 +127,7 @@ describe('run settings schema', () => {
     ['a margins tolerance of zero', { kind: 'margins', relTolerance: 0 }, 'relTolerance', /1e-14/],
     ['a leanest margin of 100 %', { ...leanestBase(), marginPercent: 100 }, 'marginPercent', /at most 90/],
     ['a leanest cost nobody offers', { ...leanestBase(), cost: 'noise' }, 'cost', /one of/],
-    ['a crank whose largest radius is below its smallest', { ...leanestBase(), envelope: { kind: 'crank', minRadius: 0.02, maxRadius: 0.01 } }, 'envelope.maxRadius', /above minRadius/],
+    ['a crank whose largest radius is below its smallest', { ...leanestBase(), envelope: { kind: 'crank', minRadius: 0.02, maxRadius: 0.01 } }, 'envelope.maxRadius', /above the smallest crank radius/],
     ['a shaker force of zero', { ...leanestBase(), envelope: { kind: 'shaker', ratedForce: 0 } }, 'envelope.ratedForce', /above zero/],
     ['a leanest search from zero frequency', { ...leanestBase(), grid: { ...leanestBase().grid, x: { field: 'drive.frequency', from: 0, to: 20, count: 5 } } }, 'grid.x.from', /above zero/],
     ['a non-number limit', { kind: 'sweep', spec: { field: 'drive.amplitude', from: '0.001', to: 0.01, steps: 5 } }, 'spec.from', /finite number/],

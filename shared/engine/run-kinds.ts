@@ -10,6 +10,7 @@
 import { z } from 'zod';
 import type { CaseParams } from '../case/case-schema';
 import { SWEEPABLE_FIELDS, sweepableFieldsFor } from '../case/case-fields';
+import { bindingWords } from '../case/leanest-words';
 import { assembleChart, defaultChartGrid, type StabilityChart } from './chart';
 import {
   assembleLeanest, leanestEdgeFrequencies, type LeanestEnvelope, type LeanestPoint, type LeanestResult, type LeanestSpec,
@@ -107,9 +108,9 @@ export const basinSettingsSchema = z.strictObject({
 });
 
 const positive = z.number({ message: 'must be a finite number' }).positive({ message: 'must be above zero' });
-const ordered = <T extends Record<string, unknown>>(lo: keyof T & string, hi: keyof T & string) => ({
+const ordered = <T extends Record<string, unknown>>(lo: keyof T & string, hi: keyof T & string, words: string) => ({
   check: (v: T) => v[lo] === undefined || v[hi] === undefined || Number(v[lo]) < Number(v[hi]),
-  message: { message: `must be above ${lo}`, path: [hi] },
+  message: { message: `must be above the ${words}`, path: [hi] },
 });
 const positiveAxis = <F extends z.ZodType<string>>(field: F) =>
   axisSchema(field, MAX_LEANEST_COUNT)
@@ -130,9 +131,9 @@ const crankEnvelopeSchema = z.strictObject({
   minSpeed: positive.optional(),
   maxSpeed: positive.optional(),
 });
-const shakerOrder = ordered<z.infer<typeof shakerEnvelopeSchema>>('minFrequency', 'maxFrequency');
-const radiusOrder = ordered<z.infer<typeof crankEnvelopeSchema>>('minRadius', 'maxRadius');
-const speedOrder = ordered<z.infer<typeof crankEnvelopeSchema>>('minSpeed', 'maxSpeed');
+const shakerOrder = ordered<z.infer<typeof shakerEnvelopeSchema>>('minFrequency', 'maxFrequency', 'lowest frequency');
+const radiusOrder = ordered<z.infer<typeof crankEnvelopeSchema>>('minRadius', 'maxRadius', 'smallest crank radius');
+const speedOrder = ordered<z.infer<typeof crankEnvelopeSchema>>('minSpeed', 'maxSpeed', 'lowest motor speed');
 /** The drive hardware's limits: none, a shaker's ratings, or a motor and crank's ranges (SI). */
 export const leanestEnvelopeSchema = z.discriminatedUnion('kind', [
   z.strictObject({ kind: z.literal('none') }),
@@ -465,14 +466,16 @@ export const RUN_KIND_REGISTRY: { readonly [K in RunKind]: RunKindDef<K> } = {
       for (const v of l.feasible) feasibleCells += v;
       return {
         cost: l.cost,
-        marginPercent: l.marginPercent,
+        targetMarginPercent: l.marginPercent,
         feasibleCells,
         found: o !== null,
         optimumFrequency: o?.frequency ?? null,
         optimumAmplitude: o?.amplitude ?? null,
-        optimumCost: o?.cost ?? null,
         optimumPeakAcceleration: o?.peakAcceleration ?? null,
-        binding: o ? o.binding.join(', ') : null,
+        optimumStroke: o?.stroke ?? null,
+        optimumForce: o?.force ?? null,
+        optimumPower: o?.power ?? null,
+        binding: o ? bindingWords(o.binding) : null,
         amplitudeMarginPercent: o?.amplitudeMarginPercent ?? null,
         frequencyMarginPercent: o?.frequencyMarginPercent ?? null,
       };

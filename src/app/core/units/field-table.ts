@@ -1,6 +1,7 @@
 import { DEFAULT_UNITS, unitLabelOf, type Dimension, type DisplayUnits } from './display-units';
 import { formatIn, formatNumber, formatPercent, withUnit } from './format-number';
 import { outcomeWords } from '../../../../shared/case/display';
+import { LEANEST_COST_WORDS } from '../../../../shared/case/leanest-words';
 
 /** How a value of a field reads. */
 type ValueKind = 'number' | 'percent' | 'outcome' | 'yes-no' | 'words';
@@ -150,6 +151,19 @@ export const FIELD_TABLE: Readonly<Record<string, FieldInfo>> = {
   'summary.count.tumbles': plain('Cells that tumble'),
   'summary.count.irregular': plain('Irregular cells'),
   'summary.count.invalid': plain('Cells not computed'),
+  'summary.cost': { label: 'Cost minimised', dimension: 'plain', kind: 'words', words: LEANEST_COST_WORDS },
+  'summary.targetMarginPercent': { label: 'Wanted amplitude margin', dimension: 'plain', kind: 'percent' },
+  'summary.feasibleCells': plain('Chart cells that keep the margin'),
+  'summary.found': { label: 'Leanest drive found', dimension: 'plain', kind: 'yes-no' },
+  'summary.optimumFrequency': frequency('Leanest drive frequency'),
+  'summary.optimumAmplitude': length('Leanest drive amplitude'),
+  'summary.optimumPeakAcceleration': plain('Leanest drive peak acceleration', 'm/s²'),
+  'summary.optimumStroke': length('Leanest drive stroke'),
+  'summary.optimumForce': plain('Leanest drive force', 'N'),
+  'summary.optimumPower': plain('Leanest drive power proxy', 'W'),
+  'summary.binding': { label: 'Limited by', dimension: 'plain', kind: 'words' },
+  'summary.amplitudeMarginPercent': { label: 'Amplitude margin at the leanest drive', dimension: 'plain', kind: 'percent' },
+  'summary.frequencyMarginPercent': { label: 'Frequency margin at the leanest drive', dimension: 'plain', kind: 'percent' },
 };
 
 /** `drive.waveform.terms.2.phase` -> the `#` key and the 1-based index 3. */
