@@ -311,7 +311,7 @@ export function leanestRefine(
   const tol = Math.max(spec.relTolerance, 1e-9);
   const cache = new Map<number, LeanestPoint>(points.map((p) => [p.frequency, p]));
   // A budget for progress: two bisections and one golden search, each about log2(spacing/tol) steps.
-  const budget = 3 * Math.ceil(Math.log2(1 / tol)) + 4;
+  const budget = 3 * Math.ceil(log(1 / tol) / log(2)) + 4;
   let done = 0;
   const at = (f: number): LeanestPoint => {
     const hit = cache.get(f);
