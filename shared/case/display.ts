@@ -105,6 +105,7 @@ export const RUN_KIND_LABELS: Readonly<Record<string, string>> = {
   chart: 'Stability chart',
   map: 'Outcome map',
   basin: 'Basin map',
+  leanest: 'Leanest drive',
 };
 
 /** Joint damping as shown: "0.002 N·m·s/rad". */

@@ -21,8 +21,8 @@ export const LEANEST_CONSTRAINT_WORDS: Readonly<Record<LeanestConstraint, string
   'max-frequency': 'the highest frequency or speed',
   'min-amplitude': 'the smallest crank radius',
   'max-amplitude': 'the largest crank radius',
-  'frequency-range': 'the end of the searched frequencies',
-  'amplitude-range': 'the end of the searched amplitudes',
+  'frequency-range': 'the searched frequency range',
+  'amplitude-range': 'the searched amplitude range',
 };
 
 /** "the margin above the lower limit and the rated force" */

@@ -15,11 +15,12 @@ import type { Grid2, StabilityChart } from '../engine/chart';
 import type { EngineTask, FitTask, OverlayTask, TaskResult } from '../engine/engine-task';
 import type { FitResult } from '../engine/fit';
 import type { FloquetAnalysis } from '../engine/floquet';
+import type { LeanestResult } from '../engine/leanest';
 import type { MotionResult } from '../engine/motion';
 import type { OverlayResult } from '../engine/trace-drive';
 import { expectResult, type RunJob } from '../engine/run-job';
 import {
-  runJob, runKind, type RowsPartial, type RunKind, type RunPartialOf, type RunResult, type RunSettings, type RunSettingsOf,
+  runJob, runKind, type LeanestSettings, type RowsPartial, type RunKind, type RunPartialOf, type RunResult, type RunSettings, type RunSettingsOf,
   type RunValueOf,
 } from '../engine/run-kinds';
 import type { BasinCell, CellMap, MapCell, SweepPoint, SweepResult, SweepSpec } from '../engine/sweep';
@@ -170,6 +171,11 @@ export class WorkerPool {
   /** Basin map over start angle (x) and start rate (y). */
   basin(params: CaseParams, grid: Grid2): Observable<PoolEvent<CellMap, RowsPartial<BasinCell[]>>> {
     return this.runKind('basin', params, { kind: 'basin', grid });
+  }
+
+  /** Leanest drive: the chart's row blocks and the limit columns, then the refinement; partials are chart rows. */
+  leanest(params: CaseParams, settings: LeanestSettings): Observable<PoolEvent<LeanestResult, RowsPartial<Float64Array>>> {
+    return this.runKind('leanest', params, settings);
   }
 
   /** Terminates every worker; later jobs fail. */

@@ -8,7 +8,8 @@
  * entry in RUN_KIND_REGISTRY; the compiler then points at every place that must know it (see docs/engine.md).
  */
 import { z } from 'zod';
-import type { CaseParams } from '../case/case-schema';
+import { CASE_LIMITS, type CaseParams } from '../case/case-schema';
+import { bodyProperties } from './body';
 import { SWEEPABLE_FIELDS, sweepableFieldsFor } from '../case/case-fields';
 import { bindingWords } from '../case/leanest-words';
 import { assembleChart, defaultChartGrid, type StabilityChart } from './chart';
@@ -183,10 +184,23 @@ export function leanestSpecOf(settings: LeanestSettings): LeanestSpec {
   };
 }
 
-/** Default leanest-drive settings: +15 % on the chart's default frequency-by-amplitude rectangle, 40 by 40. */
+/**
+ * Default leanest-drive settings: +15 % on peak acceleration, 40 by 40 (log) over a sixteenth to four times the
+ * case's frequency (the least acceleration sits at low frequency) by a tenth of its amplitude to the larger of ten
+ * times it and the equivalent length (the upper limit lies near half that length), below a crank's connecting rod.
+ */
 export function defaultLeanestSettings(params: CaseParams): LeanestSettings {
+  const f = params.drive.frequency;
+  const a = Math.max(params.drive.amplitude, 1e-6);
+  const L = bodyProperties(params.body, params.gravity).equivalentLength;
+  let aTo = Math.min(Math.max(10 * a, L), CASE_LIMITS.maxAmplitude);
+  if (params.drive.waveform.kind === 'crank-slider') aTo = Math.min(aTo, 0.99 * params.drive.waveform.connectingRod);
   return {
-    kind: 'leanest', marginPercent: 15, cost: 'acceleration', grid: defaultChartGrid(params, 40) as LeanestSettings['grid'],
+    kind: 'leanest', marginPercent: 15, cost: 'acceleration',
+    grid: {
+      x: { field: 'drive.frequency', from: f / 16, to: 4 * f, count: 40, scale: 'log' },
+      y: { field: 'drive.amplitude', from: a / 10, to: aTo, count: 40, scale: 'log' },
+    },
     movingMass: 0, envelope: { kind: 'none' }, relTolerance: 1e-6,
   };
 }

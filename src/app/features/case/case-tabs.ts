@@ -14,6 +14,7 @@ export const CASE_TABS: CaseTab[] = [
   { path: 'margins', label: 'Margins', loadComponent: () => import('./margins/margins-tab').then((m) => m.MarginsTab) },
   { path: 'sweeps', label: 'Sweeps', loadComponent: () => import('./sweeps/sweeps-tab').then((m) => m.SweepsTab) },
   { path: 'map', label: 'Map', loadComponent: () => import('./map/map-tab').then((m) => m.MapTab) },
+  { path: 'sign-off', label: 'Sign-off', loadComponent: () => import('./sign-off/sign-off-tab').then((m) => m.SignOffTab) },
   { path: 'bench', label: 'Bench', loadComponent: () => import('../bench/bench-tab').then((m) => m.BenchTab) },
   { path: 'history', label: 'History', loadComponent: () => import('../history/history-tab').then((m) => m.HistoryTab) },
 ];

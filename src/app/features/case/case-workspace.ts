@@ -10,9 +10,11 @@ import { caseDigest } from '../../../../shared/case/canonical';
 import { RUN_KIND_LABELS } from '../../../../shared/case/display';
 import type { CaseParams } from '../../../../shared/case/case-schema';
 import { demoRigCase, templateCase } from '../../../../shared/case/templates';
-import type { CaseIssue } from '../../../../shared/case/validate';
+import { parseCase, type CaseIssue } from '../../../../shared/case/validate';
 import type { Grid2, StabilityChart } from '../../../../shared/engine/chart';
 import type { FloquetAnalysis } from '../../../../shared/engine/floquet';
+import type { LeanestResult } from '../../../../shared/engine/leanest';
+import type { LeanestSettings } from '../../../../shared/engine/run-kinds';
 import type { MotionResult } from '../../../../shared/engine/motion';
 import { makeRunRecord, type RunKind, type RunRecord, type RunResult, type RunSettings } from '../../../../shared/engine/run-record';
 import type { CellMap, MapCell, SweepPoint, SweepResult, SweepSpec } from '../../../../shared/engine/sweep';
@@ -53,7 +55,7 @@ export const STORED_PENDING_RECHECK_MS = 3000;
 export const STORED_PENDING_RECHECKS = 200;
 
 /** Run kinds a case tab shows (the outcome map has no tab of its own). */
-export const SHOWN_STORED_KINDS: readonly RunKind[] = ['motion', 'margins', 'sweep', 'chart', 'basin'];
+export const SHOWN_STORED_KINDS: readonly RunKind[] = ['motion', 'margins', 'sweep', 'chart', 'basin', 'leanest'];
 
 /**
  * For each kind a tab shows, the stored run whose result to show: the latest the server has settled (verified or
@@ -105,6 +107,7 @@ export class CaseWorkspace {
   private readonly sweepState = signal<Computed<SweepResult> | null>(null);
   private readonly chartState = signal<Computed<StabilityChart> | null>(null);
   private readonly basinState = signal<Computed<CellMap> | null>(null);
+  private readonly leanestState = signal<Computed<LeanestResult> | null>(null);
   private readonly formTickState = signal(0);
   private readonly saveNoteState = signal('');
   private readonly sweepPartialState = signal<readonly SweepPoint[]>([]);
@@ -157,6 +160,7 @@ export class CaseWorkspace {
   readonly sweepSteps = this.sweepStepsState.asReadonly();
   readonly chart = this.chartState.asReadonly();
   readonly basin = this.basinState.asReadonly();
+  readonly leanest = this.leanestState.asReadonly();
   /**
    * Per run kind, why the opened revision's stored result is not (yet) shown: loading, still being rerun by the
    * server, failed to load, or not shown because it may not belong to the values on screen. Tabs show it while they
@@ -171,6 +175,7 @@ export class CaseWorkspace {
   readonly sweepJob = new PoolJob<SweepResult, SweepPoint[]>();
   readonly chartJob = new PoolJob<StabilityChart, RowsDone<Float64Array>>();
   readonly basinJob = new PoolJob<CellMap, RowsDone<MapCell[]>>();
+  readonly leanestJob = new PoolJob<LeanestResult, RowsDone<Float64Array>>();
 
   constructor() {
     this.form.group.valueChanges.pipe(takeUntilDestroyed(this.destroyRef)).subscribe(() => this.readForm());
@@ -302,6 +307,9 @@ export class CaseWorkspace {
       case 'basin':
         if (!this.basinState()) this.basinState.set({ ...base, value: result.value });
         break;
+      case 'leanest':
+        if (!this.leanestState()) this.leanestState.set({ ...base, value: result.value });
+        break;
       case 'map':
         break;
     }
@@ -405,6 +413,32 @@ export class CaseWorkspace {
     });
   }
 
+  runLeanest(settings: LeanestSettings): void {
+    if (!this.canRun()) return;
+    const params = this.draftState();
+    this.dropStale(this.leanestState);
+    this.leanestJob.start(this.pool.leanest(params, settings), (value) => {
+      this.leanestState.set(this.computed(value, params, settings));
+      this.record(params, settings, { kind: 'leanest', value });
+    });
+  }
+
+  /**
+   * Sets the drive frequency (Hz) and amplitude (m) in the Rig form, the rest of the case as it is; results of the
+   * earlier drive then show as belonging to earlier inputs. Refused, with the reason in words, when the form is
+   * invalid or the new drive breaks a case limit (e.g. too few drive periods in the run).
+   */
+  applyDrive(frequency: number, amplitude: number, note: string): string | null {
+    if (!this.valid()) return 'Fix the Rig fields first: the form is invalid.';
+    if (this.readOnly()) return 'Your role in this lab cannot change this case.';
+    const current = this.draftState();
+    const next: CaseParams = { ...current, drive: { ...current.drive, frequency, amplitude } };
+    const checked = parseCase(next);
+    if (!checked.ok) return `That drive breaks a limit of the case: ${checked.issues[0]?.message ?? 'invalid'}.`;
+    this.applyParamsWithNote(checked.value, note);
+    return null;
+  }
+
   /**
    * Run asks for results of the inputs on screen: a shown result of other inputs (stored or computed) goes at once,
    * so it is never read as the answer while the new one is computed. A current result stays until replaced.
@@ -499,7 +533,7 @@ export class CaseWorkspace {
   }
 
   private jobs(): Array<{ cancel(): void }> {
-    return [this.motionJob, this.marginsJob, this.sweepJob, this.chartJob, this.basinJob];
+    return [this.motionJob, this.marginsJob, this.sweepJob, this.chartJob, this.basinJob, this.leanestJob];
   }
 
   private reset(): void {
@@ -512,6 +546,7 @@ export class CaseWorkspace {
     this.sweepState.set(null);
     this.chartState.set(null);
     this.basinState.set(null);
+    this.leanestState.set(null);
     this.runsState.set([]);
   }
 }
@@ -521,3 +556,4 @@ export function messageOf(error: unknown): string {
   if (error instanceof CaseRepositoryError) return error.message;
   return describeError(error);
 }
+
