@@ -116,8 +116,12 @@ function printFigures(f: IntegratorFigures): void {
 export function run(): void {
   // warm the JIT so timings describe steady code
   simulateMotion(benchmarkCase(20));
-  printFigures(benchIntegrator());
-  printFigures(benchMotion());
+  const bare = benchIntegrator();
+  const full = benchMotion();
+  printFigures(bare);
+  printFigures(full);
+  // the cost of dense output, strobe, slow motion, force peak and outcome on top of the integration itself
+  console.log(`full motion / bare integrator: ${(full.wallMs / bare.wallMs).toFixed(2)} (target <= 1.6; best of 3 each)`);
   const short = motionMemory(20);
   const long = motionMemory(200);
   console.log('memory (JS heap + array buffers) of motion runs, output budget 4000 points:');
