@@ -59,9 +59,11 @@ export function buildModel(params: CaseParams): RigModel {
  * the tanh replaces the sign function of Coulomb friction so the right-hand side stays smooth for the integrator.
  */
 export function rhs(model: RigModel, t: number, theta: number, rate: number): number {
-  const sa = model.drive.acceleration(t);
-  const st = sin(theta);
-  const ct = cos(theta);
+  return rhsAt(model, model.drive.acceleration(t), sin(theta), cos(theta), rate);
+}
+
+/** `rhs` from the pivot acceleration s'' and sin/cos of theta, for callers that need those too (same bits). */
+export function rhsAt(model: RigModel, sa: number, st: number, ct: number, rate: number): number {
   let acc = (model.g * st + sa * (st * model.cosBeta - ct * model.sinBeta)) / model.L - 2 * model.zeta * model.omega0 * rate;
   if (model.quadratic !== 0) acc -= model.quadratic * rate * Math.abs(rate);
   if (model.friction !== 0) acc -= model.friction * tanh(rate / model.frictionSmoothing);

@@ -3,7 +3,7 @@ import { caseDigest } from '../case/canonical';
 import { assertCase } from '../case/validate';
 import { classifyMotion, type MotionOutcome, type OutcomeNumbers } from './classify';
 import { simulateChainMotion } from './chain-motion';
-import { buildModel, rhs, type RigModel } from './equations';
+import { buildModel, rhsAt, type RigModel } from './equations';
 import { integrate, rigDerivative, type IntegrateStatus } from './integrate';
 import { ENGINE_VERSION } from './version';
 import { portable } from './portable-math';
@@ -115,10 +115,11 @@ const PHASE_SAMPLES = 16;
 /** Pivot reaction force on the body, N: R = m a_com + m g (up), with a_com from the pivot motion and the swing. */
 function pivotForce(model: RigModel, t: number, theta: number, rate: number): number {
   const { mass, comDistance: d } = model.body;
+  // one evaluation of s'', sin and cos shared with the equation of motion: this runs 16 times per drive period
   const sa = model.drive.acceleration(t);
-  const acc = rhs(model, t, theta, rate);
   const st = sin(theta);
   const ct = cos(theta);
+  const acc = rhsAt(model, sa, st, ct, rate);
   // body position d (sin theta, cos theta), x right, y up; clockwise-positive theta
   const ax = sa * model.sinBeta + d * (acc * ct - rate * rate * st);
   const ay = sa * model.cosBeta + d * (-acc * st - rate * rate * ct);
