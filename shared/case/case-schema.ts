@@ -1,6 +1,7 @@
 import { z } from 'zod';
 
 import { bodyProperties } from '../engine/body';
+import { SWEEPABLE_FIELDS, sweepableFieldsFor } from './case-fields';
 
 /** Version of the case parameter shape; bump when a stored case would need migrating. */
 export const CASE_SCHEMA_VERSION = 1;
@@ -126,6 +127,45 @@ export const runSettingsSchema = z.object({
   transientFraction: finite().gte(0).lte(0.95).describe('1: leading share of the run ignored when classifying'),
 });
 
+/** Most tolerances a case may carry (each is one dimension of a hold-probability sample). */
+export const MAX_TOLERANCES = 12;
+/** Noise bandwidth at most this many times the drive frequency: the integrator resolves it within its step budget. */
+export const MAX_NOISE_BANDWIDTH_RATIO = 20;
+
+const tolerableField = z.string().refine((p) => SWEEPABLE_FIELDS.some((f) => f.path === p), {
+  message: `must be one of ${SWEEPABLE_FIELDS.map((f) => f.path).join(', ')}`,
+});
+
+/**
+ * A manufacturing or operating tolerance on one numeric field (a sweepable field, in its SI unit): normal about the
+ * case's value with standard deviation `sigma`, or spread evenly within +- `halfWidth`.
+ */
+export const toleranceSchema = z.discriminatedUnion('distribution', [
+  z.object({ field: tolerableField, distribution: z.literal('normal'), sigma: nonNegative(1e5, 'field unit: standard deviation') }),
+  z.object({ field: tolerableField, distribution: z.literal('uniform'), halfWidth: nonNegative(1e5, 'field unit: values within +- this') }),
+]);
+
+const noiseSeed = z.number().int().gte(1).lte(4294967295).describe('MT19937 seed of the noise realisation');
+/**
+ * Drive noise for motion runs (Floquet analyses use the nominal drive): a random drive phase phi(t) + psi(t) with RMS
+ * `rms`, or a random pivot displacement n(t) added along the drive line with flat one-sided spectral density
+ * `density`; both band-limited to `bandwidth` and generated from `seed` (shared/engine/drive-noise.ts).
+ */
+export const noiseSchema = z.discriminatedUnion('kind', [
+  z.object({
+    kind: z.literal('phase-jitter'),
+    rms: nonNegative(Math.PI, 'rad: RMS of the phase error'),
+    bandwidth: positive(CASE_LIMITS.maxFrequency, 'Hz: highest frequency of the phase error'),
+    seed: noiseSeed,
+  }),
+  z.object({
+    kind: z.literal('amplitude'),
+    density: nonNegative(1, 'm^2/Hz: one-sided spectral density of the displacement noise'),
+    bandwidth: positive(CASE_LIMITS.maxFrequency, 'Hz: the noise is flat from 0 to this'),
+    seed: noiseSeed,
+  }),
+]);
+
 export const caseParamsSchema = z
   .object({
     schemaVersion: z.literal(CASE_SCHEMA_VERSION),
@@ -135,9 +175,31 @@ export const caseParamsSchema = z
     start: startSchema,
     gravity: positive(1000, 'm/s^2').default(STANDARD_GRAVITY),
     run: runSettingsSchema,
+    tolerances: z.array(toleranceSchema).max(MAX_TOLERANCES).optional().describe('tolerances for the hold probability'),
+    noise: noiseSchema.optional().describe('drive noise of motion runs'),
   })
   .superRefine((c, ctx) => {
     const { body, drive, run } = c;
+    if (c.tolerances) {
+      const present = new Set(sweepableFieldsFor(c).map((f) => f.path));
+      const seen = new Set<string>();
+      c.tolerances.forEach((t, i) => {
+        if (!present.has(t.field)) {
+          ctx.addIssue({ code: 'custom', path: ['tolerances', i, 'field'], message: `this case has no field ${t.field}` });
+        } else if (seen.has(t.field)) {
+          ctx.addIssue({ code: 'custom', path: ['tolerances', i, 'field'], message: `${t.field} already has a tolerance` });
+        }
+        seen.add(t.field);
+      });
+    }
+    if (c.noise) {
+      if (body.kind === 'chain') {
+        ctx.addIssue({ code: 'custom', path: ['noise', 'kind'], message: 'drive noise is modelled for a single body, not a chain' });
+      } else if (c.noise.bandwidth > MAX_NOISE_BANDWIDTH_RATIO * drive.frequency) {
+        addBound(ctx, ['noise', 'bandwidth'], '<=', MAX_NOISE_BANDWIDTH_RATIO * drive.frequency, 'Hz',
+          `the noise bandwidth may be at most ${MAX_NOISE_BANDWIDTH_RATIO} times the drive frequency`);
+      }
+    }
     if (body.kind === 'rod-bob') {
       const mass = body.rodMass + body.bobMass;
       if (mass <= 0) {
@@ -252,3 +314,5 @@ export type Waveform = Drive['waveform'];
 export type HarmonicTerm = Extract<Waveform, { kind: 'harmonics' }>['terms'][number];
 export type Damping = CaseParams['damping'];
 export type RunSettings = CaseParams['run'];
+export type Tolerance = NonNullable<CaseParams['tolerances']>[number];
+export type DriveNoise = NonNullable<CaseParams['noise']>;

@@ -24,6 +24,8 @@ export interface DriveKinematics {
   phase(t: number): number;
   /** d phi / dt, rad/s */
   phaseRate(t: number): number;
+  /** d^2 phi / dt^2, rad/s^2 (non-zero during a ramp only) */
+  phaseAccel(t: number): number;
   /** First time t >= 0 with phase(t) = phi (phi >= 0). */
   timeAtPhase(phi: number): number;
   /** Pivot displacement s(t) along the drive line, m (upward positive for a vertical drive). */
@@ -222,6 +224,7 @@ export function driveKinematics(drive: Drive): DriveKinematics {
     periodic: !ramp,
     phase,
     phaseRate,
+    phaseAccel,
     timeAtPhase,
     position,
     velocity,

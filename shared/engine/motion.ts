@@ -5,6 +5,7 @@ import { classifyMotion, type MotionOutcome, type OutcomeNumbers } from './class
 import { simulateChainMotion } from './chain-motion';
 import { buildModel, rhsAt, type RigModel } from './equations';
 import { integrate, rigDerivative, type IntegrateStatus } from './integrate';
+import { noiseMaxStep, noisyDrive } from './drive-noise';
 import { ENGINE_VERSION } from './version';
 import { portable } from './portable-math';
 
@@ -145,7 +146,9 @@ export function simulateMotion(input: CaseParams, hooks: MotionHooks = {}): Moti
   // validated again here: sweeps build cases with setField, and an impossible one must fail loudly, not yield NaN
   const params = assertCase(input);
   if (params.body.kind === 'chain') return simulateChainMotion(params, hooks);
-  const model = buildModel(params);
+  const nominal = buildModel(params);
+  // Drive noise (drive-noise.ts) replaces the pivot motion; Floquet analyses keep the nominal drive.
+  const model = params.noise ? { ...nominal, drive: noisyDrive(nominal.drive, params.noise) } : nominal;
   const drive = model.drive;
   const run = params.run;
   const duration = run.duration;
@@ -237,7 +240,11 @@ export function simulateMotion(input: CaseParams, hooks: MotionHooks = {}): Moti
       initialStep: Math.min(duration, drive.period) / 50,
       // half a drive period: no aliasing of the forcing, and fewest calls; without a drive, an eighth of the free
       // swing period keeps the dense interpolant (whose own error estimate is off) accurate
-      maxStep: driven ? drive.period / 2 : Math.min(duration / 10, (2 * Math.PI) / model.omega0 / 8),
+      // with drive noise, also a quarter period of its highest band, so no band is stepped over
+      maxStep: Math.min(
+        driven ? drive.period / 2 : Math.min(duration / 10, (2 * Math.PI) / model.omega0 / 8),
+        params.noise ? noiseMaxStep(params.noise) : Infinity,
+      ),
       shouldCancel: hooks.shouldCancel
         ? () => {
             cancelled = hooks.shouldCancel?.() === true;
