@@ -13,7 +13,7 @@ import type { PoolEvent, WorkerPool } from '../../shared/compute/worker-pool';
 import { defaultChartGrid } from '../../shared/engine/chart';
 import { makeRunRecord, parseRunRecord, recheckRun } from '../../shared/engine/run-record';
 import {
-  computeRun, defaultLeanestSettings, isRunKind, MAX_CHART_COUNT, MAX_LEANEST_COUNT, MAX_MAP_COUNT, MAX_SWEEP_STEPS, parseRunSettingsFor, runKind,
+  computeRun, defaultHoldProbSettings, defaultLeanestSettings, MAX_HOLDPROB_SAMPLES, isRunKind, MAX_CHART_COUNT, MAX_LEANEST_COUNT, MAX_MAP_COUNT, MAX_SWEEP_STEPS, parseRunSettingsFor, runKind,
   type RunKind, type RunResult, type RunSettings, type RunSettingsOf,
 } from '../../shared/engine/run-kinds';
 import { defaultBasinGrid } from '../../shared/engine/sweep';
@@ -37,6 +37,9 @@ const USAGE = `usage: npm run cli -- <command> [options]
           shaker: [--rated-force N --max-stroke M --max-velocity M/S --min-freq HZ --max-freq HZ]
           motor and crank: [--min-radius M --max-radius M --min-rpm RPM --max-rpm RPM]
                                            cheapest drive keeping the amplitude margin; optimum, binding limit
+  holdprob <case.json> [--samples 256] [--seed 1927] [--target-width 0.1] [--parts tolerances|noise|both]
+          [--tolerance 1e-4]               probability of holding under the case's tolerances and drive noise,
+                                           Wilson 95 % interval, rank-correlation ranking, margin histogram
   fit     <trace.csv> [--model viscous|viscous+quadratic|viscous+friction] [--angle-unit deg|rad] [--case case.json]
                                            free-swing fit: L, zeta, [c | mu], sensor zero, start state (SI)
   check   <run.json>                       rerun a stored run record and compare digest and summary
@@ -47,7 +50,7 @@ const USAGE = `usage: npm run cli -- <command> [options]
 
   common: --csv (CSV instead of JSON), --record (print only the run record), --workers N (default: cores)
   limits: sweep --steps <= ${MAX_SWEEP_STEPS}; chart --n <= ${MAX_CHART_COUNT}; map and basin --n <= ${MAX_MAP_COUNT};
-          leanest --n <= ${MAX_LEANEST_COUNT}
+          leanest --n <= ${MAX_LEANEST_COUNT}; holdprob --samples <= ${MAX_HOLDPROB_SAMPLES}
   exit:   0 done, 1 recheck mismatch, 2 bad input, 3 engine failure`;
 
 class InputError extends Error {}
@@ -197,6 +200,18 @@ const SETTINGS_FROM_ARGS: { readonly [K in RunKind]: (args: ParsedArgs, params: 
       },
     };
   },
+  holdprob: (args, params) => {
+    const def = defaultHoldProbSettings(params);
+    return {
+      ...def,
+      samples: numberOption(args, 'samples', def.samples),
+      seed: numberOption(args, 'seed', def.seed),
+      targetWidth: numberOption(args, 'target-width', def.targetWidth),
+      // the schema refuses a word outside the list, naming --parts
+      parts: (stringOption(args, 'parts') ?? def.parts) as RunSettingsOf<'holdprob'>['parts'],
+      relTolerance: numberOption(args, 'tolerance', def.relTolerance),
+    };
+  },
 };
 
 const SHAKER_OPTIONS = ['rated-force', 'max-stroke', 'max-velocity', 'min-freq', 'max-freq'] as const;
@@ -260,6 +275,7 @@ const OPTION_OF_FIELD: { readonly [K in RunKind]: Readonly<Record<string, string
     'envelope.minRadius': '--min-radius', 'envelope.maxRadius': '--max-radius',
     'envelope.minSpeed': '--min-rpm', 'envelope.maxSpeed': '--max-rpm',
   },
+  holdprob: { samples: '--samples', seed: '--seed', targetWidth: '--target-width', parts: '--parts', relTolerance: '--tolerance' },
 };
 
 /** The settings a command asks for, checked by the registry's schema for the kind. */

@@ -1,4 +1,5 @@
 /** JSON and CSV rendering of engine results for the CLI. */
+import { SWEEPABLE_FIELDS } from '../../shared/case/case-fields';
 import type { RunResult } from '../../shared/engine/run-record';
 
 /** JSON with typed arrays as plain arrays and non-finite numbers as strings ("Infinity", "NaN"). */
@@ -98,6 +99,15 @@ export function toCsv(result: RunResult): string {
         body.push(['column', c.frequency[i], finite(c.amplitude[i]), finite(c.lower[i]), finite(c.upper[i]), finite(c.cost[i]), '']);
       }
       return rows(['row', 'frequency_Hz', 'amplitude_m', 'lower_limit_m', 'upper_limit_m', `cost_${COST_UNIT[l.cost]}`, 'binding'], body);
+    }
+    case 'holdprob': {
+      // One row per sample: its drawn values (SI, headed by the field path and unit), margin, verdict and noise seed.
+      const h = result.value;
+      const fields = h.tolerances.map((t) => `${t.field}_${SWEEPABLE_FIELDS.find((f) => f.path === t.field)?.unit ?? 'SI'}`);
+      const body = Array.from(h.margin, (m, i) => [
+        i + 1, ...h.values.map((v) => v[i]), Number.isFinite(m) ? m : null, h.heldBySample[i] === 1, h.noiseSeeds[i] || null,
+      ]);
+      return rows(['sample', ...fields, 'margin_percent', 'held', 'noise_seed'], body);
     }
   }
 }

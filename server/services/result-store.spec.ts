@@ -1,8 +1,10 @@
 import { describe, expect, it } from 'vitest';
 import type { StabilityChart } from '../../shared/engine/chart';
 import { resultDigest, type RunResult } from '../../shared/engine/run-record';
+import type { HoldProbResult } from '../../shared/engine/holdprob';
 import type { LeanestResult } from '../../shared/engine/leanest';
-import { MAX_CHART_COUNT, MAX_LEANEST_COUNT, MAX_MAP_COUNT, MAX_SWEEP_STEPS } from '../../shared/engine/run-kinds';
+import { MAX_CHART_COUNT, MAX_HOLDPROB_SAMPLES, MAX_LEANEST_COUNT, MAX_MAP_COUNT, MAX_SWEEP_STEPS } from '../../shared/engine/run-kinds';
+import { MAX_TOLERANCES } from '../../shared/case/case-schema';
 import type { CellMap, MapCell, SweepPoint, SweepResult } from '../../shared/engine/sweep';
 import { ENGINE_VERSION } from '../../shared/engine/version';
 import {
@@ -85,6 +87,21 @@ function leanestOf(n: number): RunResult {
   return { kind: 'leanest', value };
 }
 
+/** A hold probability at its most samples and tolerances: every sample's values, margin, verdict and noise seed. */
+function holdprobOf(n: number, d: number): RunResult {
+  const column = () => Float64Array.from({ length: n }, noise);
+  const tolerances = Array.from({ length: d }, () => ({ field: 'drive.amplitude', distribution: 'normal' as const, sigma: noise() }));
+  const value: HoldProbResult = {
+    engineVersion: ENGINE_VERSION, parts: 'both', sampler: 'latin-hypercube', seed: 4294967295, samplesRequested: n,
+    samplesUsed: n, held: n / 2, invalid: 0, probability: 0.5, interval: { lower: 0.48, upper: 0.52, confidence: 0.95 },
+    targetWidth: 0, stopped: 'all-samples', tolerances, values: tolerances.map(column), margin: column(),
+    heldBySample: Float64Array.from({ length: n }, (_, i) => i % 2), noiseSeeds: Float64Array.from({ length: n }, () => Math.floor(4e9 * Math.abs(noise()))),
+    ranking: tolerances.map((t) => ({ field: t.field, rankCorrelation: noise() })),
+    histogram: { edges: Float64Array.from({ length: 21 }, noise), counts: Float64Array.from({ length: 20 }, noise) },
+  };
+  return { kind: 'holdprob', value };
+}
+
 describe('the run registry and the stored-result limits agree', () => {
   // A run the registry accepts must be storable: the largest of each kind fits both size limits.
   it.each([
@@ -92,6 +109,7 @@ describe('the run registry and the stored-result limits agree', () => {
     [`a ${MAX_CHART_COUNT}x${MAX_CHART_COUNT} chart`, () => chartOf(MAX_CHART_COUNT)],
     [`a ${MAX_MAP_COUNT}x${MAX_MAP_COUNT} outcome map`, () => mapOf(MAX_MAP_COUNT)],
     [`a ${MAX_LEANEST_COUNT}x${MAX_LEANEST_COUNT} leanest-drive search`, () => leanestOf(MAX_LEANEST_COUNT)],
+    [`a ${MAX_HOLDPROB_SAMPLES}-sample hold probability over ${MAX_TOLERANCES} tolerances`, () => holdprobOf(MAX_HOLDPROB_SAMPLES, MAX_TOLERANCES)],
   ])('stores %s, the largest the registry accepts', (_name, make) => {
     const stored = compressResult(make());
     expect(stored.rawBytes).toBeLessThan(RESULT_MAX_RAW_BYTES);

@@ -6,8 +6,8 @@
  * results the run registry accepts (shared/engine/run-kinds.ts: MAX_SWEEP_STEPS, MAX_CHART_COUNT, MAX_MAP_COUNT)
  * fit with room to spare (a motion at the case limit of 200,000 output points is about 13 MB of text; a 200x200
  * stability chart about 0.45 MB; a 400-point sweep about 0.1 MB; a 200x200 outcome map about 5 MB before
- * compression; a 120x120 leanest-drive search with its chart and admissible cells about 0.5 MB), so a run the
- * registry accepts is a run the server stores.
+ * compression; a 120x120 leanest-drive search with its chart and admissible cells about 0.5 MB; a 4096-sample hold
+ * probability over 12 tolerances about 1.4 MB), so a run the registry accepts is a run the server stores.
  */
 import { gunzipSync, gzipSync } from 'node:zlib';
 import { RESULT_ENCODING, decodeRunResult, encodeRunResult } from '../../shared/engine/result-codec';

@@ -9,6 +9,7 @@ import { stabilityChartRows, type Grid2 } from './chart';
 import { fitFreeSwing, type FitModel, type FitResult } from './fit';
 import { floquetAnalysis, type FloquetAnalysis } from './floquet';
 import { axisValues } from './chart';
+import { holdSamples, type HoldDraw, type HoldProbSpec, type HoldSample } from './holdprob';
 import { leanestColumns, leanestRefine, type LeanestOptimum, type LeanestPoint, type LeanestSpec } from './leanest';
 import { EngineCancelledError, simulateMotion, type MotionResult } from './motion';
 import { overlayDrivenTrace, type OverlayResult } from './trace-drive';
@@ -102,15 +103,24 @@ export interface LeanestRefineTask {
   points: LeanestPoint[];
 }
 
+/** Hold probability: samples [from, from + draws.length) of a run, each from its drawn values and noise seed. */
+export interface HoldProbChunkTask {
+  type: 'holdprob-chunk';
+  params: CaseParams;
+  spec: HoldProbSpec;
+  from: number;
+  draws: HoldDraw[];
+}
+
 export type EngineTask =
   | FitTask | OverlayTask | MotionTask | MarginsTask | SweepChunkTask | ChartChunkTask | BasinChunkTask | MapChunkTask
-  | LeanestPointsTask | LeanestRefineTask;
+  | LeanestPointsTask | LeanestRefineTask | HoldProbChunkTask;
 
 export type EngineTaskType = EngineTask['type'];
 
 export const ENGINE_TASK_TYPES: readonly EngineTaskType[] = [
   'fit', 'overlay', 'motion', 'margins', 'sweep-chunk', 'chart-chunk', 'basin-chunk', 'map-chunk',
-  'leanest-points', 'leanest-refine',
+  'leanest-points', 'leanest-refine', 'holdprob-chunk',
 ];
 
 /** Result payloads, one per task type. */
@@ -125,7 +135,8 @@ export type TaskResult =
   | { kind: 'fit'; fit: FitResult }
   | { kind: 'overlay'; overlay: OverlayResult }
   | { kind: 'leanest-points'; part: LeanestPointsTask['part']; points: LeanestPoint[]; cells: Float64Array }
-  | { kind: 'leanest-optimum'; optimum: LeanestOptimum | null };
+  | { kind: 'leanest-optimum'; optimum: LeanestOptimum | null }
+  | { kind: 'holdprob-samples'; from: number; samples: HoldSample[] };
 
 /**
  * Computes one task (its case already validated). Throws EngineCancelledError when `shouldCancel` turns true, and
@@ -177,5 +188,7 @@ export function computeTask(task: EngineTask, hooks: ChunkHooks = {}): TaskResul
     }
     case 'leanest-refine':
       return { kind: 'leanest-optimum', optimum: leanestRefine(params, task.spec, task.points, hooks) };
+    case 'holdprob-chunk':
+      return { kind: 'holdprob-samples', from: task.from, samples: holdSamples(params, task.spec, task.draws, hooks) };
   }
 }

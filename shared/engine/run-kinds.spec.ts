@@ -4,13 +4,14 @@ import { demoRigCase, templateCase, type CaseParams } from '../case';
 import { handleEngineRequest } from '../compute/handle-request';
 import { WorkerPool, type WorkerLike } from '../compute/worker-pool';
 import { axisValues, stabilityChart } from './chart';
+import { assembleHoldProb, drawBlock, holdProbStream, holdSamples } from './holdprob';
 import { assembleLeanest, leanestColumns, leanestEdgeFrequencies, leanestRefine } from './leanest';
 import { floquetAnalysis } from './floquet';
 import { simulateMotion } from './motion';
 import { resultDigest } from './run-record';
 import {
   computeRun, defaultRunSettings, MAX_CHART_COUNT, MAX_MAP_COUNT, MAX_SWEEP_STEPS, parseRunSettings, parseRunSettingsFor,
-  leanestSpecOf, RUN_KINDS, type RunKind, type RunResult, type RunSettings,
+  holdProbSpecOf, leanestSpecOf, RUN_KINDS, type RunKind, type RunResult, type RunSettings,
 } from './run-kinds';
 import {
   assembleCellMap, assembleSweep, basinMapRows, outcomeMapRows, sweepPoints, sweepThresholds, thresholdBrackets,
@@ -18,7 +19,15 @@ import {
 
 function shortCase(): CaseParams {
   const c = templateCase();
-  return { ...c, run: { ...c.run, duration: 2, outputPoints: 200 } };
+  return {
+    ...c, run: { ...c.run, duration: 2, outputPoints: 200 },
+    // used by the hold probability only (other kinds ignore them)
+    tolerances: [
+      { field: 'drive.amplitude', distribution: 'normal', sigma: 5e-4 },
+      { field: 'body.length', distribution: 'uniform', halfWidth: 2e-3 },
+    ],
+    noise: { kind: 'amplitude', density: 1e-10, bandwidth: 100, seed: 1 },
+  };
 }
 
 /** Each kind's default settings for the case, made small enough for a unit test. */
@@ -35,6 +44,8 @@ function smallSettings(kind: RunKind, c: CaseParams): RunSettings {
       grid: { x: { ...s.grid.x, count: 9 }, y: { ...s.grid.y, count: 5 } },
     };
   }
+  // Two tasks of 8 samples, one block, tolerances and noise.
+  if (s.kind === 'holdprob') return { ...s, samples: 16, targetWidth: 0, relTolerance: 1e-3 };
   return s;
 }
 
@@ -64,6 +75,11 @@ function directRun(c: CaseParams, s: RunSettings): RunResult {
       const extra = leanestColumns(c, spec, leanestEdgeFrequencies(c, spec), null).points;
       const optimum = leanestRefine(c, spec, [...columns.points, ...extra]);
       return { kind: 'leanest', value: assembleLeanest(spec, stabilityChart(c, s.grid), columns.points, columns.cells, optimum) };
+    }
+    case 'holdprob': {
+      const spec = holdProbSpecOf(s);
+      const draws = drawBlock(c, spec, holdProbStream(spec.seed), spec.samples);
+      return { kind: 'holdprob', value: assembleHoldProb(c, spec, draws, holdSamples(c, spec, draws), 'all-samples') };
     }
   }
 }

@@ -11,12 +11,17 @@ import { z } from 'zod';
 import { CASE_LIMITS, type CaseParams } from '../case/case-schema';
 import { bodyProperties } from './body';
 import { SWEEPABLE_FIELDS, sweepableFieldsFor } from '../case/case-fields';
+import { HOLDPROB_PARTS_WORDS, toleranceFieldLabel } from '../case/holdprob-words';
 import { bindingWords } from '../case/leanest-words';
 import { assembleChart, defaultChartGrid, type StabilityChart } from './chart';
 import {
   assembleLeanest, leanestEdgeFrequencies, type LeanestEnvelope, type LeanestPoint, type LeanestResult, type LeanestSpec,
 } from './leanest';
 import type { TaskResult } from './engine-task';
+import {
+  assembleHoldProb, drawBlock, HOLDPROB_BLOCK, HOLDPROB_SAMPLES_PER_CHUNK, holdProbStream, wilsonInterval,
+  type HoldDraw, type HoldProbResult, type HoldProbSpec, type HoldProbStop, type HoldSample,
+} from './holdprob';
 import { MULTIPLIER_UNIT_TOLERANCE, type FloquetAnalysis } from './floquet';
 import type { MotionResult } from './motion';
 import { expectResult, rowRanges, runJobInThread, type RunJob } from './run-job';
@@ -156,6 +161,23 @@ export const leanestSettingsSchema = z.strictObject({
   relTolerance: z.number().min(1e-10, { message: 'must be at least 1e-10' }).max(1e-2, { message: 'must be at most 0.01' }),
 });
 
+/** Most samples of a hold-probability run (each is a Floquet analysis and/or a full motion run). */
+export const MAX_HOLDPROB_SAMPLES = 4096;
+export const HOLDPROB_PARTS = ['tolerances', 'noise', 'both'] as const;
+export const holdprobSettingsSchema = z.strictObject({
+  kind: z.literal('holdprob'),
+  samples: z.int({ message: 'must be a whole number' }).min(HOLDPROB_SAMPLES_PER_CHUNK, { message: `must be at least ${HOLDPROB_SAMPLES_PER_CHUNK}` })
+    .max(MAX_HOLDPROB_SAMPLES, { message: `must be at most ${MAX_HOLDPROB_SAMPLES}` }),
+  sampler: z.enum(['latin-hypercube'], { message: 'must be latin-hypercube' }),
+  seed: z.int({ message: 'must be a whole number' }).min(1, { message: 'must be at least 1' })
+    .max(4294967295, { message: 'must be at most 4294967295' }),
+  /** probability (0..1): stop once the 95 % interval is narrower; 0 never stops early */
+  targetWidth: z.number({ message: 'must be a finite number' }).min(0, { message: 'must be at least 0' })
+    .max(1, { message: 'must be at most 1' }),
+  parts: z.enum(HOLDPROB_PARTS, { message: `must be one of ${HOLDPROB_PARTS.join(', ')}` }),
+  relTolerance: z.number().min(1e-10, { message: 'must be at least 1e-10' }).max(1e-2, { message: 'must be at most 0.01' }),
+});
+
 export type MotionSettings = z.infer<typeof motionSettingsSchema>;
 export type MarginsSettings = z.infer<typeof marginsSettingsSchema>;
 export type SweepSettings = z.infer<typeof sweepSettingsSchema>;
@@ -163,6 +185,55 @@ export type ChartSettings = z.infer<typeof chartSettingsSchema>;
 export type MapSettings = z.infer<typeof mapSettingsSchema>;
 export type BasinSettings = z.infer<typeof basinSettingsSchema>;
 export type LeanestSettings = z.infer<typeof leanestSettingsSchema>;
+export type HoldProbSettings = z.infer<typeof holdprobSettingsSchema>;
+
+/** The engine's form of hold-probability settings. */
+export function holdProbSpecOf(s: HoldProbSettings): HoldProbSpec {
+  return { samples: s.samples, sampler: s.sampler, seed: s.seed, targetWidth: s.targetWidth, parts: s.parts, relTolerance: s.relTolerance };
+}
+
+/**
+ * Default hold-probability settings: 256 samples (stopping early once the 95 % interval is narrower than 10
+ * percentage points), the parts the case has (its tolerances, its drive noise, or both), a fixed seed.
+ */
+export function defaultHoldProbSettings(params: CaseParams): HoldProbSettings {
+  const noise = params.noise !== undefined;
+  const tolerances = (params.tolerances?.length ?? 0) > 0;
+  return {
+    kind: 'holdprob', samples: 256, sampler: 'latin-hypercube', seed: 1927, targetWidth: 0.1,
+    parts: noise ? (tolerances ? 'both' : 'noise') : 'tolerances', relTolerance: 1e-4,
+  };
+}
+
+/**
+ * A hold-probability run: blocks of HOLDPROB_BLOCK samples, each block one stage of fixed chunks; between blocks,
+ * the Wilson interval decides whether to stop (deterministic: whole blocks, the same numbers on any pool).
+ */
+function* holdprobJob(params: CaseParams, settings: HoldProbSettings): RunJob<HoldProbResult> {
+  const spec = holdProbSpecOf(settings);
+  const rand = holdProbStream(spec.seed);
+  const draws: HoldDraw[] = [];
+  const samples: HoldSample[] = [];
+  let stopped: HoldProbStop = 'all-samples';
+  for (let start = 0; start < spec.samples; start += HOLDPROB_BLOCK) {
+    const block = drawBlock(params, spec, rand, Math.min(HOLDPROB_BLOCK, spec.samples - start));
+    const results = yield {
+      tasks: rowRanges(block.length, HOLDPROB_SAMPLES_PER_CHUNK).map(([from, to]) => ({
+        type: 'holdprob-chunk', params, spec, from: start + from, draws: block.slice(from, to),
+      })),
+      span: [start / spec.samples, Math.min(1, (start + block.length) / spec.samples)],
+    };
+    draws.push(...block);
+    for (const r of results) samples.push(...expectResult(r, 'holdprob-samples').samples);
+    const held = samples.filter((s) => s.held).length;
+    const { lower, upper } = wilsonInterval(held, samples.length);
+    if (spec.targetWidth > 0 && samples.length < spec.samples && upper - lower < spec.targetWidth) {
+      stopped = 'target-width';
+      break;
+    }
+  }
+  return assembleHoldProb(params, spec, draws, samples, stopped);
+}
 
 /** The engine's form of leanest-drive settings: one flat envelope in SI. */
 export function leanestSpecOf(settings: LeanestSettings): LeanestSpec {
@@ -221,6 +292,7 @@ export interface RunKindTypes {
   map: { settings: MapSettings; value: CellMap; partial: RowsPartial<MapCell[]> };
   basin: { settings: BasinSettings; value: CellMap; partial: RowsPartial<MapCell[]> };
   leanest: { settings: LeanestSettings; value: LeanestResult; partial: RowsPartial<Float64Array> };
+  holdprob: { settings: HoldProbSettings; value: HoldProbResult; partial: { from: number; samples: HoldSample[] } };
 }
 
 export type RunKind = keyof RunKindTypes;
@@ -252,6 +324,8 @@ export interface RunKindDef<K extends RunKind> {
   summarise(value: RunValueOf<K>): RunSummary;
   /** The case fields the settings vary, each with its dotted path inside the settings. */
   fields(settings: RunSettingsOf<K>): Array<{ at: string; field: string }>;
+  /** What else the settings need of the case, beyond its fields: the problem (dotted path in the settings), or null. */
+  needs?(params: CaseParams, settings: RunSettingsOf<K>): { at: string; message: string } | null;
 }
 
 const noPartial = (): undefined => undefined;
@@ -495,8 +569,33 @@ export const RUN_KIND_REGISTRY: { readonly [K in RunKind]: RunKindDef<K> } = {
       };
     },
   },
+  holdprob: {
+    settings: holdprobSettingsSchema,
+    chunked: true,
+    defaults: defaultHoldProbSettings,
+    job: holdprobJob,
+    partial: (r) => (r.kind === 'holdprob-samples' ? { from: r.from, samples: r.samples } : undefined),
+    fields: () => [],
+    needs: (params, s) => {
+      if (s.parts !== 'noise' && !params.tolerances?.length) return { at: 'parts', message: 'this case has no tolerances' };
+      if (s.parts !== 'tolerances' && !params.noise) return { at: 'parts', message: 'this case has no drive noise' };
+      return null;
+    },
+    summarise: (h) => ({
+      parts: HOLDPROB_PARTS_WORDS[h.parts],
+      probability: h.probability,
+      intervalLower: h.interval.lower,
+      intervalUpper: h.interval.upper,
+      samplesUsed: h.samplesUsed,
+      samplesHeld: h.held,
+      samplesInvalid: h.invalid,
+      stoppedEarly: h.stopped === 'target-width',
+      seed: h.seed,
+      // the on-screen label of the field whose spread matters most (ranking is largest |rho| first)
+      mostInfluential: h.ranking[0]?.rankCorrelation != null ? toleranceFieldLabel(h.ranking[0].field) : null,
+    }),
+  },
 };
-
 export const RUN_KINDS = Object.keys(RUN_KIND_REGISTRY) as readonly RunKind[];
 
 export function isRunKind(value: unknown): value is RunKind {
@@ -506,7 +605,7 @@ export function isRunKind(value: unknown): value is RunKind {
 /** Settings of any kind: the kind's strict schema chosen by `kind`. */
 export const runSettingsSchema = z.discriminatedUnion('kind', [
   motionSettingsSchema, marginsSettingsSchema, sweepSettingsSchema, chartSettingsSchema, mapSettingsSchema, basinSettingsSchema,
-  leanestSettingsSchema,
+  leanestSettingsSchema, holdprobSettingsSchema,
 ]);
 
 /** The registry entry of a kind (typed for that kind). */
@@ -556,9 +655,14 @@ function fieldsOf<K extends RunKind>(kind: K, settings: RunSettingsOf<K>): Array
   return runKind(kind).fields(settings);
 }
 
+function needsOf<K extends RunKind>(kind: K, params: CaseParams, settings: RunSettingsOf<K>): { at: string; message: string } | null {
+  return runKind(kind).needs?.(params, settings) ?? null;
+}
+
 /**
  * Checks settings for a given case: the schema, then that every field they vary exists in this case (a rod's
- * length only for a rod-and-bob body, a connecting rod only for a crank-slider drive).
+ * length only for a rod-and-bob body, a connecting rod only for a crank-slider drive), and what else the kind needs
+ * of the case (a hold probability: the tolerances or drive noise it samples).
  */
 export function parseRunSettingsFor(
   params: CaseParams, input: unknown,
@@ -567,5 +671,7 @@ export function parseRunSettingsFor(
   if (!parsed.ok) return parsed;
   const present = new Set(sweepableFieldsFor(params).map((f) => f.path));
   const missing = fieldsOf(parsed.value.kind, parsed.value).find((f) => !present.has(f.field));
-  return missing ? { ok: false, field: missing.at, message: `this case has no field ${missing.field}` } : parsed;
+  if (missing) return { ok: false, field: missing.at, message: `this case has no field ${missing.field}` };
+  const need = needsOf(parsed.value.kind, params, parsed.value);
+  return need ? { ok: false, field: need.at, message: need.message } : parsed;
 }
