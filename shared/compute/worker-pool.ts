@@ -158,7 +158,7 @@ export class WorkerPool {
     return this.runKind('chart', params, { kind: 'chart', grid });
   }
 
-  /** 1-D sweep: points in chunks, then each threshold between differing outcomes by bisection. */
+  /** 1-D sweep: points in chunks, then the thresholds between differing outcomes by bisection in parallel rounds. */
   sweep(params: CaseParams, spec: SweepSpec): Observable<PoolEvent<SweepResult, SweepPoint[]>> {
     return this.runKind('sweep', params, { kind: 'sweep', spec });
   }

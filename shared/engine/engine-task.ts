@@ -6,6 +6,7 @@
  */
 import type { CaseParams } from '../case/case-schema';
 import { stabilityChartRows, type Grid2 } from './chart';
+import type { MotionOutcome } from './classify';
 import { fitFreeSwing, type FitModel, type FitResult } from './fit';
 import { floquetAnalysis, type FloquetAnalysis } from './floquet';
 import { axisValues } from './chart';
@@ -14,8 +15,8 @@ import { leanestColumns, leanestRefine, type LeanestOptimum, type LeanestPoint, 
 import { EngineCancelledError, simulateMotion, type MotionResult } from './motion';
 import { overlayDrivenTrace, type OverlayResult } from './trace-drive';
 import {
-  basinMapRows, outcomeMapRows, sweepPoints, sweepThresholds,
-  type BasinCell, type ChunkHooks, type MapCell, type SweepPoint, type SweepSpec, type SweepThreshold, type ThresholdBracket,
+  basinMapRows, outcomeMapRows, sweepPoints, thresholdOutcomes,
+  type BasinCell, type ChunkHooks, type MapCell, type SweepPoint, type SweepSpec, type ThresholdBracket,
 } from './sweep';
 
 /** Simulate the motion of one case. */
@@ -31,12 +32,17 @@ export interface MarginsTask {
   relTolerance?: number;
 }
 
-/** Part of a 1-D sweep: the points with index in [from, to), or the thresholds inside the given brackets. */
+/**
+ * Part of a 1-D sweep: the points with index in [from, to), or the outcomes (for a 'multiplier' bracket the upright's
+ * verdicts) at values a round of threshold refinement evaluates.
+ */
 export interface SweepChunkTask {
   type: 'sweep-chunk';
   params: CaseParams;
   spec: SweepSpec;
-  part: { kind: 'points'; from: number; to: number } | { kind: 'thresholds'; brackets: ThresholdBracket[] };
+  part:
+    | { kind: 'points'; from: number; to: number }
+    | { kind: 'threshold-probes'; bracket: ThresholdBracket['kind']; values: number[] };
 }
 
 /** Rows [rowFrom, rowTo) of a stability chart. */
@@ -128,7 +134,7 @@ export type TaskResult =
   | { kind: 'motion'; motion: MotionResult }
   | { kind: 'margins'; analysis: FloquetAnalysis }
   | { kind: 'sweep-points'; points: SweepPoint[] }
-  | { kind: 'sweep-thresholds'; thresholds: SweepThreshold[] }
+  | { kind: 'sweep-probes'; outcomes: Array<MotionOutcome | null> }
   | { kind: 'chart-rows'; rowFrom: number; rowTo: number; values: Float64Array }
   | { kind: 'basin-rows'; rowFrom: number; rowTo: number; cells: BasinCell[] }
   | { kind: 'map-rows'; rowFrom: number; rowTo: number; cells: MapCell[] }
@@ -162,7 +168,7 @@ export function computeTask(task: EngineTask, hooks: ChunkHooks = {}): TaskResul
       if (part.kind === 'points') {
         return { kind: 'sweep-points', points: sweepPoints(params, task.spec, part.from, part.to, hooks) };
       }
-      return { kind: 'sweep-thresholds', thresholds: sweepThresholds(params, task.spec, part.brackets, hooks) };
+      return { kind: 'sweep-probes', outcomes: thresholdOutcomes(params, task.spec, part.bracket, part.values, hooks) };
     }
     case 'chart-chunk': {
       const { values, cancelled } = stabilityChartRows(params, task.grid, task.rowFrom, task.rowTo, hooks.onProgress, hooks.shouldCancel);

@@ -17,7 +17,7 @@ import { assembleChart, defaultChartGrid, type StabilityChart } from './chart';
 import {
   assembleLeanest, leanestEdgeFrequencies, type LeanestEnvelope, type LeanestPoint, type LeanestResult, type LeanestSpec,
 } from './leanest';
-import type { TaskResult } from './engine-task';
+import type { EngineTask, TaskResult } from './engine-task';
 import {
   assembleHoldProb, drawBlock, HOLDPROB_BLOCK, HOLDPROB_SAMPLES_PER_CHUNK, holdProbStream, wilsonInterval,
   type HoldDraw, type HoldProbResult, type HoldProbSpec, type HoldProbStop, type HoldSample,
@@ -26,7 +26,8 @@ import { MULTIPLIER_UNIT_TOLERANCE, type FloquetAnalysis } from './floquet';
 import type { MotionResult } from './motion';
 import { expectResult, rowRanges, runJobInThread, type RunJob } from './run-job';
 import {
-  assembleCellMap, assembleSweep, defaultBasinGrid, thresholdBrackets,
+  advanceThresholdSearch, assembleCellMap, assembleSweep, defaultBasinGrid, finishThresholdSearch, startThresholdSearch,
+  sweepTolerance, thresholdBrackets, thresholdRoundValues, thresholdSearchOpen, thresholdStepsLeft,
   type CellMap, type ChunkHooks, type MapCell, type SweepPoint, type SweepResult,
 } from './sweep';
 
@@ -43,6 +44,22 @@ export const MAX_MAP_COUNT = 200;
 export const CHART_ROWS_PER_CHUNK = 8;
 export const MAP_ROWS_PER_CHUNK = 1;
 export const SWEEP_POINTS_PER_CHUNK = 2;
+/**
+ * Threshold refinement runs in rounds, each one stage: per open bracket the 2^depth - 1 midpoints the next `depth`
+ * bisection steps could try. The depth is the least (at most 4) that gives a round this many motion runs, counted
+ * over the outcome brackets, so a round keeps several workers busy; it depends only on the job, and the thresholds
+ * do not depend on it at all (each round replays the serial bisection's steps).
+ */
+export const THRESHOLD_RUNS_PER_ROUND = 6;
+const MAX_THRESHOLD_ROUND_DEPTH = 4;
+
+/** Bisection steps per round of threshold refinement when `outcomeBrackets` outcome brackets are open. */
+export function thresholdRoundDepth(outcomeBrackets: number): number {
+  const n = Math.max(1, outcomeBrackets);
+  let depth = 1;
+  while (depth < MAX_THRESHOLD_ROUND_DEPTH && n * (2 ** depth - 1) < THRESHOLD_RUNS_PER_ROUND) depth++;
+  return depth;
+}
 /** Most samples per axis of a leanest-drive search (each column is a Floquet limit search). */
 export const MAX_LEANEST_COUNT = 120;
 /** Chart columns per task of a leanest-drive search. */
@@ -338,11 +355,33 @@ function* sweepJob(params: CaseParams, { spec }: SweepSettings): RunJob<SweepRes
     span: [0, 0.7],
   };
   const points = pointParts.flatMap((r) => expectResult(r, 'sweep-points').points);
-  const thresholdParts = yield {
-    tasks: thresholdBrackets(points).map((b) => ({ type: 'sweep-chunk', params, spec, part: { kind: 'thresholds', brackets: [b] } })),
-    span: [0.7, 1],
-  };
-  return assembleSweep(spec, points, thresholdParts.flatMap((r) => expectResult(r, 'sweep-thresholds').thresholds));
+  const tolerance = sweepTolerance(spec);
+  const searches = thresholdBrackets(points).map(startThresholdSearch);
+  // Progress per round from the rounds the widest bracket needs at the first round's depth (an estimate).
+  const firstDepth = thresholdRoundDepth(searches.filter((s) => s.bracket.kind === 'outcome').length);
+  const rounds = Math.max(1, ...searches.map((s) => Math.ceil(thresholdStepsLeft(spec, s, tolerance) / firstDepth)));
+  for (let round = 0; ; round++) {
+    const open = searches.filter((s) => thresholdSearchOpen(s, tolerance));
+    if (open.length === 0) break;
+    const depth = thresholdRoundDepth(open.filter((s) => s.bracket.kind === 'outcome').length);
+    const plan = open.map((search) => ({ search, values: thresholdRoundValues(spec, search, depth, tolerance) }));
+    // A motion run per task for outcome brackets; a bracket's upright verdicts are cheap, so they share one task.
+    const tasks: EngineTask[] = plan.flatMap(({ search, values }) => {
+      const bracket = search.bracket.kind;
+      const groups = bracket === 'outcome' ? values.map((v) => [v]) : [values];
+      return groups.map((g) => ({ type: 'sweep-chunk', params, spec, part: { kind: 'threshold-probes', bracket, values: g } }) as const);
+    });
+    const results = yield {
+      tasks, span: [0.7 + (0.3 * Math.min(round, rounds)) / rounds, 0.7 + (0.3 * Math.min(round + 1, rounds)) / rounds],
+    };
+    const outcomes = results.flatMap((r) => expectResult(r, 'sweep-probes').outcomes);
+    let at = 0;
+    for (const { search, values } of plan) {
+      advanceThresholdSearch(spec, search, depth, tolerance, values, outcomes.slice(at, at + values.length));
+      at += values.length;
+    }
+  }
+  return assembleSweep(spec, points, searches.map((s) => finishThresholdSearch(s, tolerance)));
 }
 
 function* mapJob(params: CaseParams, settings: MapSettings | BasinSettings, type: 'map-chunk' | 'basin-chunk'): RunJob<CellMap> {

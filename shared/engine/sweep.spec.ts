@@ -2,7 +2,13 @@ import { describe, expect, it } from 'vitest';
 import { templateCase, type CaseParams } from '../case';
 import { driveLimits } from './floquet';
 import { computeRun } from './run-kinds';
-import { basinMapRows, locateThreshold, outcomeMapRows, sweepPoints, sweepValues, type SweepResult } from './sweep';
+import type { MotionOutcome } from './classify';
+import { thresholdRoundDepth } from './run-kinds';
+import {
+  advanceThresholdSearch, basinMapRows, finishThresholdSearch, locateThreshold, outcomeMapRows, startThresholdSearch, sweepPoints,
+  sweepTolerance, sweepValues, thresholdBrackets, thresholdRoundValues, thresholdSearchOpen, type SweepResult, type SweepSpec,
+  type SweepThreshold, type ThresholdBracket,
+} from './sweep';
 import type { Grid2 } from './chart';
 
 function shortCase(duration = 3): CaseParams {
@@ -30,7 +36,47 @@ describe('sweep', () => {
     expect(outcome.length).toBeGreaterThan(0);
     // The motion (a finite run) and the Floquet verdict agree on where the upright is lost, to about a hertz.
     expect(Math.abs(outcome[0].value - limit)).toBeLessThan(1.5);
+    // The job's parallel rounds (eight bisection steps here, 10 Hz down to 0.05 Hz) end exactly where the serial bisection does.
+    expect(r.thresholds).toEqual(thresholdBrackets(r.points).map((b) => locateThreshold(c, spec, b)).sort((a, b) => a.value - b.value || a.kind.localeCompare(b.kind)));
   }, 60_000);
+
+  it('refines in parallel rounds to exactly the serial bisection, at any round depth, for outcomes that change more than once', () => {
+    // A made-up outcome with three changes inside the bracket, so which change is found depends on the order of steps.
+    const outcomeAt = (x: number): MotionOutcome | null => (x < 0.3 || (x > 0.5 && x < 0.6) ? 'falls' : x < 0.9 ? 'holds-upright' : null);
+    const bracket: ThresholdBracket = { kind: 'outcome', lo: 0.05, hi: 1.05, loOutcome: 'falls', hiOutcome: null };
+    const inRounds = (spec: SweepSpec, depth: number): { threshold: SweepThreshold; rounds: number; evaluated: number } => {
+      const tolerance = sweepTolerance(spec);
+      const search = startThresholdSearch(bracket);
+      let rounds = 0;
+      let evaluated = 0;
+      while (thresholdSearchOpen(search, tolerance)) {
+        const values = thresholdRoundValues(spec, search, depth, tolerance);
+        expect(values.length).toBeLessThanOrEqual(2 ** depth - 1);
+        advanceThresholdSearch(spec, search, depth, tolerance, values, values.map(outcomeAt));
+        rounds++;
+        evaluated += values.length;
+      }
+      return { threshold: finishThresholdSearch(search, tolerance), rounds, evaluated };
+    };
+    for (const scale of ['linear', 'log'] as const) {
+      const spec: SweepSpec = { field: 'drive.amplitude', from: 0.05, to: 1.05, steps: 2, scale, tolerance: 1e-4 };
+      const serial = inRounds(spec, 1);
+      expect(serial.rounds).toBe(serial.threshold.probes.length);
+      expect(serial.threshold.bracket[1] - serial.threshold.bracket[0]).toBeLessThanOrEqual(1e-4);
+      // The linear first midpoint, 0.55, lies on the island, so the bisection ends at its upper edge, not at 0.3.
+      expect(serial.threshold.value).toBeCloseTo(scale === 'linear' ? 0.6 : 0.3, 3);
+      for (const depth of [2, 3, 4]) {
+        const parallel = inRounds(spec, depth);
+        expect(parallel.threshold).toEqual(serial.threshold);
+        expect(parallel.rounds).toBe(Math.ceil(serial.rounds / depth));
+        expect(parallel.evaluated).toBeGreaterThan(serial.rounds);
+      }
+    }
+  });
+
+  it('chooses round depths that give a round at least six motion runs where it can, at most four steps deep', () => {
+    expect([0, 1, 2, 3, 5, 6, 20].map(thresholdRoundDepth)).toEqual([3, 3, 2, 2, 2, 1, 1]);
+  });
 
   it('gives the same points however the index range is split', () => {
     const c = shortCase(1);

@@ -6,7 +6,9 @@
  * setField, then validated again), so the numbers do not depend on how the points are split between workers. The
  * functions take an index range for that split. Thresholds are where the outcome changes between neighbouring
  * points, refined by bisection on the field to a stated absolute tolerance; the largest |Floquet multiplier| of the
- * upright (floquet.ts) is reported per point, and its crossings of 1 are thresholds too.
+ * upright (floquet.ts) is reported per point, and its crossings of 1 are thresholds too. The sweep job runs the
+ * bisection in rounds: each round evaluates, in parallel, every midpoint the next few steps could try, then takes
+ * those steps, so the thresholds are bit for bit those of the serial bisection (`locateThreshold`).
  */
 import type { CaseParams } from '../case/case-schema';
 import { getField, setField } from '../case/case-fields';
@@ -86,6 +88,7 @@ export interface SweepThreshold {
   /**
    * The bisection's own evaluations in the order made: an outcome named in `below`/`above` may occur only here, not
    * at any sweep point. Left out of the run's result digest (run-record.ts): they are the working behind `value`.
+   * Values a parallel round evaluated but the bisection never reached are not listed.
    */
   probes: ThresholdProbe[];
 }
@@ -181,36 +184,92 @@ function verdict(maxMultiplier: number): MotionOutcome {
   return holdsBy(maxMultiplier) ? 'holds-upright' : 'falls';
 }
 
+/** A threshold being located: its bracket so far and the bisection's evaluations in the order made. */
+export interface ThresholdSearch {
+  bracket: ThresholdBracket;
+  lo: number;
+  hi: number;
+  hiOutcome: MotionOutcome | null;
+  probes: ThresholdProbe[];
+}
+
+/** Most bisection steps of one threshold: a guard, a positive tolerance ends the search long before. */
+const MAX_BISECTIONS = 200;
+
+/** The search of a bracket found between sweep points, before any bisection. */
+export function startThresholdSearch(bracket: ThresholdBracket): ThresholdSearch {
+  return { bracket, lo: bracket.lo, hi: bracket.hi, hiOutcome: bracket.hiOutcome, probes: [] };
+}
+
+/** The bisection continues while the bracket is wider than the tolerance (and the guard allows). */
+export function thresholdSearchOpen(search: ThresholdSearch, tolerance: number): boolean {
+  return search.probes.length < MAX_BISECTIONS && Math.abs(search.hi - search.lo) > tolerance;
+}
+
+/** The value the bisection tries between a and b: the midpoint, geometric for a log sweep over positive values. */
+function bisectionPoint(spec: SweepSpec, a: number, b: number): number {
+  return spec.scale === 'log' && a > 0 && b > 0 ? Math.sqrt(a * b) : 0.5 * (a + b);
+}
+
 /**
- * Refines a bracket by bisection until its width is at most the tolerance. The midpoint replaces `lo` when its
- * outcome (or upright verdict) equals lo's, else `hi`, so the bracket always straddles a change away from lo's
- * outcome. Midpoints are geometric for a log sweep.
+ * At most `steps` bisection steps: the midpoint replaces `lo` when its outcome (or upright verdict) equals lo's,
+ * else `hi`, so the bracket always straddles a change away from lo's outcome. Stops early when the search closes
+ * or `outcomeAt` has no outcome for the midpoint (undefined).
  */
-export function locateThreshold(
-  params: CaseParams, spec: SweepSpec, bracket: ThresholdBracket, shouldCancel?: () => boolean,
-): SweepThreshold {
-  const tolerance = sweepTolerance(spec);
-  let lo = bracket.lo;
-  let hi = bracket.hi;
-  let hiOutcome = bracket.hiOutcome;
-  const probes: ThresholdProbe[] = [];
-  const evaluate = (x: number): MotionOutcome | null => {
-    if (bracket.kind === 'outcome') return motionCell(params, [[spec.field, x]], shouldCancel).outcome;
-    const c = variedCase(params, [[spec.field, x]]);
-    return typeof c === 'string' ? null : verdict(uprightMaxMultiplier(c));
-  };
-  for (let i = 0; i < 200 && Math.abs(hi - lo) > tolerance; i++) {
-    if (shouldCancel?.()) throw new EngineCancelledError();
-    const mid = spec.scale === 'log' && lo > 0 && hi > 0 ? Math.sqrt(lo * hi) : 0.5 * (lo + hi);
-    const o = evaluate(mid);
-    probes.push({ value: mid, outcome: o });
-    if (o === bracket.loOutcome) {
-      lo = mid;
+function bisect(
+  spec: SweepSpec, search: ThresholdSearch, tolerance: number, steps: number,
+  outcomeAt: (value: number) => MotionOutcome | null | undefined,
+): void {
+  for (let i = 0; i < steps && thresholdSearchOpen(search, tolerance); i++) {
+    const mid = bisectionPoint(spec, search.lo, search.hi);
+    const o = outcomeAt(mid);
+    if (o === undefined) return;
+    search.probes.push({ value: mid, outcome: o });
+    if (o === search.bracket.loOutcome) {
+      search.lo = mid;
     } else {
-      hi = mid;
-      hiOutcome = o;
+      search.hi = mid;
+      search.hiOutcome = o;
     }
   }
+}
+
+/**
+ * Every value the next `depth` bisection steps of the search could evaluate, whatever the outcomes: the tree of
+ * midpoints (pre-order), 2^depth - 1 values, fewer where a sub-bracket would already be within the tolerance. Each
+ * is computed by the same arithmetic the bisection uses, so it is the very number a step would try.
+ */
+export function thresholdRoundValues(spec: SweepSpec, search: ThresholdSearch, depth: number, tolerance: number): number[] {
+  const out: number[] = [];
+  const visit = (lo: number, hi: number, level: number): void => {
+    const made = search.probes.length + level;
+    if (level >= depth || made >= MAX_BISECTIONS || !(Math.abs(hi - lo) > tolerance)) return;
+    const mid = bisectionPoint(spec, lo, hi);
+    out.push(mid);
+    visit(lo, mid, level + 1);
+    visit(mid, hi, level + 1);
+  };
+  visit(search.lo, search.hi, 0);
+  return out;
+}
+
+/**
+ * Advances a search by up to `depth` bisection steps, reading each step's outcome from the round's evaluations
+ * (`values[i]` had `outcomes[i]`). The steps, and so the final bracket, are exactly those of a bisection that
+ * evaluated one midpoint at a time; the round's other values were evaluated in case the outcomes went the other way.
+ */
+export function advanceThresholdSearch(
+  spec: SweepSpec, search: ThresholdSearch, depth: number, tolerance: number,
+  values: readonly number[], outcomes: ReadonlyArray<MotionOutcome | null>,
+): void {
+  const found = new Map<number, MotionOutcome | null>();
+  values.forEach((v, i) => found.set(v, outcomes[i]));
+  bisect(spec, search, tolerance, depth, (x) => found.get(x));
+}
+
+/** The located threshold: the midpoint of the final bracket. */
+export function finishThresholdSearch(search: ThresholdSearch, tolerance: number): SweepThreshold {
+  const { bracket, lo, hi, hiOutcome } = search;
   return {
     kind: bracket.kind,
     value: 0.5 * (lo + hi),
@@ -218,8 +277,65 @@ export function locateThreshold(
     tolerance,
     below: lo < hi ? bracket.loOutcome : hiOutcome,
     above: lo < hi ? hiOutcome : bracket.loOutcome,
-    probes,
+    probes: search.probes,
   };
+}
+
+/**
+ * Bisection steps the search may still need: along the widest sub-bracket, so an upper estimate (a log sweep's
+ * geometric midpoints split a bracket unevenly).
+ */
+export function thresholdStepsLeft(spec: SweepSpec, search: ThresholdSearch, tolerance: number): number {
+  let lo = search.lo;
+  let hi = search.hi;
+  let n = search.probes.length;
+  while (n < MAX_BISECTIONS && Math.abs(hi - lo) > tolerance) {
+    const mid = bisectionPoint(spec, lo, hi);
+    if (Math.abs(mid - lo) >= Math.abs(hi - mid)) hi = mid;
+    else lo = mid;
+    n++;
+  }
+  return n - search.probes.length;
+}
+
+/**
+ * Outcomes at field values, for a bracket of the given kind: the motion outcome, or for 'multiplier' the upright's
+ * verdict ('holds-upright' when |multiplier| < 1, else 'falls'); null where the case is invalid.
+ */
+export function thresholdOutcomes(
+  params: CaseParams, spec: SweepSpec, kind: ThresholdBracket['kind'], values: readonly number[], hooks: ChunkHooks = {},
+): Array<MotionOutcome | null> {
+  return values.map((x, i) => {
+    if (hooks.shouldCancel?.()) throw new EngineCancelledError();
+    const o = thresholdOutcome(params, spec, kind, x, hooks.shouldCancel);
+    hooks.onProgress?.((i + 1) / values.length);
+    return o;
+  });
+}
+
+function thresholdOutcome(
+  params: CaseParams, spec: SweepSpec, kind: ThresholdBracket['kind'], x: number, shouldCancel?: () => boolean,
+): MotionOutcome | null {
+  if (kind === 'outcome') return motionCell(params, [[spec.field, x]], shouldCancel).outcome;
+  const c = variedCase(params, [[spec.field, x]]);
+  return typeof c === 'string' ? null : verdict(uprightMaxMultiplier(c));
+}
+
+/**
+ * Refines a bracket by bisection, one midpoint at a time, until its width is at most the tolerance (see `bisect`).
+ * Midpoints are geometric for a log sweep. The sweep job reaches the same steps in parallel rounds
+ * (`thresholdRoundValues`); this serial form is the reference they are checked against.
+ */
+export function locateThreshold(
+  params: CaseParams, spec: SweepSpec, bracket: ThresholdBracket, shouldCancel?: () => boolean,
+): SweepThreshold {
+  const tolerance = sweepTolerance(spec);
+  const search = startThresholdSearch(bracket);
+  bisect(spec, search, tolerance, MAX_BISECTIONS, (x) => {
+    if (shouldCancel?.()) throw new EngineCancelledError();
+    return thresholdOutcome(params, spec, bracket.kind, x, shouldCancel);
+  });
+  return finishThresholdSearch(search, tolerance);
 }
 
 /** Thresholds for a list of brackets, with progress per bracket. */
