@@ -22,7 +22,7 @@ import type { Logger } from '../logger';
 import { compressResult } from './result-store';
 
 /** What the verifier needs of a stored run. */
-interface RunToVerify {
+export interface RunToVerify {
   id: string;
   kind: string;
   settings: Record<string, unknown>;
@@ -31,45 +31,54 @@ interface RunToVerify {
   engineVersion: string;
 }
 
+type VerificationRow = Omit<InferCreationAttributes<RunVerification>, 'createdAt'>;
+
+/** The verification row of `run` from the server's own result (or the failure that stopped it). */
+export function verificationRow(run: RunToVerify, outcome: { params: unknown; result: RunResult } | { failure: string }): VerificationRow {
+  if ('failure' in outcome) {
+    return { runId: run.id, state: 'unreproduced', summary: null, resultDigest: null, engineVersion: ENGINE_VERSION, comparison: null, failure: outcome.failure, encoding: null, compressed: null, rawBytes: 0, compressedBytes: 0 };
+  }
+  const parsed = parseCase(outcome.params);
+  if (!parsed.ok) return verificationRow(run, { failure: 'the revision parameters no longer validate' });
+  const record = makeRunRecord(parsed.value, run.settings as unknown as RunSettings, outcome.result);
+  const comparison = compareRun(
+    { id: run.id, kind: run.kind, summary: run.summary as RunSummary, resultDigest: run.resultDigest, engineVersion: run.engineVersion },
+    record,
+  );
+  let stored: ReturnType<typeof compressResult> | null = null;
+  let failure: string | null = null;
+  try {
+    stored = compressResult(outcome.result);
+  } catch (error: unknown) {
+    failure = error instanceof Error ? error.message : String(error);
+  }
+  return {
+    runId: run.id,
+    state: comparison.reproduced && stored ? 'verified' : 'unreproduced',
+    summary: jsonSummary(record.summary),
+    resultDigest: record.resultDigest,
+    engineVersion: record.engineVersion,
+    comparison: comparisonPayload(comparison),
+    failure,
+    encoding: stored?.encoding ?? null,
+    compressed: stored?.compressed ?? null,
+    rawBytes: stored?.rawBytes ?? 0,
+    compressedBytes: stored?.compressedBytes ?? 0,
+  };
+}
+
+/** A summary as JSON can hold it: non-finite numbers as their names. */
+export function jsonSummary(summary: RunSummary): RunSummary {
+  return JSON.parse(JSON.stringify(summary, (_k, v: unknown) => (typeof v === 'number' && !Number.isFinite(v) ? String(v) : v))) as RunSummary;
+}
+
 /**
  * Writes the verification of `run` from the server's own result (or the failure that stopped it). Idempotent: a
  * run verified meanwhile (another server process) keeps its first verification.
  */
 export async function settleRun(run: RunToVerify, outcome: { params: unknown; result: RunResult } | { failure: string }): Promise<RunVerification | null> {
-  let row: Omit<InferCreationAttributes<RunVerification>, 'createdAt'>;
-  if ('failure' in outcome) {
-    row = { runId: run.id, state: 'unreproduced', summary: null, resultDigest: null, engineVersion: ENGINE_VERSION, comparison: null, failure: outcome.failure, encoding: null, compressed: null, rawBytes: 0, compressedBytes: 0 };
-  } else {
-    const parsed = parseCase(outcome.params);
-    if (!parsed.ok) return settleRun(run, { failure: 'the revision parameters no longer validate' });
-    const record = makeRunRecord(parsed.value, run.settings as unknown as RunSettings, outcome.result);
-    const comparison = compareRun(
-      { id: run.id, kind: run.kind, summary: run.summary as RunSummary, resultDigest: run.resultDigest, engineVersion: run.engineVersion },
-      record,
-    );
-    let stored: ReturnType<typeof compressResult> | null = null;
-    let failure: string | null = null;
-    try {
-      stored = compressResult(outcome.result);
-    } catch (error: unknown) {
-      failure = error instanceof Error ? error.message : String(error);
-    }
-    row = {
-      runId: run.id,
-      state: comparison.reproduced && stored ? 'verified' : 'unreproduced',
-      summary: JSON.parse(JSON.stringify(record.summary, (_k, v: unknown) => (typeof v === 'number' && !Number.isFinite(v) ? String(v) : v))) as RunSummary,
-      resultDigest: record.resultDigest,
-      engineVersion: record.engineVersion,
-      comparison: comparisonPayload(comparison),
-      failure,
-      encoding: stored?.encoding ?? null,
-      compressed: stored?.compressed ?? null,
-      rawBytes: stored?.rawBytes ?? 0,
-      compressedBytes: stored?.compressedBytes ?? 0,
-    };
-  }
   try {
-    return await RunVerification.create(row);
+    return await RunVerification.create(verificationRow(run, outcome));
   } catch (error: unknown) {
     if (error instanceof UniqueConstraintError) return null;
     throw error;

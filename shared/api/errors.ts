@@ -41,6 +41,7 @@ export const ERROR_STATUS = {
   client_missing: 404,
   stored_run_not_found: 404,
   result_not_stored: 404,
+  job_not_found: 404,
   // 409: the state of the data forbids it now
   already_member: 409,
   last_owner: 409,
@@ -51,6 +52,7 @@ export const ERROR_STATUS = {
   verification_pending: 409,
   comparison_differs: 409,
   result_pending: 409,
+  job_finished: 409,
   // 410: existed, no longer usable
   link_expired: 410,
   link_revoked: 410,
@@ -75,6 +77,7 @@ export const ERROR_STATUS = {
   /** Only where response checking is on (tests): a reply did not match its route's schema. */
   response_contract: 500,
   database_unavailable: 503,
+  jobs_unavailable: 503,
 } as const;
 
 export type ErrorStatusTable = typeof ERROR_STATUS;

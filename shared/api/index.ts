@@ -11,3 +11,4 @@ export * from './cases';
 export * from './case-links';
 export * from './bench-traces';
 export * from './admin';
+export * from './jobs';

@@ -95,6 +95,11 @@ interface Slot {
   task: Task | null;
 }
 
+/** The engine answered a task with an error (input it cannot compute), as opposed to a worker that was lost. */
+export class EngineTaskError extends Error {
+  override name = 'EngineTaskError';
+}
+
 /** Thrown inside a cancelled job's orchestration; never reaches subscribers. */
 class JobCancelled extends Error {}
 
@@ -129,6 +134,11 @@ export class WorkerPool {
   /** A run of any kind, computed by the registry's job for it; partial results are not reported. */
   run(params: CaseParams, settings: RunSettings): Observable<PoolEvent<RunResult>> {
     return this.runJob<RunResult, never>(runJob(params, settings), () => undefined);
+  }
+
+  /** One engine task as it is (the server's job workers compute a job's chunks one at a time). */
+  task(task: EngineTask): Observable<PoolEvent<TaskResult>> {
+    return this.runJob<TaskResult, never>(oneTask(task, (r) => r), () => undefined);
   }
 
   /** Free-swing fit of a bench trace. */
@@ -328,7 +338,7 @@ export class WorkerPool {
           break;
         case 'error':
           slot.task = null;
-          task.reject(new Error(msg.message));
+          task.reject(new EngineTaskError(msg.message));
           break;
         case 'cancelled':
           slot.task = null;
