@@ -6,6 +6,7 @@
 import { randomBytes } from 'node:crypto';
 import { chmodSync, existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
+import { availableParallelism } from 'node:os';
 import { z } from 'zod';
 import { checkoutPaths, privateDatabaseUrl } from './paths';
 
@@ -53,6 +54,14 @@ const schema = z.object({
   clientDir: z.string().min(1),
   /** QP_VERIFY_THREADS: engine worker threads that rerun stored runs to verify them (off the request path) */
   verifyThreads: positiveInt,
+  /** QP_WORKER_THREADS: engine threads of one job worker process (`npm run worker`); default one per core */
+  workerThreads: positiveInt,
+  /** QP_CHUNK_TIMEOUT_SECONDS: a job chunk running longer is taken as lost (its worker killed) and given to another */
+  chunkTimeoutSeconds: positiveInt,
+  /** QP_CHUNK_RETRIES: retries of a lost or failed chunk before its job fails */
+  chunkRetries: z.coerce.number().int().min(0).max(20),
+  /** QP_QUEUE_MAINTENANCE_SECONDS: how often the queue looks for lost chunks */
+  queueMaintenanceSeconds: positiveInt,
 });
 
 export type Config = z.infer<typeof schema>;
@@ -99,6 +108,10 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     logLevel: env['LOG_LEVEL'] || (nodeEnv === 'test' ? 'silent' : 'info'),
     clientDir: env['QP_CLIENT_DIR'] || join(paths.repoRoot, 'dist', 'quiverpoint', 'browser'),
     verifyThreads: env['QP_VERIFY_THREADS'] || 1,
+    workerThreads: env['QP_WORKER_THREADS'] || availableParallelism(),
+    chunkTimeoutSeconds: env['QP_CHUNK_TIMEOUT_SECONDS'] || 3600,
+    chunkRetries: env['QP_CHUNK_RETRIES'] || 3,
+    queueMaintenanceSeconds: env['QP_QUEUE_MAINTENANCE_SECONDS'] || 30,
   };
   const parsed = schema.safeParse(raw);
   if (!parsed.success) {

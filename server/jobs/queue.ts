@@ -67,3 +67,15 @@ export async function queueChunks(boss: PgBoss, messages: readonly ChunkMessage[
     { db: transactionDb(transaction) },
   );
 }
+
+/**
+ * Withdraws the messages of a job's chunks that no worker holds yet (a cancelled or failed job), so workers do not
+ * spend a poll on each. Messages already in a worker's hands are dropped by the worker itself.
+ */
+export async function withdrawChunks(boss: PgBoss, jobId: string): Promise<void> {
+  const rows = (await boss.getDb().executeSql(
+    `SELECT id FROM pgboss.job WHERE name = $1 AND state IN ('created', 'retry') AND data->>'jobId' = $2`,
+    [CHUNK_QUEUE, jobId],
+  )) as { rows: Array<{ id: string }> };
+  if (rows.rows.length) await boss.cancel(CHUNK_QUEUE, rows.rows.map((r) => r.id));
+}

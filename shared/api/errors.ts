@@ -65,6 +65,7 @@ export const ERROR_STATUS = {
   params_mismatch: 422,
   settings_kind_mismatch: 422,
   settings_not_for_case: 422,
+  kind_not_for_jobs: 422,
   reviewer_not_eligible: 422,
   unexpected_field: 422,
   bad_csv: 422,

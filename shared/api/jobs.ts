@@ -4,7 +4,7 @@
  * analysis is one short task and stays in the browser.
  */
 import { z } from 'zod';
-import { RUN_KINDS, runSettingsSchema, type RunKind } from '../engine/run-kinds';
+import { RUN_KINDS, type RunKind } from '../engine/run-kinds';
 import { idSchema, instantSchema, personRefSchema } from './common';
 
 /** Run kinds a job may compute. */
@@ -15,11 +15,19 @@ export type JobState = (typeof JOB_STATES)[number];
 /** States a job leaves no more. */
 export const FINISHED_JOB_STATES: readonly JobState[] = ['succeeded', 'failed', 'cancelled'];
 
-/** Either new settings for the revision, or a stored run of it to compute again on the workers. */
-export const submitJobBodySchema = z.union([
-  z.strictObject({ settings: runSettingsSchema }),
-  z.strictObject({ rerunOf: idSchema }),
-]);
+/**
+ * Either new settings for the revision, or a stored run of it to compute again on the workers. The settings' own
+ * fields are checked against the case by the server (422 naming `settings.<field>`), as for a stored run.
+ */
+export const submitJobBodySchema = z
+  .strictObject({
+    settings: z.looseObject({ kind: z.enum(RUN_KINDS as [RunKind, ...RunKind[]]) }).optional(),
+    rerunOf: idSchema.optional(),
+  })
+  .refine((b) => (b.settings === undefined) !== (b.rerunOf === undefined), {
+    message: 'give either settings (a new run) or rerunOf (a stored run to compute again), not both',
+    path: ['settings'],
+  });
 export type SubmitJobBody = z.infer<typeof submitJobBodySchema>;
 
 export const jobListQuerySchema = z.object({
