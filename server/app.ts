@@ -15,12 +15,14 @@ import type { z } from 'zod';
 import {
   addMemberResultSchema, auditEntrySchema, caseDetailSchema, caseListItemSchema, commentSchema, createdLinkSchema, healthSchema, invitationSchema,
   labSummarySchema, linkSchema, meSchema, memberSchema, outboxMailSchema, pagedSchema, publicCaseSchema, recheckSchema, revisionDetailSchema,
-  runSchema, signedInSchema, sinkMailSchema, traceDetailSchema, traceSummarySchema,
+  jobListSchema, jobSchema, runSchema, signedInSchema, sinkMailSchema, traceDetailSchema, traceSummarySchema,
 } from '../shared/api';
 import { AppError } from './app-error';
 import { checkReplies, declareReply } from './middleware/reply-contract';
 import type { Config } from './config';
 import type { RunVerifier } from './services/run-verifier';
+import type { JobService } from './jobs/job-service';
+import { cancelJobRoute, caseJobsRoute, jobEventsRoute, jobRoute, labJobsRoute, submitJobRoute } from './routes/job-routes';
 import { createLogger, redactUrl, type Logger } from './logger';
 import { createAuthenticator } from './middleware/auth';
 import { apiNotFound, jsonErrors } from './middleware/errors';
@@ -52,6 +54,8 @@ export interface AppOptions {
   serveClient?: boolean;
   /** reruns stored runs to verify them; without one, stored runs stay pending until a server with one starts */
   verifier?: RunVerifier;
+  /** server jobs on the queue; without it the job routes answer 503 jobs_unavailable */
+  jobs?: JobService;
   /**
    * Tests only: every JSON reply must parse against its route's schema (errors against the error body and the
    * code table), or the request fails with 500 `response_contract` naming the mismatch.
@@ -176,6 +180,14 @@ export function createApp(options: AppOptions): Express {
     route('post', '/cases/:caseId/revisions/:rev/runs', runSchema, authenticate, caseAuthor, storeRunRoute(sequelize, options.verifier)),
     // the stored result as stored: gzip-compressed JSON (shared/engine/result-codec.ts)
     route('get', '/cases/:caseId/revisions/:rev/runs/:runId/result', null, authenticate, caseReader, runResultRoute),
+    // server jobs: long runs of a saved revision computed by the worker processes (server/jobs)
+    route('post', '/cases/:caseId/revisions/:rev/jobs', jobSchema, authenticate, caseAuthor, submitJobRoute(options.jobs)),
+    route('get', '/cases/:caseId/jobs', jobListSchema, authenticate, caseReader, caseJobsRoute(options.jobs)),
+    route('get', '/cases/:caseId/jobs/:jobId', jobSchema, authenticate, caseReader, jobRoute(options.jobs)),
+    // server-sent events (text/event-stream), not one JSON reply
+    route('get', '/cases/:caseId/jobs/:jobId/events', null, authenticate, caseReader, jobEventsRoute(options.jobs)),
+    route('post', '/cases/:caseId/jobs/:jobId/cancel', jobSchema, authenticate, caseAuthor, cancelJobRoute(options.jobs)),
+    route('get', '/labs/:labId/jobs', jobListSchema, authenticate, anyRole, labJobsRoute(options.jobs)),
     route('get', '/cases/:caseId/revisions/:rev/comments', pagedSchema(commentSchema), authenticate, caseReader, commentsRoute),
     route('post', '/cases/:caseId/revisions/:rev/comments', commentSchema, authenticate, caseCommenter, addCommentRoute(sequelize)),
     route('post', '/cases/:caseId/revisions/:rev/recheck-request', revisionDetailSchema, authenticate, caseAuthor, recheckRequestRoute(sequelize, config)),

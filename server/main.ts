@@ -11,6 +11,8 @@ import { startMailSink, type MailSink } from './scripts/mail-sink';
 import { createMailer } from './services/mailer';
 import { startOutboxSender } from './services/outbox-service';
 import { RunVerifier } from './services/run-verifier';
+import { JobService } from './jobs/job-service';
+import { startQueue } from './jobs/queue';
 
 async function main(): Promise<void> {
   const cfg = config();
@@ -22,7 +24,15 @@ async function main(): Promise<void> {
     logger.info({ smtp: `${cfg.smtpHost}:${sink.port}` }, 'local mail sink listening');
   }
   const verifier = new RunVerifier({ logger, threads: cfg.verifyThreads });
-  const app = createApp({ config: cfg, sequelize, logger, verifier });
+  const boss = await startQueue({
+    databaseUrl: cfg.databaseUrl,
+    chunkTimeoutSeconds: cfg.chunkTimeoutSeconds,
+    chunkRetries: cfg.chunkRetries,
+    maintenanceSeconds: cfg.queueMaintenanceSeconds,
+  });
+  boss.on('error', (err) => logger.error({ err }, 'queue error'));
+  const jobs = new JobService(sequelize, boss);
+  const app = createApp({ config: cfg, sequelize, logger, verifier, jobs });
   verifier
     .resumePending()
     .then((count) => count > 0 && logger.info({ count }, 'verifying stored runs left pending'))
@@ -43,7 +53,7 @@ async function main(): Promise<void> {
     closing = true;
     logger.info({ signal }, 'shutting down');
     server.close(() => {
-      Promise.allSettled([outbox.stop(), verifier.stop()])
+      Promise.allSettled([outbox.stop(), verifier.stop(), boss.stop({ graceful: false, wait: false })])
         .finally(() => Promise.allSettled([sink?.close(), sequelize.close()]))
         .finally(() => process.exit(0));
     });
