@@ -25,6 +25,8 @@ export default defineConfig({
           hookTimeout: 60_000,
         },
       },
+      // The job queue with real processes (server, two workers) on its own database.
+      { test: { name: 'queue', environment: 'node', include: ['tests/queue/**/*.spec.ts'], ...elsewhere, testTimeout: 300_000, hookTimeout: 180_000 } },
     ],
   },
 });
