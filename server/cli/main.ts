@@ -23,6 +23,8 @@ import { repoRoot } from '../paths';
 import { fitOutput, fitRequest, TraceInputError } from './fit-command';
 import { countOption, flag, numberOption, parseArgs, stringOption, UsageError, type ParsedArgs } from './args';
 import { toCsv, toJson } from './output';
+import { followJob, runOnServer, ServerClient, ServerJobError, signIn, storedResult } from './server-job';
+import type { JobView } from '../../shared/api';
 
 const USAGE = `usage: npm run cli -- <command> [options]
 
@@ -43,15 +45,21 @@ const USAGE = `usage: npm run cli -- <command> [options]
   fit     <trace.csv> [--model viscous|viscous+quadratic|viscous+friction] [--angle-unit deg|rad] [--case case.json]
                                            free-swing fit: L, zeta, [c | mu], sensor zero, start state (SI)
   check   <run.json>                       rerun a stored run record and compare digest and summary
+  token   --server URL --email E           sign in (password from QP_PASSWORD or stdin); print an access token
+  job     <caseId> <jobId> --server URL [--cancel]
+                                           follow a server job to its end and print its stored run (or cancel it)
   template [--demo <id>]                   print a complete valid case (or a demo rig)
 
   help, --help, -h                         print this help
   --version                                print the Quiverpoint and engine versions
 
   common: --csv (CSV instead of JSON), --record (print only the run record), --workers N (default: cores)
+  server: sweep, chart, map, basin, leanest, holdprob with --server URL [--token T | QP_TOKEN] and
+          --case ID [--rev N] (the saved case the file matches) or --lab ID [--title T] (file it first):
+          computed by the server's job workers, stored with the revision, printed as above
   limits: sweep --steps <= ${MAX_SWEEP_STEPS}; chart --n <= ${MAX_CHART_COUNT}; map and basin --n <= ${MAX_MAP_COUNT};
           leanest --n <= ${MAX_LEANEST_COUNT}; holdprob --samples <= ${MAX_HOLDPROB_SAMPLES}
-  exit:   0 done, 1 recheck mismatch, 2 bad input, 3 engine failure`;
+  exit:   0 done, 1 recheck mismatch, 2 bad input (or refused by the server), 3 engine failure (or the job failed)`;
 
 class InputError extends Error {}
 
@@ -336,15 +344,46 @@ async function main(argv: readonly string[]): Promise<number> {
     process.stdout.write(fitOutput(args, fit));
     return 0;
   }
+  if (command === 'token') {
+    const signedIn = await signIn(args);
+    process.stdout.write(`${signedIn.token}\n`);
+    if (signedIn.expiresAt) process.stderr.write(`valid until ${signedIn.expiresAt}; export QP_TOKEN=<it> to keep it off the command line\n`);
+    return 0;
+  }
+  if (command === 'job') {
+    const [caseId, jobId] = args.positional;
+    if (!caseId || !jobId) throw new UsageError('job needs <caseId> <jobId>');
+    const client = ServerClient.fromArgs(args);
+    if (flag(args, 'cancel')) {
+      const job = await client.request<JobView>('POST', `/cases/${caseId}/jobs/${jobId}/cancel`);
+      process.stderr.write(`server job ${job.id} cancelled\n`);
+      return 0;
+    }
+    const job = await followJob(client, caseId, jobId, progressBar(`server job ${jobId.slice(0, 8)}`));
+    const result = await storedResult(client, job);
+    const revision = await client.request<{ params: CaseParams }>('GET', `/cases/${caseId}/revisions/${job.revision}`);
+    printRun(args, makeRunRecord(revision.params, job.settings as RunSettings, result), result);
+    return 0;
+  }
   if (!isRunKind(command)) throw new UsageError(`unknown command "${command}"`);
   const params = readCase(args.positional[0]);
   const settings = settingsFor(command, args, params);
+  if (args.options.has('server')) {
+    if (!runKind(command).chunked) throw new UsageError(`${command} is one short computation; run it here (drop --server)`);
+    const { result } = await runOnServer(args, params, args.positional[0] ?? '', settings, progressBar);
+    printRun(args, makeRunRecord(params, settings, result), result);
+    return 0;
+  }
   const result = await compute(args, params, settings);
-  const record = makeRunRecord(params, settings, result);
+  printRun(args, makeRunRecord(params, settings, result), result);
+  return 0;
+}
+
+/** A run as the commands print it: CSV, the record alone, or the record with the full result. */
+function printRun(args: ParsedArgs, record: ReturnType<typeof makeRunRecord>, result: RunResult): void {
   if (flag(args, 'csv')) process.stdout.write(toCsv(result));
   else if (flag(args, 'record')) process.stdout.write(`${toJson(record)}\n`);
   else process.stdout.write(`${toJson({ record, result: result.value })}\n`);
-  return 0;
 }
 
 main(process.argv.slice(2)).then(
@@ -357,6 +396,9 @@ main(process.argv.slice(2)).then(
     } else if (error instanceof UsageError) {
       process.stderr.write(`error: ${error.message}\n\n${USAGE}\n`);
       process.exitCode = 2;
+    } else if (error instanceof ServerJobError) {
+      process.stderr.write(`\nerror: ${error.message}\n`);
+      process.exitCode = error.exitCode;
     } else if (error instanceof InputError || error instanceof TraceInputError) {
       process.stderr.write(`error: ${error.message}\n`);
       process.exitCode = 2;

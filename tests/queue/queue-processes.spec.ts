@@ -4,7 +4,11 @@
  * a worker killed with SIGKILL while it holds a chunk costs nothing but time (its chunk expires and the other worker
  * computes it); a server stopped and started again mid-job loses nothing.
  */
-import { hostname } from 'node:os';
+import { execFile } from 'node:child_process';
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { hostname, tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes, type Sequelize } from 'sequelize';
 import type { JobView } from '../../shared/api';
@@ -19,8 +23,10 @@ import { ensurePostgres, stopPostgres } from '../../server/scripts/pg';
 import { holdRunLock } from '../../server/scripts/run-lock';
 import { freePort, startServerProcess, startWorkerProcess, type ServerProcess, type WorkerProcess } from '../../server/scripts/server-process';
 import { issueToken } from '../../server/services/auth-service';
+import { hashPassword } from '../../server/services/passwords';
 
 const JWT_SECRET = 'queue-test-secret-that-is-long-enough-for-hs256';
+const PASSWORD = 'queue-test-password-horse';
 const { repoRoot } = checkoutPaths();
 
 let release: () => Promise<void> = async () => undefined;
@@ -122,7 +128,7 @@ beforeAll(async () => {
   databaseUrl = await recreateDatabase(cluster.url, 'quiverpoint_queue');
   await prepareDatabase(databaseUrl, { seed: false });
   sequelize = createSequelize(databaseUrl, { poolMax: 2 });
-  const user = await User.create({ email: 'queue@queue-test.quiverpoint.test', name: 'Queue tester', passwordHash: 'not-used' });
+  const user = await User.create({ email: 'queue@queue-test.quiverpoint.test', name: 'Queue tester', passwordHash: await hashPassword(PASSWORD) });
   const lab = await Lab.create({ name: 'Queue test lab' });
   await Membership.create({ labId: lab.id, userId: user.id, role: 'analyst' });
   labId = lab.id;
@@ -203,5 +209,35 @@ describe('server jobs on real processes', () => {
     expect(done.state, done.error ?? '').toBe('succeeded');
     const expected = makeRunRecord(params, settings, computeRun(params, settings));
     expect(await storedDigest(caseId, done.runId!)).toBe(expected.resultDigest);
+  });
+
+  it('lets the CLI sign in, submit a sweep, follow it and print the stored run', { timeout: 300_000 }, async () => {
+    const params = templateCase();
+    params.run.duration = 0.5;
+    params.run.outputPoints = 200;
+    const caseId = await createCase('Queue sweep from the CLI', params);
+    const dir = mkdtempSync(join(tmpdir(), 'qp-cli-'));
+    const file = join(dir, 'case.json');
+    writeFileSync(file, JSON.stringify(params));
+    const run = promisify(execFile);
+    const cli = (args: string[], extra: Record<string, string> = {}) =>
+      run(process.execPath, ['--import', 'tsx', join(repoRoot, 'server', 'cli', 'main.ts'), ...args], {
+        cwd: repoRoot, env: { ...process.env, ...extra }, maxBuffer: 64 * 1024 * 1024,
+      });
+    const server = `http://127.0.0.1:${port}`;
+    const signedIn = await cli(['token', '--server', server, '--email', 'queue@queue-test.quiverpoint.test'], { QP_PASSWORD: PASSWORD });
+    const cliToken = signedIn.stdout.trim();
+    expect(cliToken.split('.')).toHaveLength(3);
+    const sweep = ['--field', 'drive.amplitude', '--from', '0.005', '--to', '0.02', '--steps', '8'];
+    const out = await cli(['sweep', file, ...sweep, '--server', server, '--case', caseId], { QP_TOKEN: cliToken });
+    const printed = JSON.parse(out.stdout) as { record: { resultDigest: string; settings: RunSettings } };
+    const local = await cli(['sweep', file, ...sweep, '--workers', '1']);
+    expect(printed.record.resultDigest).toBe((JSON.parse(local.stdout) as { record: { resultDigest: string } }).record.resultDigest);
+    expect(out.stderr).toMatch(/server job [0-9a-f-]{36} queued/);
+    // A file that is not the saved revision is refused before anything is queued.
+    writeFileSync(file, JSON.stringify({ ...params, run: { ...params.run, duration: 0.6 } }));
+    const refused = await cli(['sweep', file, ...sweep, '--server', server, '--case', caseId], { QP_TOKEN: cliToken }).catch((e: { code: number; stderr: string }) => e);
+    expect((refused as { code: number }).code).toBe(2);
+    expect((refused as { stderr: string }).stderr).toContain('differs from r1');
   });
 });
