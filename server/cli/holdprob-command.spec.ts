@@ -14,7 +14,7 @@ function cli(...args: string[]): { code: number | null; stdout: string; stderr: 
   return { code: r.status, stdout: r.stdout, stderr: r.stderr };
 }
 
-// The template (10 mm at 40 Hz, lower amplitude limit near 6.3 mm) with a 1 mm amplitude spread and a 1 % damping one.
+// The template (10 mm at 40 Hz, lower amplitude limit 7.88 mm) with a 1 mm amplitude spread and a ± 0.005 damping one.
 const toleranced = {
   ...templateCase(),
   tolerances: [

@@ -106,6 +106,7 @@ export const RUN_KIND_LABELS: Readonly<Record<string, string>> = {
   map: 'Outcome map',
   basin: 'Basin map',
   leanest: 'Leanest drive',
+  holdprob: 'Hold probability',
 };
 
 /** Joint damping as shown: "0.002 N·m·s/rad". */

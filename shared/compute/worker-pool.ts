@@ -15,12 +15,13 @@ import type { Grid2, StabilityChart } from '../engine/chart';
 import type { EngineTask, FitTask, OverlayTask, TaskResult } from '../engine/engine-task';
 import type { FitResult } from '../engine/fit';
 import type { FloquetAnalysis } from '../engine/floquet';
+import type { HoldProbResult, HoldSample } from '../engine/holdprob';
 import type { LeanestResult } from '../engine/leanest';
 import type { MotionResult } from '../engine/motion';
 import type { OverlayResult } from '../engine/trace-drive';
 import { expectResult, type RunJob } from '../engine/run-job';
 import {
-  runJob, runKind, type LeanestSettings, type RowsPartial, type RunKind, type RunPartialOf, type RunResult, type RunSettings, type RunSettingsOf,
+  runJob, runKind, type HoldProbSettings, type LeanestSettings, type RowsPartial, type RunKind, type RunPartialOf, type RunResult, type RunSettings, type RunSettingsOf,
   type RunValueOf,
 } from '../engine/run-kinds';
 import type { BasinCell, CellMap, MapCell, SweepPoint, SweepResult, SweepSpec } from '../engine/sweep';
@@ -186,6 +187,11 @@ export class WorkerPool {
   /** Leanest drive: the chart's row blocks and the limit columns, then the refinement; partials are chart rows. */
   leanest(params: CaseParams, settings: LeanestSettings): Observable<PoolEvent<LeanestResult, RowsPartial<Float64Array>>> {
     return this.runKind('leanest', params, settings);
+  }
+
+  /** Hold probability: blocks of samples in chunks of 8; partials are the chunks' samples. */
+  holdprob(params: CaseParams, settings: HoldProbSettings): Observable<PoolEvent<HoldProbResult, { from: number; samples: HoldSample[] }>> {
+    return this.runKind('holdprob', params, settings);
   }
 
   /** Terminates every worker; later jobs fail. */

@@ -4,7 +4,7 @@ import { outcomeWords } from '../../../../shared/case/display';
 import { LEANEST_COST_WORDS } from '../../../../shared/case/leanest-words';
 
 /** How a value of a field reads. */
-type ValueKind = 'number' | 'percent' | 'outcome' | 'yes-no' | 'words';
+type ValueKind = 'number' | 'percent' | 'probability' | 'outcome' | 'yes-no' | 'words';
 
 /** One case field or stored-run summary number: what it is called, what it measures, how it reads. */
 export interface FieldInfo {
@@ -164,6 +164,27 @@ export const FIELD_TABLE: Readonly<Record<string, FieldInfo>> = {
   'summary.binding': { label: 'Limited by', dimension: 'plain', kind: 'words' },
   'summary.amplitudeMarginPercent': { label: 'Amplitude margin at the leanest drive', dimension: 'plain', kind: 'percent' },
   'summary.frequencyMarginPercent': { label: 'Frequency margin at the leanest drive', dimension: 'plain', kind: 'percent' },
+  'summary.parts': { label: 'Sampled', dimension: 'plain', kind: 'words' },
+  'summary.probability': { label: 'Probability of holding', dimension: 'plain', kind: 'probability' },
+  'summary.intervalLower': { label: 'Probability of holding, 95 % interval from', dimension: 'plain', kind: 'probability' },
+  'summary.intervalUpper': { label: 'Probability of holding, 95 % interval to', dimension: 'plain', kind: 'probability' },
+  'summary.samplesUsed': plain('Samples run'),
+  'summary.samplesHeld': plain('Samples that hold'),
+  'summary.samplesInvalid': plain('Samples outside the case limits'),
+  'summary.stoppedEarly': { label: 'Stopped at the wanted interval width', dimension: 'plain', kind: 'yes-no' },
+  'summary.seed': plain('Sampling seed'),
+  'summary.mostInfluential': { label: 'Spread that matters most', dimension: 'plain', kind: 'words' },
+  tolerances: plain('Tolerances'),
+  'tolerances.#.field': { label: 'Tolerance # on', dimension: 'plain', kind: 'words' },
+  'tolerances.#.distribution': { label: 'Tolerance # spread', dimension: 'plain', kind: 'words', words: { normal: 'normal (σ)', uniform: 'uniform (±)' } },
+  'tolerances.#.sigma': plain('Tolerance # σ (in the field\'s SI unit)'),
+  'tolerances.#.halfWidth': plain('Tolerance # ± (in the field\'s SI unit)'),
+  noise: plain('Drive noise'),
+  'noise.kind': { label: 'Drive noise', dimension: 'plain', kind: 'words', words: { 'phase-jitter': 'phase jitter', amplitude: 'amplitude noise' } },
+  'noise.rms': angle('Drive phase jitter, RMS'),
+  'noise.density': plain('Drive amplitude noise density', 'm²/Hz'),
+  'noise.bandwidth': frequency('Drive noise bandwidth'),
+  'noise.seed': plain('Drive noise seed'),
 };
 
 /** `drive.waveform.terms.2.phase` -> the `#` key and the 1-based index 3. */
@@ -206,9 +227,12 @@ export function formatFieldValue(path: string, value: unknown, units: DisplayUni
   const info = fieldInfo(path);
   if (info?.kind === 'outcome') return outcomeWords(String(value));
   if (typeof value === 'boolean') return value ? 'yes' : 'no';
-  if (info?.kind === 'words' && typeof value === 'string') return info.words?.[value] ?? (path === 'summary.field' ? fieldLabel(value) : value);
+  if (info?.kind === 'words' && typeof value === 'string') {
+    return info.words?.[value] ?? (path === 'summary.field' || /^tolerances\.\d+\.field$/.test(path) ? fieldLabel(value) : value);
+  }
   if (typeof value !== 'number') return String(value);
   if (info?.kind === 'percent') return formatPercent(value, digits);
+  if (info?.kind === 'probability') return `${formatNumber(100 * value, digits ?? 3)} %`;
   if (!info || info.dimension === 'plain') return withUnit(formatNumber(value, digits), info?.unit ?? '');
   return formatIn(value, info.dimension, units, digits);
 }

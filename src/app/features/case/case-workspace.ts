@@ -13,8 +13,9 @@ import { demoRigCase, templateCase } from '../../../../shared/case/templates';
 import { parseCase, type CaseIssue } from '../../../../shared/case/validate';
 import type { Grid2, StabilityChart } from '../../../../shared/engine/chart';
 import type { FloquetAnalysis } from '../../../../shared/engine/floquet';
+import type { HoldProbResult, HoldSample } from '../../../../shared/engine/holdprob';
 import type { LeanestResult } from '../../../../shared/engine/leanest';
-import type { LeanestSettings } from '../../../../shared/engine/run-kinds';
+import type { HoldProbSettings, LeanestSettings } from '../../../../shared/engine/run-kinds';
 import type { MotionResult } from '../../../../shared/engine/motion';
 import { makeRunRecord, type RunKind, type RunRecord, type RunResult, type RunSettings } from '../../../../shared/engine/run-record';
 import type { CellMap, MapCell, SweepPoint, SweepResult, SweepSpec } from '../../../../shared/engine/sweep';
@@ -55,7 +56,7 @@ export const STORED_PENDING_RECHECK_MS = 3000;
 export const STORED_PENDING_RECHECKS = 200;
 
 /** Run kinds a case tab shows (the outcome map has no tab of its own). */
-export const SHOWN_STORED_KINDS: readonly RunKind[] = ['motion', 'margins', 'sweep', 'chart', 'basin', 'leanest'];
+export const SHOWN_STORED_KINDS: readonly RunKind[] = ['motion', 'margins', 'sweep', 'chart', 'basin', 'leanest', 'holdprob'];
 
 /**
  * For each kind a tab shows, the stored run whose result to show: the latest the server has settled (verified or
@@ -108,6 +109,7 @@ export class CaseWorkspace {
   private readonly chartState = signal<Computed<StabilityChart> | null>(null);
   private readonly basinState = signal<Computed<CellMap> | null>(null);
   private readonly leanestState = signal<Computed<LeanestResult> | null>(null);
+  private readonly holdprobState = signal<Computed<HoldProbResult> | null>(null);
   private readonly formTickState = signal(0);
   private readonly saveNoteState = signal('');
   private readonly sweepPartialState = signal<readonly SweepPoint[]>([]);
@@ -161,6 +163,7 @@ export class CaseWorkspace {
   readonly chart = this.chartState.asReadonly();
   readonly basin = this.basinState.asReadonly();
   readonly leanest = this.leanestState.asReadonly();
+  readonly holdprob = this.holdprobState.asReadonly();
   /**
    * Per run kind, why the opened revision's stored result is not (yet) shown: loading, still being rerun by the
    * server, failed to load, or not shown because it may not belong to the values on screen. Tabs show it while they
@@ -176,6 +179,7 @@ export class CaseWorkspace {
   readonly chartJob = new PoolJob<StabilityChart, RowsDone<Float64Array>>();
   readonly basinJob = new PoolJob<CellMap, RowsDone<MapCell[]>>();
   readonly leanestJob = new PoolJob<LeanestResult, RowsDone<Float64Array>>();
+  readonly holdprobJob = new PoolJob<HoldProbResult, { from: number; samples: HoldSample[] }>();
 
   constructor() {
     this.form.group.valueChanges.pipe(takeUntilDestroyed(this.destroyRef)).subscribe(() => this.readForm());
@@ -310,6 +314,9 @@ export class CaseWorkspace {
       case 'leanest':
         if (!this.leanestState()) this.leanestState.set({ ...base, value: result.value });
         break;
+      case 'holdprob':
+        if (!this.holdprobState()) this.holdprobState.set({ ...base, value: result.value });
+        break;
       case 'map':
         break;
     }
@@ -423,6 +430,31 @@ export class CaseWorkspace {
     });
   }
 
+  runHoldProb(settings: HoldProbSettings): void {
+    if (!this.canRun()) return;
+    const params = this.draftState();
+    this.dropStale(this.holdprobState);
+    this.holdprobJob.start(this.pool.holdprob(params, settings), (value) => {
+      this.holdprobState.set(this.computed(value, params, settings));
+      this.record(params, settings, { kind: 'holdprob', value });
+    });
+  }
+
+  /**
+   * Sets the case's tolerances (SI, as the schema stores them; empty: none), the rest of the case as it is. Refused,
+   * with the reason in words, when the form is invalid, the role cannot edit, or a tolerance breaks the case's rules.
+   */
+  setTolerances(tolerances: NonNullable<CaseParams['tolerances']>): string | null {
+    if (!this.valid()) return 'Fix the Rig fields first: the form is invalid.';
+    if (this.readOnly()) return 'Your role in this lab cannot change this case.';
+    const next: CaseParams = { ...this.draftState(), tolerances: tolerances.length ? tolerances : undefined };
+    const checked = parseCase(next);
+    if (!checked.ok) return checked.issues[0]?.message ?? 'invalid';
+    this.form.setExtras({ tolerances: checked.value.tolerances, noise: checked.value.noise });
+    this.readForm();
+    return null;
+  }
+
   /**
    * Sets the drive frequency (Hz) and amplitude (m) in the Rig form, the rest of the case as it is; results of the
    * earlier drive then show as belonging to earlier inputs. Refused, with the reason in words, when the form is
@@ -533,7 +565,7 @@ export class CaseWorkspace {
   }
 
   private jobs(): Array<{ cancel(): void }> {
-    return [this.motionJob, this.marginsJob, this.sweepJob, this.chartJob, this.basinJob, this.leanestJob];
+    return [this.motionJob, this.marginsJob, this.sweepJob, this.chartJob, this.basinJob, this.leanestJob, this.holdprobJob];
   }
 
   private reset(): void {
@@ -547,6 +579,7 @@ export class CaseWorkspace {
     this.chartState.set(null);
     this.basinState.set(null);
     this.leanestState.set(null);
+    this.holdprobState.set(null);
     this.runsState.set([]);
   }
 }

@@ -28,6 +28,21 @@ function parsed(form: RigForm): CaseParams {
 }
 
 describe('RigForm', () => {
+  it('carries the case\'s tolerances and drive noise through the form, and an edit keeps them', () => {
+    const params: CaseParams = {
+      ...templateCase(),
+      tolerances: [{ field: 'drive.amplitude', distribution: 'normal', sigma: 5e-4 }],
+      noise: { kind: 'phase-jitter', rms: 0.05, bandwidth: 100, seed: 7 },
+    };
+    const form = new RigForm(params);
+    expect(caseDigest(parsed(form))).toBe(caseDigest(params));
+    form.group.controls.drive.controls.frequency.setValue(41);
+    expect(parsed(form).tolerances).toEqual(params.tolerances);
+    expect(parsed(form).noise).toEqual(params.noise);
+    form.setParams(templateCase());
+    expect('tolerances' in parsed(form)).toBe(false);
+  });
+
   it('shows SI lengths in mm, frequencies in Hz and angles in degrees by default', () => {
     const form = new RigForm(templateCase());
     const c = form.group.controls;

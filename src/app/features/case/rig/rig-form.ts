@@ -227,6 +227,8 @@ export class RigForm {
   private readonly exact = new WeakMap<AbstractControl, { readonly si: number; readonly shown: number }>();
   /** Links whose stored case had a start bend (rate) key, so a bend of 0 is saved as stored, present or absent. */
   private readonly storedBends = new WeakMap<AbstractControl, { bend: boolean; rate: boolean }>();
+  /** The case's tolerances and drive noise: edited in the Sign-off tab, carried through the form unchanged. */
+  private extras: Pick<CaseParams, 'tolerances' | 'noise'> = {};
 
   constructor(params: CaseParams, units: DisplayUnits = DEFAULT_UNITS) {
     this.currentUnits = units;
@@ -283,6 +285,7 @@ export class RigForm {
 
   /** Fills every control from an SI case, without emitting value changes. */
   setParams(params: CaseParams): void {
+    this.setExtras({ tolerances: params.tolerances, noise: params.noise });
     // The form is first filled in SI, then each numeric control is switched to its shown value (see `show`).
     const fb = bodyFallbacks(params);
     const b = params.body;
@@ -406,6 +409,14 @@ export class RigForm {
     if (this.harmonics.length > 1) this.harmonics.removeAt(index);
   }
 
+  /** Replaces the tolerances and drive noise the form carries (absent keys stay absent, so the digest is kept). */
+  setExtras(extras: Pick<CaseParams, 'tolerances' | 'noise'>): void {
+    this.extras = {
+      ...(extras.tolerances !== undefined ? { tolerances: extras.tolerances } : {}),
+      ...(extras.noise !== undefined ? { noise: extras.noise } : {}),
+    };
+  }
+
   /** The form's case in SI, unvalidated (empty fields become NaN, which the schema refuses). */
   rawParams(): unknown {
     const v = this.group.getRawValue();
@@ -472,6 +483,7 @@ export class RigForm {
         strobePhase: si(r.strobePhase, 'angle'),
         transientFraction: n(r.transientFraction),
       },
+      ...this.extras,
     };
   }
 

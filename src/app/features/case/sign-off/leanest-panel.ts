@@ -16,7 +16,6 @@ import { formatIn, formatNumber, formatPercent, withUnit } from '../../../core/u
 import { Plot } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
 import { rangeProblem } from '../range-check';
-import { CautionPanel } from '../rig/caution-panel';
 import { RunStrip } from '../run-strip';
 import { StoredMark } from '../stored-mark';
 import { leanestPlot } from './leanest-plot';
@@ -76,7 +75,7 @@ const COST_CHOICES = LEANEST_COSTS.map((c) => ({ value: c, label: capitalised(LE
   selector: 'qp-leanest-panel',
   imports: [
     FormsModule, MatButtonModule, MatButtonToggleModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule,
-    RouterLink, CautionPanel, Plot, RunStrip, StoredMark,
+    RouterLink, Plot, RunStrip, StoredMark,
   ],
   templateUrl: './leanest-panel.html',
   styleUrls: ['../tab.scss', './leanest-panel.scss'],

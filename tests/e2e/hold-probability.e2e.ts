@@ -1,0 +1,89 @@
+/**
+ * The hold probability in a real browser: on the Sign-off tab, give the template rig two tolerances (the drive
+ * amplitude, normal σ 2 mm; the drive frequency, uniform ± 2 Hz), run the probability, and see the probability with
+ * its 95 % interval, the ranking (the amplitude first) and the margin histogram. Screenshots:
+ * test-results/screenshots/holdprob-*.png.
+ */
+import type { Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+
+import { DESKTOP, launchBrowser, screenshot, type TestBrowser } from './support/browser';
+import { DEMO_ACCOUNTS, startE2eServer, type E2eServer } from './support/server';
+
+const analyst = DEMO_ACCOUNTS.find((a) => a.role === 'analyst') ?? DEMO_ACCOUNTS[0];
+
+let server: E2eServer;
+let browser: TestBrowser;
+let page: Page;
+
+async function openTab(p: Page, label: string): Promise<void> {
+  await p.getByRole('tab', { name: label, exact: true }).dispatchEvent('click');
+  await p.waitForURL((url) => url.pathname.endsWith(`/${label.toLowerCase()}`));
+}
+
+beforeAll(async () => {
+  server = await startE2eServer({ database: 'quiverpoint_e2e_holdprob' });
+  browser = await launchBrowser();
+  page = await browser.newPage(DESKTOP);
+  page.setDefaultTimeout(30_000);
+  await page.goto(`${server.baseUrl}/sign-in`);
+  await page.getByLabel('Email').fill(analyst.email);
+  await page.getByLabel('Password', { exact: true }).fill(analyst.password);
+  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+  await page.waitForURL((url) => !url.pathname.startsWith('/sign-in'));
+}, 180_000);
+
+afterAll(async () => {
+  await browser?.close();
+  await server?.stop();
+});
+
+describe('hold probability', () => {
+  it('sets two tolerances in display units, runs the probability and shows the interval and the ranking', async () => {
+    await page.goto(`${server.baseUrl}/cases/new`);
+    await expect.poll(() => page.getByRole('heading', { name: 'Summary' }).count()).toBe(1);
+    await openTab(page, 'Sign-off');
+    await expect.poll(() => page.getByTestId('holdprob-no-tolerances').count()).toBe(1);
+
+    // First tolerance: the drive amplitude (the first free field), normal, σ 2 mm.
+    await page.getByTestId('tolerance-add').click();
+    await expect.poll(() => page.getByTestId('tolerance-0').count()).toBe(1);
+    expect(await page.getByTestId('tolerance-0').textContent()).toContain('Drive amplitude (mm)');
+    await page.getByTestId('tolerance-amount-0').fill('2');
+    // Second: the drive frequency, uniform within ± 2 Hz.
+    await page.getByTestId('tolerance-add').click();
+    await expect.poll(() => page.getByTestId('tolerance-1').count()).toBe(1);
+    expect(await page.getByTestId('tolerance-1').textContent()).toContain('Drive frequency (Hz)');
+    await page.getByTestId('tolerance-distribution-1').click();
+    await page.getByRole('option', { name: 'Uniform, ±' }).click();
+    await page.getByTestId('tolerance-amount-1').fill('2');
+    // A negative spread is refused in words, naming the value.
+    await page.getByTestId('tolerance-amount-1').fill('-1');
+    await expect.poll(() => page.getByTestId('tolerance-error').textContent()).toContain('Drive frequency: the spread must be a number, zero or more');
+    await page.getByTestId('tolerance-amount-1').fill('2');
+    await expect.poll(() => page.getByTestId('tolerance-error').count()).toBe(0);
+
+    await page.getByTestId('holdprob-samples').click();
+    await page.getByRole('option', { name: '64', exact: true }).click();
+    await page.getByTestId('run-holdprob').click();
+    await expect.poll(() => page.getByTestId('holdprob-result').count(), { timeout: 180_000 }).toBe(1);
+
+    const probability = Number(/([\d.]+) %/.exec((await page.getByTestId('holdprob-probability').textContent()) ?? '')?.[1]);
+    const [, lo, hi] = /([\d.]+) % to ([\d.]+) %/.exec((await page.getByTestId('holdprob-interval').textContent()) ?? '') ?? [];
+    // 10 mm with σ 2 mm over a lower limit of 7.88 mm at 40 Hz: about Φ(1.06) ≈ 0.86 hold (the ± 2 Hz moves the limit
+    // by ± 5 %); 64 samples land within a few points of that.
+    expect(probability).toBeGreaterThan(70);
+    expect(probability).toBeLessThan(97);
+    expect(Number(lo)).toBeLessThanOrEqual(probability);
+    expect(Number(hi)).toBeGreaterThanOrEqual(probability);
+    const ranking = page.getByTestId('holdprob-ranking').locator('tbody tr');
+    expect(await ranking.count()).toBe(2);
+    expect(await ranking.first().textContent()).toMatch(/Drive amplitude\s*σ 2 mm/);
+    expect(await ranking.nth(1).textContent()).toMatch(/Drive frequency\s*± 2 Hz/);
+    await expect.poll(() => page.locator('qp-hold-probability-panel qp-plot .js-plotly-plot').count()).toBe(1);
+    await page.getByTestId('holdprob-result').scrollIntoViewIfNeeded();
+    await screenshot(page, 'holdprob-result');
+    await page.locator('qp-hold-probability-panel qp-plot').scrollIntoViewIfNeeded();
+    await screenshot(page, 'holdprob-histogram');
+  }, 300_000);
+});
