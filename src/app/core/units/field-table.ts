@@ -177,8 +177,9 @@ export const FIELD_TABLE: Readonly<Record<string, FieldInfo>> = {
   tolerances: plain('Tolerances'),
   'tolerances.#.field': { label: 'Tolerance # on', dimension: 'plain', kind: 'words' },
   'tolerances.#.distribution': { label: 'Tolerance # spread', dimension: 'plain', kind: 'words', words: { normal: 'normal (σ)', uniform: 'uniform (±)' } },
-  'tolerances.#.sigma': plain('Tolerance # σ (in the field\'s SI unit)'),
-  'tolerances.#.halfWidth': plain('Tolerance # ± (in the field\'s SI unit)'),
+  // in the toleranced field's unit: History reads it through that field (params-diff.ts)
+  'tolerances.#.sigma': plain('Tolerance # σ'),
+  'tolerances.#.halfWidth': plain('Tolerance # ±'),
   noise: plain('Drive noise'),
   'noise.kind': { label: 'Drive noise', dimension: 'plain', kind: 'words', words: { 'phase-jitter': 'phase jitter', amplitude: 'amplitude noise' } },
   'noise.rms': angle('Drive phase jitter, RMS'),

@@ -32,6 +32,27 @@ describe('flattenParams', () => {
   });
 });
 
+describe('flattenParams, tolerances', () => {
+  it('reads each tolerance by the label and display unit of the field it is on', () => {
+    const params = {
+      ...templateCase(),
+      tolerances: [
+        { field: 'drive.amplitude', distribution: 'normal', sigma: 0.002 },
+        { field: 'drive.frequency', distribution: 'uniform', halfWidth: 2 },
+      ],
+    };
+    const rows = flattenParams(params).filter((r) => r.path.startsWith('tolerances.'));
+    expect(rows.map((r) => `${r.label}: ${r.value}${r.unit ? ` ${r.unit}` : ''}`)).toEqual([
+      'Tolerance 1 on: Drive amplitude',
+      'Tolerance 1 spread: normal (σ)',
+      'Tolerance 1 σ, Drive amplitude: 2 mm',
+      'Tolerance 2 on: Drive frequency',
+      'Tolerance 2 spread: uniform (±)',
+      'Tolerance 2 ±, Drive frequency: 2 Hz',
+    ]);
+  });
+});
+
 describe('diffParams', () => {
   it('marks only the changed rows between two revisions', () => {
     const r1 = templateCase();

@@ -17,6 +17,8 @@ const KEY_ORDER: Readonly<Record<string, readonly string[]>> = {
   damping: ['viscousRatio', 'quadratic', 'friction', 'frictionSmoothing'],
   start: ['angle', 'rate'],
   run: ['duration', 'rtol', 'atol', 'outputPoints', 'strobePhase', 'transientFraction'],
+  tolerances: ['field', 'distribution', 'sigma', 'halfWidth'],
+  noise: ['kind', 'rms', 'density', 'bandwidth', 'seed'],
 };
 
 /** Stored JSON (PostgreSQL's JSONB) does not keep key order, so rows are put in the form's order. */
@@ -48,22 +50,36 @@ export interface ParamDiffRow {
   readonly changed: boolean;
 }
 
+/**
+ * A tolerance's σ or ± reads in the unit of the field it is on ("Tolerance 1 σ, Drive amplitude": mm); null for
+ * other paths.
+ */
+function toleranceSpread(root: unknown, path: string): { field: string } | null {
+  const m = /^tolerances\.(\d+)\.(sigma|halfWidth)$/.exec(path);
+  if (!m || root === null || typeof root !== 'object') return null;
+  const list = (root as { tolerances?: unknown }).tolerances;
+  const entry = Array.isArray(list) ? (list[Number(m[1])] as { field?: unknown } | undefined) : undefined;
+  return typeof entry?.field === 'string' ? { field: entry.field } : null;
+}
+
 /** Depth-first, in the stored key order; arrays by index (`drive.waveform.terms.0.order`). */
-export function flattenParams(params: unknown, units: DisplayUnits = DEFAULT_UNITS, prefix = ''): FlatParam[] {
+export function flattenParams(params: unknown, units: DisplayUnits = DEFAULT_UNITS, prefix = '', root: unknown = params): FlatParam[] {
   if (params === null || typeof params !== 'object') {
     if (prefix === '') return [];
     const label = fieldLabel(prefix);
     if (typeof params === 'number') {
-      const dimension = fieldInfo(prefix)?.dimension ?? 'plain';
+      const spread = toleranceSpread(root, prefix);
+      const unitPath = spread?.field ?? prefix;
+      const dimension = fieldInfo(unitPath)?.dimension ?? 'plain';
       const value = formatNumber(toDisplay(params, dimension, units), SHOWN_DIGITS);
-      return [{ path: prefix, label, value, unit: fieldUnit(prefix, units) }];
+      return [{ path: prefix, label: spread ? `${label}, ${fieldLabel(spread.field)}` : label, value, unit: fieldUnit(unitPath, units) }];
     }
     return [{ path: prefix, label, value: formatFieldValue(prefix, params, units), unit: '' }];
   }
   const entries: [string, unknown][] = Array.isArray(params)
     ? params.map((v, i) => [String(i), v])
     : ordered(prefix, Object.entries(params));
-  return entries.flatMap(([key, value]) => flattenParams(value, units, prefix ? `${prefix}.${key}` : key));
+  return entries.flatMap(([key, value]) => flattenParams(value, units, prefix ? `${prefix}.${key}` : key, root));
 }
 
 /** Every path of either side once, in the left side's order with the right side's new paths after. */
