@@ -134,7 +134,7 @@ export class WorkerPool {
 
   /** A run of any kind, computed by the registry's job for it; partial results are not reported. */
   run(params: CaseParams, settings: RunSettings): Observable<PoolEvent<RunResult>> {
-    return this.runJob<RunResult, never>(runJob(params, settings), () => undefined);
+    return this.runJob<RunResult, never>(runJob(params, settings, { workers: this.size }), () => undefined);
   }
 
   /** One engine task as it is (the server's job workers compute a job's chunks one at a time). */
@@ -211,7 +211,7 @@ export class WorkerPool {
     kind: K, params: CaseParams, settings: RunSettingsOf<K>,
   ): Observable<PoolEvent<RunValueOf<K>, RunPartialOf<K>>> {
     const def = runKind(kind);
-    return this.runJob(def.job(params, settings), (r) => def.partial(r));
+    return this.runJob(def.job(params, settings, { workers: this.size }), (r) => def.partial(r));
   }
 
   /** Drives a job: each stage's tasks go to idle workers, its results back into the job. */

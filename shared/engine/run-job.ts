@@ -16,6 +16,18 @@ export interface JobStage {
   span: readonly [number, number];
 }
 
+/**
+ * What a driver tells a job: how many tasks it computes at once (1 in this thread, the pool's size on a pool). A
+ * job's numbers must not depend on it; it may only decide how much work to do ahead of need (the sweep's threshold
+ * rounds evaluate midpoints the bisection may take later, for idle workers).
+ */
+export interface JobContext {
+  workers: number;
+}
+
+/** The context of a job computed in this thread. */
+export const IN_THREAD: JobContext = { workers: 1 };
+
 /** A job yielding stages, receiving their results, returning the run's result. */
 export type RunJob<T> = Generator<JobStage, T, TaskResult[]>;
 

@@ -24,10 +24,10 @@ import {
 } from './holdprob';
 import { MULTIPLIER_UNIT_TOLERANCE, type FloquetAnalysis } from './floquet';
 import type { MotionResult } from './motion';
-import { expectResult, rowRanges, runJobInThread, type RunJob } from './run-job';
+import { expectResult, IN_THREAD, rowRanges, runJobInThread, type JobContext, type RunJob } from './run-job';
 import {
   advanceThresholdSearch, assembleCellMap, assembleSweep, defaultBasinGrid, finishThresholdSearch, startThresholdSearch,
-  sweepTolerance, thresholdBrackets, thresholdRoundValues, thresholdSearchOpen, thresholdStepsLeft,
+  sweepTolerance, thresholdBrackets, thresholdRoundValues, thresholdSearchOpen, thresholdStepsLeft, type ThresholdBracket,
   type CellMap, type ChunkHooks, type MapCell, type SweepPoint, type SweepResult,
 } from './sweep';
 
@@ -44,22 +44,27 @@ export const MAX_MAP_COUNT = 200;
 export const CHART_ROWS_PER_CHUNK = 8;
 export const MAP_ROWS_PER_CHUNK = 1;
 export const SWEEP_POINTS_PER_CHUNK = 2;
-/**
- * Threshold refinement runs in rounds, each one stage: per open bracket the 2^depth - 1 midpoints the next `depth`
- * bisection steps could try. The depth is the least (at most 4) that gives a round this many motion runs, counted
- * over the outcome brackets, so a round keeps several workers busy; it depends only on the job, and the thresholds
- * do not depend on it at all (each round replays the serial bisection's steps).
- */
-export const THRESHOLD_RUNS_PER_ROUND = 6;
-const MAX_THRESHOLD_ROUND_DEPTH = 4;
+/** Midpoints a threshold round evaluates ahead for a 'multiplier' bracket on a pool: cheap, so in one task. */
+export const MULTIPLIER_ROUND_VALUES = 7;
 
-/** Bisection steps per round of threshold refinement when `outcomeBrackets` outcome brackets are open. */
-export function thresholdRoundDepth(outcomeBrackets: number): number {
-  const n = Math.max(1, outcomeBrackets);
-  let depth = 1;
-  while (depth < MAX_THRESHOLD_ROUND_DEPTH && n * (2 ** depth - 1) < THRESHOLD_RUNS_PER_ROUND) depth++;
-  return depth;
+/**
+ * Per open threshold bracket (in order), how many midpoints the next round evaluates: in this thread one each (plain
+ * bisection); on `workers` workers the workers are shared out over the 'outcome' brackets, each midpoint a motion run
+ * and a task, so a round is about one run long and takes about log2(share + 1) bisection steps per bracket.
+ * The thresholds are the same for any budget (sweep.ts, `advanceThresholdSearch`).
+ */
+export function thresholdRoundBudgets(workers: number, kinds: ReadonlyArray<ThresholdBracket['kind']>): number[] {
+  const w = Math.max(1, Math.floor(workers));
+  const outcome = kinds.filter((k) => k === 'outcome').length;
+  let nth = 0;
+  return kinds.map((k) => {
+    if (w === 1) return 1;
+    if (k === 'multiplier') return MULTIPLIER_ROUND_VALUES;
+    const i = nth++;
+    return Math.max(1, Math.floor(w / outcome) + (i < w % outcome ? 1 : 0));
+  });
 }
+
 /** Most samples per axis of a leanest-drive search (each column is a Floquet limit search). */
 export const MAX_LEANEST_COUNT = 120;
 /** Chart columns per task of a leanest-drive search. */
@@ -333,8 +338,11 @@ export interface RunKindDef<K extends RunKind> {
   readonly chunked: boolean;
   /** Default settings for a case (the case page's first run of this kind). */
   defaults(params: CaseParams): RunSettingsOf<K>;
-  /** The job computing a run: its tasks, stage by stage, then the assembled value. */
-  job(params: CaseParams, settings: RunSettingsOf<K>): RunJob<RunValueOf<K>>;
+  /**
+   * The job computing a run: its tasks, stage by stage, then the assembled value. The context may change how much
+   * work is done ahead, never the value.
+   */
+  job(params: CaseParams, settings: RunSettingsOf<K>, context: JobContext): RunJob<RunValueOf<K>>;
   /** The partial result a finished task contributes, if any. */
   partial(result: TaskResult): RunPartialOf<K> | undefined;
   /** Headline numbers stored with the run and compared by a recheck. */
@@ -347,7 +355,7 @@ export interface RunKindDef<K extends RunKind> {
 
 const noPartial = (): undefined => undefined;
 
-function* sweepJob(params: CaseParams, { spec }: SweepSettings): RunJob<SweepResult> {
+function* sweepJob(params: CaseParams, { spec }: SweepSettings, context: JobContext): RunJob<SweepResult> {
   const pointParts = yield {
     tasks: rowRanges(spec.steps, SWEEP_POINTS_PER_CHUNK).map(([from, to]) => ({
       type: 'sweep-chunk', params, spec, part: { kind: 'points', from, to },
@@ -357,14 +365,14 @@ function* sweepJob(params: CaseParams, { spec }: SweepSettings): RunJob<SweepRes
   const points = pointParts.flatMap((r) => expectResult(r, 'sweep-points').points);
   const tolerance = sweepTolerance(spec);
   const searches = thresholdBrackets(points).map(startThresholdSearch);
-  // Progress per round from the rounds the widest bracket needs at the first round's depth (an estimate).
-  const firstDepth = thresholdRoundDepth(searches.filter((s) => s.bracket.kind === 'outcome').length);
-  const rounds = Math.max(1, ...searches.map((s) => Math.ceil(thresholdStepsLeft(spec, s, tolerance) / firstDepth)));
+  // Progress per round, from an estimate of the rounds: the steps the widest bracket needs at the first budgets.
+  const firstBudgets = thresholdRoundBudgets(context.workers, searches.map((s) => s.bracket.kind));
+  const rounds = Math.max(1, ...searches.map((s, i) => Math.ceil(thresholdStepsLeft(spec, s, tolerance) / Math.floor(Math.log2(firstBudgets[i] + 1)))));
   for (let round = 0; ; round++) {
     const open = searches.filter((s) => thresholdSearchOpen(s, tolerance));
     if (open.length === 0) break;
-    const depth = thresholdRoundDepth(open.filter((s) => s.bracket.kind === 'outcome').length);
-    const plan = open.map((search) => ({ search, values: thresholdRoundValues(spec, search, depth, tolerance) }));
+    const budgets = thresholdRoundBudgets(context.workers, open.map((s) => s.bracket.kind));
+    const plan = open.map((search, i) => ({ search, values: thresholdRoundValues(spec, search, budgets[i], tolerance) }));
     // A motion run per task for outcome brackets; a bracket's upright verdicts are cheap, so they share one task.
     const tasks: EngineTask[] = plan.flatMap(({ search, values }) => {
       const bracket = search.bracket.kind;
@@ -377,7 +385,7 @@ function* sweepJob(params: CaseParams, { spec }: SweepSettings): RunJob<SweepRes
     const outcomes = results.flatMap((r) => expectResult(r, 'sweep-probes').outcomes);
     let at = 0;
     for (const { search, values } of plan) {
-      advanceThresholdSearch(spec, search, depth, tolerance, values, outcomes.slice(at, at + values.length));
+      advanceThresholdSearch(spec, search, tolerance, values, outcomes.slice(at, at + values.length));
       at += values.length;
     }
   }
@@ -657,15 +665,15 @@ export function defaultRunSettings<K extends RunKind>(kind: K, params: CaseParam
   return runKind(kind).defaults(params);
 }
 
-function* taggedJob<K extends RunKind>(kind: K, params: CaseParams, settings: RunSettingsOf<K>): RunJob<RunResult> {
-  const value = yield* runKind(kind).job(params, settings);
+function* taggedJob<K extends RunKind>(kind: K, params: CaseParams, settings: RunSettingsOf<K>, context: JobContext): RunJob<RunResult> {
+  const value = yield* runKind(kind).job(params, settings, context);
   // { kind: K; value: RunValueOf<K> } is a RunResult for every K; the compiler cannot correlate the two.
   return { kind, value } as RunResult;
 }
 
-/** The job computing a run of any kind, its value tagged with the kind. */
-export function runJob(params: CaseParams, settings: RunSettings): RunJob<RunResult> {
-  return taggedJob(settings.kind, params, settings);
+/** The job computing a run of any kind, its value tagged with the kind (by default for this thread). */
+export function runJob(params: CaseParams, settings: RunSettings, context: JobContext = IN_THREAD): RunJob<RunResult> {
+  return taggedJob(settings.kind, params, settings, context);
 }
 
 /** Computes a run in this thread (the CLI and the server's recheck; the UI uses the worker pool). */

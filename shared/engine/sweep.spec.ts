@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { templateCase, type CaseParams } from '../case';
 import { driveLimits } from './floquet';
-import { computeRun } from './run-kinds';
+import { computeRun, runJob, thresholdRoundBudgets } from './run-kinds';
 import type { MotionOutcome } from './classify';
-import { thresholdRoundDepth } from './run-kinds';
+import { runJobInThread } from './run-job';
 import {
   advanceThresholdSearch, basinMapRows, finishThresholdSearch, locateThreshold, outcomeMapRows, startThresholdSearch, sweepPoints,
   sweepTolerance, sweepValues, thresholdBrackets, thresholdRoundValues, thresholdSearchOpen, type SweepResult, type SweepSpec,
@@ -36,47 +36,14 @@ describe('sweep', () => {
     expect(outcome.length).toBeGreaterThan(0);
     // The motion (a finite run) and the Floquet verdict agree on where the upright is lost, to about a hertz.
     expect(Math.abs(outcome[0].value - limit)).toBeLessThan(1.5);
-    // The job's parallel rounds (eight bisection steps here, 10 Hz down to 0.05 Hz) end exactly where the serial bisection does.
-    expect(r.thresholds).toEqual(thresholdBrackets(r.points).map((b) => locateThreshold(c, spec, b)).sort((a, b) => a.value - b.value || a.kind.localeCompare(b.kind)));
+    // Rounds for 4 workers (eight bisection steps here, 10 Hz down to 0.05 Hz, about three per round) end exactly
+    // where the serial bisection does, with the same probes.
+    const serial = thresholdBrackets(r.points).map((b) => locateThreshold(c, spec, b));
+    expect(r.thresholds).toEqual([...serial].sort((a, b) => a.value - b.value || a.kind.localeCompare(b.kind)));
+    const four = runJobInThread(runJob(c, { kind: 'sweep', spec }, { workers: 4 }));
+    if (four.kind !== 'sweep') throw new Error(`unexpected ${four.kind} run`);
+    expect(four.value).toEqual(r);
   }, 60_000);
-
-  it('refines in parallel rounds to exactly the serial bisection, at any round depth, for outcomes that change more than once', () => {
-    // A made-up outcome with three changes inside the bracket, so which change is found depends on the order of steps.
-    const outcomeAt = (x: number): MotionOutcome | null => (x < 0.3 || (x > 0.5 && x < 0.6) ? 'falls' : x < 0.9 ? 'holds-upright' : null);
-    const bracket: ThresholdBracket = { kind: 'outcome', lo: 0.05, hi: 1.05, loOutcome: 'falls', hiOutcome: null };
-    const inRounds = (spec: SweepSpec, depth: number): { threshold: SweepThreshold; rounds: number; evaluated: number } => {
-      const tolerance = sweepTolerance(spec);
-      const search = startThresholdSearch(bracket);
-      let rounds = 0;
-      let evaluated = 0;
-      while (thresholdSearchOpen(search, tolerance)) {
-        const values = thresholdRoundValues(spec, search, depth, tolerance);
-        expect(values.length).toBeLessThanOrEqual(2 ** depth - 1);
-        advanceThresholdSearch(spec, search, depth, tolerance, values, values.map(outcomeAt));
-        rounds++;
-        evaluated += values.length;
-      }
-      return { threshold: finishThresholdSearch(search, tolerance), rounds, evaluated };
-    };
-    for (const scale of ['linear', 'log'] as const) {
-      const spec: SweepSpec = { field: 'drive.amplitude', from: 0.05, to: 1.05, steps: 2, scale, tolerance: 1e-4 };
-      const serial = inRounds(spec, 1);
-      expect(serial.rounds).toBe(serial.threshold.probes.length);
-      expect(serial.threshold.bracket[1] - serial.threshold.bracket[0]).toBeLessThanOrEqual(1e-4);
-      // The linear first midpoint, 0.55, lies on the island, so the bisection ends at its upper edge, not at 0.3.
-      expect(serial.threshold.value).toBeCloseTo(scale === 'linear' ? 0.6 : 0.3, 3);
-      for (const depth of [2, 3, 4]) {
-        const parallel = inRounds(spec, depth);
-        expect(parallel.threshold).toEqual(serial.threshold);
-        expect(parallel.rounds).toBe(Math.ceil(serial.rounds / depth));
-        expect(parallel.evaluated).toBeGreaterThan(serial.rounds);
-      }
-    }
-  });
-
-  it('chooses round depths that give a round at least six motion runs where it can, at most four steps deep', () => {
-    expect([0, 1, 2, 3, 5, 6, 20].map(thresholdRoundDepth)).toEqual([3, 3, 2, 2, 2, 1, 1]);
-  });
 
   it('gives the same points however the index range is split', () => {
     const c = shortCase(1);
@@ -116,6 +83,51 @@ describe('sweep', () => {
     const above = t.probes.find((p) => p.value === t.bracket[1]);
     if (above) expect(above.outcome).toBe(t.above);
   }, 60_000);
+
+  it('refines in parallel rounds to exactly the serial bisection, however many values a round evaluates, for outcomes that change more than once', () => {
+    // A made-up outcome with three changes inside the bracket, so which change is found depends on the order of steps.
+    const outcomeAt = (x: number): MotionOutcome | null => (x < 0.3 || (x > 0.5 && x < 0.6) ? 'falls' : x < 0.9 ? 'holds-upright' : null);
+    const bracket: ThresholdBracket = { kind: 'outcome', lo: 0.05, hi: 1.05, loOutcome: 'falls', hiOutcome: null };
+    const inRounds = (spec: SweepSpec, budget: number): { threshold: SweepThreshold; rounds: number; evaluated: number } => {
+      const tolerance = sweepTolerance(spec);
+      const search = startThresholdSearch(bracket);
+      let rounds = 0;
+      let evaluated = 0;
+      while (thresholdSearchOpen(search, tolerance)) {
+        const values = thresholdRoundValues(spec, search, budget, tolerance);
+        expect(values.length).toBeLessThanOrEqual(budget);
+        const before = search.probes.length;
+        advanceThresholdSearch(spec, search, tolerance, values, values.map(outcomeAt));
+        // The round's tree holds every path floor(log2(budget + 1)) steps deep.
+        expect(search.probes.length - before).toBeGreaterThanOrEqual(thresholdSearchOpen(search, tolerance) ? Math.floor(Math.log2(budget + 1)) : 1);
+        rounds++;
+        evaluated += values.length;
+      }
+      return { threshold: finishThresholdSearch(search, tolerance), rounds, evaluated };
+    };
+    for (const scale of ['linear', 'log'] as const) {
+      const spec: SweepSpec = { field: 'drive.amplitude', from: 0.05, to: 1.05, steps: 2, scale, tolerance: 1e-4 };
+      const serial = inRounds(spec, 1);
+      expect(serial.rounds).toBe(serial.threshold.probes.length);
+      expect(serial.threshold.bracket[1] - serial.threshold.bracket[0]).toBeLessThanOrEqual(1e-4);
+      // The linear first midpoint, 0.55, lies on the island, so the bisection ends at its upper edge, not at 0.3.
+      expect(serial.threshold.value).toBeCloseTo(scale === 'linear' ? 0.6 : 0.3, 3);
+      for (const budget of [2, 3, 4, 7, 8]) {
+        const parallel = inRounds(spec, budget);
+        expect(parallel.threshold).toEqual(serial.threshold);
+        expect(parallel.rounds).toBeLessThanOrEqual(Math.ceil(serial.rounds / Math.floor(Math.log2(budget + 1))));
+        expect(parallel.evaluated).toBeGreaterThan(serial.rounds);
+      }
+    }
+  });
+
+  it('shares the workers out over the outcome brackets of a round; one value each in this thread', () => {
+    expect(thresholdRoundBudgets(1, ['outcome', 'multiplier', 'outcome'])).toEqual([1, 1, 1]);
+    expect(thresholdRoundBudgets(2, ['outcome', 'multiplier'])).toEqual([2, 7]);
+    expect(thresholdRoundBudgets(8, ['outcome', 'outcome', 'outcome'])).toEqual([3, 3, 2]);
+    expect(thresholdRoundBudgets(2, ['outcome', 'outcome', 'outcome'])).toEqual([1, 1, 1]);
+    expect(thresholdRoundBudgets(4, ['multiplier'])).toEqual([7]);
+  });
 });
 
 describe('outcome and basin maps', () => {

@@ -7,8 +7,9 @@
  * functions take an index range for that split. Thresholds are where the outcome changes between neighbouring
  * points, refined by bisection on the field to a stated absolute tolerance; the largest |Floquet multiplier| of the
  * upright (floquet.ts) is reported per point, and its crossings of 1 are thresholds too. The sweep job runs the
- * bisection in rounds: each round evaluates, in parallel, every midpoint the next few steps could try, then takes
- * those steps, so the thresholds are bit for bit those of the serial bisection (`locateThreshold`).
+ * bisection in rounds: each round evaluates, in parallel, midpoints the next few steps could try, then takes the
+ * steps they answer, so the thresholds are bit for bit those of the serial bisection (`locateThreshold`) however
+ * many values a round evaluates ahead.
  */
 import type { CaseParams } from '../case/case-schema';
 import { getField, setField } from '../case/case-fields';
@@ -235,36 +236,36 @@ function bisect(
 }
 
 /**
- * Every value the next `depth` bisection steps of the search could evaluate, whatever the outcomes: the tree of
- * midpoints (pre-order), 2^depth - 1 values, fewer where a sub-bracket would already be within the tolerance. Each
- * is computed by the same arithmetic the bisection uses, so it is the very number a step would try.
+ * The values a round evaluates ahead for a search: up to `budget` midpoints the next bisection steps could try,
+ * whatever the outcomes, nearest steps first (breadth first over the tree of midpoints: the next step's midpoint,
+ * then both of the step after, and so on; none where a sub-bracket is already within the tolerance). Each is
+ * computed by the same arithmetic the bisection uses, so it is the very number a step would try.
  */
-export function thresholdRoundValues(spec: SweepSpec, search: ThresholdSearch, depth: number, tolerance: number): number[] {
+export function thresholdRoundValues(spec: SweepSpec, search: ThresholdSearch, budget: number, tolerance: number): number[] {
   const out: number[] = [];
-  const visit = (lo: number, hi: number, level: number): void => {
-    const made = search.probes.length + level;
-    if (level >= depth || made >= MAX_BISECTIONS || !(Math.abs(hi - lo) > tolerance)) return;
+  const queue: Array<[number, number, number]> = [[search.lo, search.hi, 0]];
+  for (let i = 0; i < queue.length && out.length < budget; i++) {
+    const [lo, hi, level] = queue[i];
+    if (search.probes.length + level >= MAX_BISECTIONS || !(Math.abs(hi - lo) > tolerance)) continue;
     const mid = bisectionPoint(spec, lo, hi);
     out.push(mid);
-    visit(lo, mid, level + 1);
-    visit(mid, hi, level + 1);
-  };
-  visit(search.lo, search.hi, 0);
+    queue.push([lo, mid, level + 1], [mid, hi, level + 1]);
+  }
   return out;
 }
 
 /**
- * Advances a search by up to `depth` bisection steps, reading each step's outcome from the round's evaluations
- * (`values[i]` had `outcomes[i]`). The steps, and so the final bracket, are exactly those of a bisection that
- * evaluated one midpoint at a time; the round's other values were evaluated in case the outcomes went the other way.
+ * Advances a search by the bisection steps the round's evaluations answer (`values[i]` had `outcomes[i]`), up to
+ * the first step whose midpoint was not evaluated. The steps, and so the final bracket, are exactly those of a
+ * bisection that evaluated one midpoint at a time; values off its path were evaluated in case the outcomes went the
+ * other way.
  */
 export function advanceThresholdSearch(
-  spec: SweepSpec, search: ThresholdSearch, depth: number, tolerance: number,
-  values: readonly number[], outcomes: ReadonlyArray<MotionOutcome | null>,
+  spec: SweepSpec, search: ThresholdSearch, tolerance: number, values: readonly number[], outcomes: ReadonlyArray<MotionOutcome | null>,
 ): void {
   const found = new Map<number, MotionOutcome | null>();
   values.forEach((v, i) => found.set(v, outcomes[i]));
-  bisect(spec, search, tolerance, depth, (x) => found.get(x));
+  bisect(spec, search, tolerance, MAX_BISECTIONS, (x) => found.get(x));
 }
 
 /** The located threshold: the midpoint of the final bracket. */
