@@ -15,12 +15,19 @@ import type { CaseParams } from '../../shared/case/case-schema';
 import { parseCase } from '../../shared/case/validate';
 import type { EngineTask, TaskResult } from '../../shared/engine/engine-task';
 import { makeRunRecord, type RunResult, type RunSettings } from '../../shared/engine/run-record';
+import type { JobContext } from '../../shared/engine/run-job';
 import { runJob } from '../../shared/engine/run-kinds';
 import { Run, RunVerification } from '../db/models';
 import { audit } from '../services/case-service';
 import { jsonSummary, verificationRow } from '../services/run-verifier';
 import { decodeChunkResult, encodeChunkResult } from './chunk-codec';
 import { queueChunks, type ChunkMessage } from './queue';
+
+/**
+ * How the queue drives a job: a stage costs a queue round trip (a poll and a transaction, about half a second), far
+ * more than a typical task, so jobs use few stages (a sweep bisects each threshold in one task).
+ */
+const QUEUE_CONTEXT: JobContext = { workers: 1, costlyStages: true };
 
 /** A stage still to compute, or the run's result. */
 type Planned = { done: false; stage: number; tasks: EngineTask[]; span: readonly [number, number] } | { done: true; result: RunResult };
@@ -30,7 +37,7 @@ type Planned = { done: false; stage: number; tasks: EngineTask[]; span: readonly
  * says what comes next. Empty stages (a sweep without thresholds) are answered at once and not numbered.
  */
 export function planNext(params: CaseParams, settings: RunSettings, computed: readonly TaskResult[][]): Planned {
-  const job = runJob(params, settings);
+  const job = runJob(params, settings, QUEUE_CONTEXT);
   let step = job.next();
   let stage = 0;
   while (!step.done) {

@@ -15,8 +15,8 @@ import { leanestColumns, leanestRefine, type LeanestOptimum, type LeanestPoint, 
 import { EngineCancelledError, simulateMotion, type MotionResult } from './motion';
 import { overlayDrivenTrace, type OverlayResult } from './trace-drive';
 import {
-  basinMapRows, outcomeMapRows, sweepPoints, thresholdOutcomes,
-  type BasinCell, type ChunkHooks, type MapCell, type SweepPoint, type SweepSpec, type ThresholdBracket,
+  basinMapRows, outcomeMapRows, sweepPoints, sweepThresholds, thresholdOutcomes,
+  type BasinCell, type ChunkHooks, type MapCell, type SweepPoint, type SweepSpec, type SweepThreshold, type ThresholdBracket,
 } from './sweep';
 
 /** Simulate the motion of one case. */
@@ -33,8 +33,8 @@ export interface MarginsTask {
 }
 
 /**
- * Part of a 1-D sweep: the points with index in [from, to), or the outcomes (for a 'multiplier' bracket the upright's
- * verdicts) at values a round of threshold refinement evaluates.
+ * Part of a 1-D sweep: the points with index in [from, to); the outcomes (for a 'multiplier' bracket the upright's
+ * verdicts) at values a round of threshold refinement evaluates; or the whole serial bisection of each given bracket.
  */
 export interface SweepChunkTask {
   type: 'sweep-chunk';
@@ -42,7 +42,8 @@ export interface SweepChunkTask {
   spec: SweepSpec;
   part:
     | { kind: 'points'; from: number; to: number }
-    | { kind: 'threshold-probes'; bracket: ThresholdBracket['kind']; values: number[] };
+    | { kind: 'threshold-probes'; bracket: ThresholdBracket['kind']; values: number[] }
+    | { kind: 'thresholds'; brackets: ThresholdBracket[] };
 }
 
 /** Rows [rowFrom, rowTo) of a stability chart. */
@@ -134,7 +135,8 @@ export type TaskResult =
   | { kind: 'motion'; motion: MotionResult }
   | { kind: 'margins'; analysis: FloquetAnalysis }
   | { kind: 'sweep-points'; points: SweepPoint[] }
-  | { kind: 'sweep-probes'; outcomes: Array<MotionOutcome | null> }
+  | { kind: 'sweep-probes'; bracket: ThresholdBracket['kind']; values: number[]; outcomes: Array<MotionOutcome | null> }
+  | { kind: 'sweep-thresholds'; thresholds: SweepThreshold[] }
   | { kind: 'chart-rows'; rowFrom: number; rowTo: number; values: Float64Array }
   | { kind: 'basin-rows'; rowFrom: number; rowTo: number; cells: BasinCell[] }
   | { kind: 'map-rows'; rowFrom: number; rowTo: number; cells: MapCell[] }
@@ -168,7 +170,11 @@ export function computeTask(task: EngineTask, hooks: ChunkHooks = {}): TaskResul
       if (part.kind === 'points') {
         return { kind: 'sweep-points', points: sweepPoints(params, task.spec, part.from, part.to, hooks) };
       }
-      return { kind: 'sweep-probes', outcomes: thresholdOutcomes(params, task.spec, part.bracket, part.values, hooks) };
+      if (part.kind === 'thresholds') {
+        return { kind: 'sweep-thresholds', thresholds: sweepThresholds(params, task.spec, part.brackets, hooks) };
+      }
+      const { bracket, values } = part;
+      return { kind: 'sweep-probes', bracket, values, outcomes: thresholdOutcomes(params, task.spec, bracket, values, hooks) };
     }
     case 'chart-chunk': {
       const { values, cancelled } = stabilityChartRows(params, task.grid, task.rowFrom, task.rowTo, hooks.onProgress, hooks.shouldCancel);

@@ -17,12 +17,14 @@ export interface JobStage {
 }
 
 /**
- * What a driver tells a job: how many tasks it computes at once (1 in this thread, the pool's size on a pool). A
- * job's numbers must not depend on it; it may only decide how much work to do ahead of need (the sweep's threshold
+ * What a driver tells a job: how many tasks it computes at once (1 in this thread, the pool's size on a pool) and
+ * whether a stage costs a round trip far longer than a task (the server's job queue). A job's numbers must not
+ * depend on it; it may only decide how much work to do ahead of need and in how many stages (the sweep's threshold
  * rounds evaluate midpoints the bisection may take later, for idle workers).
  */
 export interface JobContext {
   workers: number;
+  costlyStages?: boolean;
 }
 
 /** The context of a job computed in this thread. */

@@ -363,8 +363,17 @@ function* sweepJob(params: CaseParams, { spec }: SweepSettings, context: JobCont
     span: [0, 0.7],
   };
   const points = pointParts.flatMap((r) => expectResult(r, 'sweep-points').points);
+  const brackets = thresholdBrackets(points);
+  if (context.costlyStages) {
+    // A stage costs more than a bisection's runs (a queue round trip): each bracket's whole bisection in one task.
+    const parts = yield {
+      tasks: brackets.map((b) => ({ type: 'sweep-chunk', params, spec, part: { kind: 'thresholds', brackets: [b] } })),
+      span: [0.7, 1],
+    };
+    return assembleSweep(spec, points, parts.flatMap((r) => expectResult(r, 'sweep-thresholds').thresholds));
+  }
   const tolerance = sweepTolerance(spec);
-  const searches = thresholdBrackets(points).map(startThresholdSearch);
+  const searches = brackets.map(startThresholdSearch);
   // Progress per round, from an estimate of the rounds: the steps the widest bracket needs at the first budgets.
   const firstBudgets = thresholdRoundBudgets(context.workers, searches.map((s) => s.bracket.kind));
   const rounds = Math.max(1, ...searches.map((s, i) => Math.ceil(thresholdStepsLeft(spec, s, tolerance) / Math.floor(Math.log2(firstBudgets[i] + 1)))));
@@ -372,21 +381,22 @@ function* sweepJob(params: CaseParams, { spec }: SweepSettings, context: JobCont
     const open = searches.filter((s) => thresholdSearchOpen(s, tolerance));
     if (open.length === 0) break;
     const budgets = thresholdRoundBudgets(context.workers, open.map((s) => s.bracket.kind));
-    const plan = open.map((search, i) => ({ search, values: thresholdRoundValues(spec, search, budgets[i], tolerance) }));
     // A motion run per task for outcome brackets; a bracket's upright verdicts are cheap, so they share one task.
-    const tasks: EngineTask[] = plan.flatMap(({ search, values }) => {
+    const tasks: EngineTask[] = open.flatMap((search, i) => {
       const bracket = search.bracket.kind;
+      const values = thresholdRoundValues(spec, search, budgets[i], tolerance);
       const groups = bracket === 'outcome' ? values.map((v) => [v]) : [values];
       return groups.map((g) => ({ type: 'sweep-chunk', params, spec, part: { kind: 'threshold-probes', bracket, values: g } }) as const);
     });
     const results = yield {
       tasks, span: [0.7 + (0.3 * Math.min(round, rounds)) / rounds, 0.7 + (0.3 * Math.min(round + 1, rounds)) / rounds],
     };
-    const outcomes = results.flatMap((r) => expectResult(r, 'sweep-probes').outcomes);
-    let at = 0;
-    for (const { search, values } of plan) {
-      advanceThresholdSearch(spec, search, tolerance, values, outcomes.slice(at, at + values.length));
-      at += values.length;
+    // Outcomes are read by value, from what each task says it evaluated: a driver replaying the job over stored
+    // results (the server) stays right even if a round was planned for another worker count.
+    const answered = results.map((r) => expectResult(r, 'sweep-probes'));
+    for (const search of open) {
+      const mine = answered.filter((a) => a.bracket === search.bracket.kind);
+      advanceThresholdSearch(spec, search, tolerance, mine.flatMap((a) => a.values), mine.flatMap((a) => a.outcomes));
     }
   }
   return assembleSweep(spec, points, searches.map((s) => finishThresholdSearch(s, tolerance)));

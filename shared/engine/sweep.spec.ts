@@ -3,7 +3,9 @@ import { templateCase, type CaseParams } from '../case';
 import { driveLimits } from './floquet';
 import { computeRun, runJob, thresholdRoundBudgets } from './run-kinds';
 import type { MotionOutcome } from './classify';
+import { computeTask, type TaskResult } from './engine-task';
 import { runJobInThread } from './run-job';
+import { resultDigest } from './run-record';
 import {
   advanceThresholdSearch, basinMapRows, finishThresholdSearch, locateThreshold, outcomeMapRows, startThresholdSearch, sweepPoints,
   sweepTolerance, sweepValues, thresholdBrackets, thresholdRoundValues, thresholdSearchOpen, type SweepResult, type SweepSpec,
@@ -120,6 +122,27 @@ describe('sweep', () => {
       }
     }
   });
+
+  it('gives the serial thresholds when replayed over stored results planned for another worker count, or in one task per bracket', () => {
+    const c = shortCase();
+    const settings = { kind: 'sweep' as const, spec: { field: 'drive.frequency', from: 20, to: 60, steps: 5, tolerance: 0.05 } };
+    const serial = computeRun(c, settings);
+    // Stages computed for 4 workers, then a replay for 2 workers fed those results, computing only what it lacks.
+    const stored: TaskResult[][] = [];
+    const four = runJob(c, settings, { workers: 4 });
+    for (let step = four.next(); !step.done; ) {
+      const results = step.value.tasks.map((t) => computeTask(t));
+      stored.push(results);
+      step = four.next(results);
+    }
+    const two = runJob(c, settings, { workers: 2 });
+    let step = two.next();
+    for (let stage = 0; !step.done; stage++) step = two.next(stored[stage] ?? step.value.tasks.map((t) => computeTask(t)));
+    expect(resultDigest(step.value)).toBe(resultDigest(serial));
+    expect(step.value).toEqual(serial);
+    const queued = runJobInThread(runJob(c, settings, { workers: 1, costlyStages: true }));
+    expect(queued).toEqual(serial);
+  }, 60_000);
 
   it('shares the workers out over the outcome brackets of a round; one value each in this thread', () => {
     expect(thresholdRoundBudgets(1, ['outcome', 'multiplier', 'outcome'])).toEqual([1, 1, 1]);
