@@ -113,18 +113,20 @@ export async function startChunkWorker(options: ChunkWorkerOptions): Promise<Chu
 
   const workIds: string[] = [];
   for (let i = 0; i < pool.size; i++) {
-    workIds.push(
-      await boss.work<ChunkMessage>(CHUNK_QUEUE, { batchSize: 1, pollingIntervalSeconds: 0.5 }, async ([job]) => {
+    let id = '';
+    id = await boss.work<ChunkMessage>(CHUNK_QUEUE, { batchSize: 1, pollingIntervalSeconds: 0.5 }, async ([job]) => {
         if (!job) return;
         try {
           await handle(job.data);
+          // Ask for the next chunk at once rather than after the polling interval: a job's chunks follow each other.
+          boss.notifyWorker(id);
         } catch (error: unknown) {
           // The queue retries the chunk; say why in the log.
           logger.warn({ ...job.data, err: error }, 'chunk failed; the queue will retry it');
           throw error;
         }
-      }),
-    );
+      });
+    workIds.push(id);
   }
   workIds.push(
     await boss.work<ChunkMessage>(DEAD_CHUNK_QUEUE, { batchSize: 1, pollingIntervalSeconds: 2 }, async ([job]) => {
