@@ -86,4 +86,26 @@ describe('hold probability', () => {
     await page.locator('qp-hold-probability-panel qp-plot').scrollIntoViewIfNeeded();
     await screenshot(page, 'holdprob-histogram');
   }, 300_000);
+
+  it('adds phase jitter to the drive and runs the probability over the noise alone (a motion run per sample)', async () => {
+    await page.getByTestId('noise-kind').click();
+    await page.getByRole('option', { name: 'Phase jitter' }).click();
+    await page.getByTestId('noise-rms').fill('3');
+    await page.getByTestId('noise-bandwidth').fill('40');
+    // A band past 20 x the drive frequency is refused in words.
+    await page.getByTestId('noise-bandwidth').fill('5000');
+    await expect.poll(() => page.getByTestId('noise-error').textContent()).toContain('at most 20 times the drive frequency');
+    await page.getByTestId('noise-bandwidth').fill('40');
+    await expect.poll(() => page.getByTestId('noise-error').count()).toBe(0);
+    await page.getByTestId('holdprob-parts').click();
+    await page.getByRole('option', { name: 'Drive noise (a motion run per sample)' }).click();
+    await page.getByTestId('run-holdprob').click();
+    await expect.poll(() => page.getByTestId('run-holdprob-progress').count(), { timeout: 30_000 }).toBe(1);
+    await expect.poll(() => page.getByTestId('holdprob-result').textContent(), { timeout: 240_000 }).toContain('drive noise (a motion run per sample)');
+    // 3° RMS of phase error up to 40 Hz leaves the template's 27 % margin holding in every sample.
+    expect(await page.getByTestId('holdprob-probability').textContent()).toBe('100 %');
+    expect(await page.getByTestId('holdprob-noise-only').count()).toBe(1);
+    await page.getByTestId('noise-kind').scrollIntoViewIfNeeded();
+    await screenshot(page, 'holdprob-noise');
+  }, 300_000);
 });

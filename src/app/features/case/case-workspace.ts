@@ -445,9 +445,17 @@ export class CaseWorkspace {
    * with the reason in words, when the form is invalid, the role cannot edit, or a tolerance breaks the case's rules.
    */
   setTolerances(tolerances: NonNullable<CaseParams['tolerances']>): string | null {
+    return this.setUncertainty({ ...this.draftState(), tolerances: tolerances.length ? tolerances : undefined });
+  }
+
+  /** Sets the case's drive noise (SI; null: none), like `setTolerances`. */
+  setNoise(noise: CaseParams['noise'] | null): string | null {
+    return this.setUncertainty({ ...this.draftState(), noise: noise ?? undefined });
+  }
+
+  private setUncertainty(next: CaseParams): string | null {
     if (!this.valid()) return 'Fix the Rig fields first: the form is invalid.';
     if (this.readOnly()) return 'Your role in this lab cannot change this case.';
-    const next: CaseParams = { ...this.draftState(), tolerances: tolerances.length ? tolerances : undefined };
     const checked = parseCase(next);
     if (!checked.ok) return checked.issues[0]?.message ?? 'invalid';
     this.form.setExtras({ tolerances: checked.value.tolerances, noise: checked.value.noise });

@@ -7,12 +7,12 @@ import { MatInputModule } from '@angular/material/input';
 import { MatSelectModule } from '@angular/material/select';
 
 import { sweepableFieldsFor } from '../../../../../shared/case/case-fields';
-import type { CaseParams, Tolerance } from '../../../../../shared/case/case-schema';
+import { MAX_NOISE_BANDWIDTH_RATIO, type CaseParams, type DriveNoise, type Tolerance } from '../../../../../shared/case/case-schema';
 import { HOLDPROB_PARTS_WORDS } from '../../../../../shared/case/holdprob-words';
 import {
   defaultHoldProbSettings, holdprobSettingsSchema, HOLDPROB_PARTS, type HoldProbSettings,
 } from '../../../../../shared/engine/run-kinds';
-import { fromDisplay, toShown, type DisplayUnits } from '../../../core/units/display-units';
+import { fromDisplay, toDisplay, toShown, unitLabelOf, type DisplayUnits } from '../../../core/units/display-units';
 import { fieldInfo, fieldLabel, fieldUnit } from '../../../core/units/field-table';
 import { formatIn, formatNumber, withUnit } from '../../../core/units/format-number';
 import { Plot } from '../../../ui/plot/plot';
@@ -22,6 +22,7 @@ import { StoredMark } from '../stored-mark';
 import { holdProbabilityPlot } from './hold-probability-plot';
 
 type Parts = HoldProbSettings['parts'];
+type NoiseKind = DriveNoise['kind'] | 'none';
 
 /** A tolerance's spread (SI) as it reads on screen: "σ 0.5 mm", "± 2 %" in the field's display unit. */
 export function spreadText(t: Tolerance, units: DisplayUnits): string {
@@ -84,14 +85,29 @@ export class HoldProbabilityPanel {
     return !this.workspace.readOnly() && this.fieldChoices().some((f) => !used.has(f.path));
   });
 
-  protected readonly noiseText = computed(() => {
-    const n = this.draft().noise;
-    if (!n) return null;
+  protected readonly noiseError = signal<string | null>(null);
+  /** Drive noise is modelled for a single body (the schema refuses it on a chain). */
+  protected readonly isChain = computed(() => this.draft().body.kind === 'chain');
+  protected readonly noise = computed(() => this.draft().noise ?? null);
+  protected readonly noiseKind = computed<NoiseKind>(() => this.noise()?.kind ?? 'none');
+  protected readonly lengthUnit = computed(() => unitLabelOf('length', this.units()));
+  protected readonly angleUnit = computed(() => unitLabelOf('angle', this.units()));
+  protected readonly frequencyUnit = computed(() => unitLabelOf('frequency', this.units()));
+  /** The noise's numbers in display units: RMS phase (° or rad), density (mm²/Hz in mm), bandwidth. */
+  protected readonly noiseShown = computed(() => {
+    const n = this.noise();
     const u = this.units();
-    const band = formatIn(n.bandwidth, 'frequency', u);
-    return n.kind === 'phase-jitter'
-      ? `phase jitter of ${formatIn(n.rms, 'angle', u)} RMS, up to ${band}`
-      : `amplitude noise of ${withUnit(formatNumber(n.density), 'm²/Hz')}, up to ${band}`;
+    if (!n) return null;
+    const scale = toDisplay(1, 'length', u);
+    return {
+      rms: n.kind === 'phase-jitter' ? toShown(n.rms, 'angle', u) : null,
+      density: n.kind === 'amplitude' ? Number((n.density * scale * scale).toPrecision(6)) : null,
+      bandwidth: toShown(n.bandwidth, 'frequency', u),
+      seed: n.seed,
+      /** amplitude noise as the RMS displacement it gives, sqrt(S B) */
+      displacementRms: n.kind === 'amplitude' ? formatIn(Math.sqrt(n.density * n.bandwidth), 'length', u) : null,
+      bandwidthLimit: formatIn(MAX_NOISE_BANDWIDTH_RATIO * this.draft().drive.frequency, 'frequency', u),
+    };
   });
 
   /** What can be sampled: the tolerances, the drive noise, or both, as the case carries them. */
@@ -120,7 +136,7 @@ export class HoldProbabilityPanel {
   }));
 
   protected readonly problem = computed<string | null>(() => {
-    if (this.partChoices().length === 0) return 'Add a tolerance first: the probability samples the case\'s tolerances.';
+    if (this.partChoices().length === 0) return 'Add a tolerance or drive noise first: the probability samples them.';
     const checked = holdprobSettingsSchema.safeParse(this.settings());
     if (!checked.success) {
       const issue = checked.error.issues[0];
@@ -208,6 +224,33 @@ export class HoldProbabilityPanel {
     this.apply(this.current().map((t, i) => (i === index ? this.withSpread(t, this.fromShownSpread(t.field, shown)) : t)));
   }
 
+  /** None, or a first noise of the kind: 3° RMS phase jitter, or 1 % of the amplitude RMS; both up to the drive frequency. */
+  protected setNoiseKind(kind: NoiseKind): void {
+    const c = this.draft();
+    const f = c.drive.frequency;
+    const seed = this.noise()?.seed ?? 1;
+    if (kind === 'none') this.applyNoise(null);
+    else if (kind === 'phase-jitter') this.applyNoise({ kind, rms: 0.05, bandwidth: f, seed });
+    else this.applyNoise({ kind, density: (0.01 * c.drive.amplitude) ** 2 / f, bandwidth: f, seed });
+  }
+
+  protected setNoiseValue(key: 'rms' | 'density' | 'bandwidth' | 'seed', value: number | string | null): void {
+    const n = this.noise();
+    const shown = value === null || value === '' ? NaN : Number(value);
+    const label = { rms: 'RMS phase error', density: 'Spectral density', bandwidth: 'Bandwidth', seed: 'Noise seed' }[key];
+    if (!n) return;
+    if (!Number.isFinite(shown) || shown < 0) {
+      this.noiseError.set(`${label}: must be a number, zero or more.`);
+      return;
+    }
+    const u = this.units();
+    const scale = toDisplay(1, 'length', u);
+    if (key === 'seed') this.applyNoise({ ...n, seed: shown });
+    else if (key === 'bandwidth') this.applyNoise({ ...n, bandwidth: fromDisplay(shown, 'frequency', u) });
+    else if (key === 'rms' && n.kind === 'phase-jitter') this.applyNoise({ ...n, rms: fromDisplay(shown, 'angle', u) });
+    else if (key === 'density' && n.kind === 'amplitude') this.applyNoise({ ...n, density: shown / (scale * scale) });
+  }
+
   protected runProbability(): void {
     this.workspace.runHoldProb(this.settings());
   }
@@ -219,6 +262,11 @@ export class HoldProbabilityPanel {
   private apply(list: Tolerance[]): void {
     const refusal = this.workspace.setTolerances(list);
     this.toleranceError.set(refusal === null ? null : `Tolerances: ${refusal}`);
+  }
+
+  private applyNoise(noise: DriveNoise | null): void {
+    const refusal = this.workspace.setNoise(noise);
+    this.noiseError.set(refusal === null ? null : `Drive noise: ${refusal}`);
   }
 
   private withSpread(t: Tolerance, si: number): Tolerance {
