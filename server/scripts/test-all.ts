@@ -1,7 +1,7 @@
 /**
  * `npm test`: every check, in order, stopping at the first failure, with a summary at the end.
  * PostgreSQL (started here with fsync off if it was not running, and stopped again at the end), Debian chromium
- * for the browser tests and poppler-utils (pdftotext) for the case report tests, then (test databases are made fresh by the tests' own set-up): Node tests (Vitest projects shared, reference, server, api), Angular unit tests,
+ * for the browser tests and poppler-utils (pdftotext) for the case report tests, then (test databases are made fresh by the tests' own set-up): Node tests (Vitest projects shared, reference, server, api, queue), Angular unit tests,
  * worker type check, client build, server build, browser tests.
  */
 import { existsSync } from 'node:fs';
@@ -47,7 +47,7 @@ async function main(): Promise<number> {
     ['chromium present', ensureDebianPackage('chromium', '/usr/bin/chromium')],
     // The case report tests read the PDF's text with pdftotext.
     ['poppler-utils present', ensureDebianPackage('poppler-utils', '/usr/bin/pdftotext')],
-    ['vitest: shared, reference, server, api', npx('vitest', 'run')],
+    ['vitest: shared, reference, server, api, queue', npx('vitest', 'run')],
     ['ng test (Angular unit tests)', npx('ng', 'test', '--watch=false')],
   ];
   if (existsSync(join(repoRoot, 'tsconfig.worker.json'))) steps.push(['tsc workers (tsconfig.worker.json)', npx('tsc', '-p', 'tsconfig.worker.json', '--noEmit')]);
