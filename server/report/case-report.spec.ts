@@ -12,11 +12,16 @@ import { thinIndices } from './svg-plot';
 
 const params: CaseParams = templateCase();
 params.run.duration = 8;
+params.tolerances = [
+  { field: 'drive.amplitude', distribution: 'normal', sigma: 5e-4 },
+  { field: 'drive.frequency', distribution: 'uniform', halfWidth: 2 },
+];
 const settings: RunSettings[] = [
   { kind: 'motion' },
   { kind: 'margins', relTolerance: 1e-6 },
   { kind: 'sweep', spec: { field: 'drive.amplitude', from: 0.002, to: 0.02, steps: 7 } },
   { kind: 'chart', grid: defaultChartGrid(params, 24) },
+  { kind: 'holdprob', samples: 16, sampler: 'latin-hypercube', seed: 5, targetWidth: 0, parts: 'tolerances', relTolerance: 1e-3 },
 ];
 const runs: ReportRun[] = [];
 const results = new Map<string, RunResult>();
@@ -97,8 +102,18 @@ describe('case report', { timeout: 60_000 }, () => {
     for (const line of [...CAUTION_NOTES, CAUTION_DEFERRAL]) expect(text).toContain(line);
   });
 
+  it('states the tolerances in the rig and the hold probability with its interval and ranking', () => {
+    const hold = summaryOf('holdprob');
+    expect(fullText).toContain('Tolerance on Drive amplitude normal, σ 0.5 mm');
+    expect(fullText).toContain('Tolerance on Drive frequency uniform, ± 2 Hz');
+    expect(fullText).toContain(`Probability of holding ${Number((100 * (hold['probability'] as number)).toPrecision(3))} %`);
+    expect(fullText).toMatch(/95 % interval \(Wilson\) [\d.]+ % to [\d.]+ %/);
+    expect(fullText).toContain('Samples run / held 16 /');
+    expect(fullText).toMatch(/Drive amplitude \(normal, σ 0\.5 mm\) 0\.\d+/);
+  });
+
   it('shows nothing internal: no schema keys, no summary keys', () => {
-    for (const key of ['drive.amplitude', 'marginPercent', 'amplitudeLower', 'holds-upright', 'viscousRatio', 'schemaVersion', 'threshold.0']) {
+    for (const key of ['drive.amplitude', 'drive.frequency', 'marginPercent', 'amplitudeLower', 'holds-upright', 'viscousRatio', 'schemaVersion', 'threshold.0', 'halfWidth', 'sigma', 'samplesUsed', 'latin-hypercube']) {
       expect(fullText, key).not.toContain(key);
     }
   });

@@ -6,7 +6,7 @@
  * never reruns the engine. A run without a decoded result still gives its summary numbers (and a sweep its outcome
  * plot, from the stored settings).
  */
-import type { CaseParams } from '../../shared/case/case-schema';
+import type { CaseParams, Tolerance } from '../../shared/case/case-schema';
 import { CAUTION_DEFERRAL, CAUTION_NOTES, CAUTION_TITLE } from '../../shared/case/caution';
 import {
   OUTCOME_COLOURS, RECHECK_STATE_WORDS, SHOWN_UNITS, chainLinkWords, fieldDisplay, formatAngle, formatFrequency, formatLength, formatNumber, formatPercent,
@@ -171,7 +171,54 @@ function rigRows(p: CaseParams): Row[] {
   rows.push(['Output points', String(p.run.outputPoints)]);
   rows.push(['Transient share ignored', `${formatNumber(p.run.transientFraction * 100, 3)} %`]);
   rows.push(['Relative / absolute tolerance', `${formatNumber(p.run.rtol, 2)} / ${formatNumber(p.run.atol, 2)}`]);
+  for (const t of p.tolerances ?? []) rows.push([`Tolerance on ${fieldDisplay(t.field).label}`, toleranceWords(t)]);
+  const n = p.noise;
+  if (n) {
+    rows.push(['Drive noise', n.kind === 'phase-jitter'
+      ? `phase jitter ${formatAngle(n.rms)} RMS up to ${formatFrequency(n.bandwidth)}, seed ${n.seed}`
+      : `amplitude noise ${formatNumber(n.density)} m²/Hz (${formatLength(Math.sqrt(n.density * n.bandwidth))} RMS) up to ${formatFrequency(n.bandwidth)}, seed ${n.seed}`]);
+  }
   return rows;
+}
+
+/** "normal, σ 0.5 mm" / "uniform, ± 2 Hz", in the field's shown unit. */
+function toleranceWords(t: Tolerance): string {
+  const { unit } = fieldDisplay(t.field);
+  const si = t.distribution === 'normal' ? t.sigma : t.halfWidth;
+  const value = formatShown(si, unit);
+  return t.distribution === 'normal' ? `normal, σ ${value}` : `uniform, ± ${value}`;
+}
+
+const probabilityText = (p: unknown) => (typeof p === 'number' ? `${formatNumber(100 * p, 3)} %` : '—');
+
+function holdProbabilityBlock(run: ReportRun | undefined, result: RunResult | undefined): PdfContent[] {
+  if (!run) return [note('No hold probability is stored with this revision: set tolerances and run it on the Sign-off tab.')];
+  const s = run.summary;
+  const parts = typeof s['parts'] === 'string' ? s['parts'] : '—';
+  const out: PdfContent[] = [
+    storedLine(run, result?.kind === 'holdprob'),
+    table([
+      ['Probability of holding', probabilityText(s['probability'])],
+      ['95 % interval (Wilson)', `${probabilityText(s['intervalLower'])} to ${probabilityText(s['intervalUpper'])}`],
+      ['Samples run / held', `${String(s['samplesUsed'] ?? '—')} / ${String(s['samplesHeld'] ?? '—')}`],
+      ['Sampled', parts],
+      ['Seed', String(s['seed'] ?? '—')],
+      ['Stopped at the wanted interval width', s['stoppedEarly'] === true ? 'yes' : 'no'],
+    ]),
+  ];
+  if (result?.kind === 'holdprob' && result.value.ranking.length > 0) {
+    const byField = new Map(result.value.tolerances.map((t) => [t.field, t]));
+    out.push(note('Spread that matters most: Spearman\'s rank correlation of each toleranced value with the margin over the samples.'));
+    out.push(table(result.value.ranking.map((r) => {
+      const t = byField.get(r.field);
+      return [
+        `${fieldDisplay(r.field).label}${t ? ` (${toleranceWords(t)})` : ''}`,
+        r.rankCorrelation === null ? 'did not vary' : formatNumber(r.rankCorrelation, 3),
+      ] as Row;
+    })));
+  }
+  out.push(note('The probability of the ideal model over the stated tolerances and noise; it does not cover a loose clamp or a worn pivot.'));
+  return out;
 }
 
 function sizingRows(p: CaseParams): Row[] {
@@ -598,6 +645,9 @@ export function caseReportDocument(input: ReportInput): PdfDocument {
     ...sweepBlock(latest.get('sweep'), resultOf('sweep')),
     section('Stability chart'),
     ...chartBlock(latest.get('chart'), resultOf('chart')),
+    ...(r.params.tolerances?.length || latest.get('holdprob')
+      ? [section('Hold probability'), ...holdProbabilityBlock(latest.get('holdprob'), resultOf('holdprob'))]
+      : []),
     section('Stored runs and digests'),
     runsTable(r.runs, input.results),
     { stack: [{ text: CAUTION_TITLE, style: 'section' }, { ul: [...CAUTION_NOTES], style: 'caution' }, { text: CAUTION_DEFERRAL, style: 'caution', italics: true, margin: [0, 4, 0, 0] }], unbreakable: true },
