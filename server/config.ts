@@ -62,6 +62,8 @@ const schema = z.object({
   chunkRetries: z.coerce.number().int().min(0).max(20),
   /** QP_QUEUE_MAINTENANCE_SECONDS: how often the queue looks for lost chunks */
   queueMaintenanceSeconds: positiveInt,
+  /** QP_JOB_MAIL_AFTER_SECONDS: a server job ending this long after its submission mails its submitter */
+  jobMailAfterSeconds: z.coerce.number().int().min(0),
 });
 
 export type Config = z.infer<typeof schema>;
@@ -112,6 +114,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     chunkTimeoutSeconds: env['QP_CHUNK_TIMEOUT_SECONDS'] || 3600,
     chunkRetries: env['QP_CHUNK_RETRIES'] || 3,
     queueMaintenanceSeconds: env['QP_QUEUE_MAINTENANCE_SECONDS'] || 30,
+    jobMailAfterSeconds: env['QP_JOB_MAIL_AFTER_SECONDS'] ?? 300,
   };
   const parsed = schema.safeParse(raw);
   if (!parsed.success) {

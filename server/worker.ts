@@ -25,6 +25,7 @@ async function main(): Promise<void> {
   const pool = createEnginePool(cfg.workerThreads);
   const worker = await startChunkWorker({
     sequelize, boss, pool, logger, chunkTimeoutSeconds: cfg.chunkTimeoutSeconds, chunkRetries: cfg.chunkRetries,
+    mail: { publicUrl: cfg.publicUrl, afterSeconds: cfg.jobMailAfterSeconds },
   });
   let closing = false;
   const shutdown = (signal: string) => {

@@ -16,6 +16,7 @@ import { EngineTaskError, type WorkerPool } from '../../shared/compute/worker-po
 import type { TaskResult } from '../../shared/engine/engine-task';
 import type { Logger } from '../logger';
 import { completeChunk, failJob, inactiveJobs, PoisonJobError, takeChunk } from './job-store';
+import type { JobMailOptions } from './job-mail';
 import { CHUNK_QUEUE, DEAD_CHUNK_QUEUE, withdrawChunks, type ChunkMessage } from './queue';
 
 export interface ChunkWorkerOptions {
@@ -26,6 +27,8 @@ export interface ChunkWorkerOptions {
   /** chunk time limit and retries, for the dead-letter message */
   chunkTimeoutSeconds: number;
   chunkRetries: number;
+  /** mail the submitter when a long job ends (none when absent) */
+  mail?: JobMailOptions;
 }
 
 export interface ChunkWorker {
@@ -73,7 +76,7 @@ export async function startChunkWorker(options: ChunkWorkerOptions): Promise<Chu
     });
 
   const fail = async (jobId: string, words: string): Promise<boolean> => {
-    const failed = await failJob(sequelize, jobId, words);
+    const failed = await failJob(sequelize, jobId, words, options.mail);
     if (failed) await withdrawChunks(boss, jobId).catch((err: unknown) => logger.warn({ err, jobId }, 'cannot withdraw the chunks of a failed job'));
     return failed;
   };
@@ -101,7 +104,7 @@ export async function startChunkWorker(options: ChunkWorkerOptions): Promise<Chu
       throw error;
     }
     try {
-      const outcome = await completeChunk(sequelize, boss, message, result);
+      const outcome = await completeChunk(sequelize, boss, message, result, options.mail);
       logger.debug({ ...message, outcome }, 'chunk done');
       if (outcome === 'finished') logger.info({ jobId: message.jobId }, 'job finished');
     } catch (error: unknown) {

@@ -21,6 +21,7 @@ import { Run, RunVerification } from '../db/models';
 import { audit } from '../services/case-service';
 import { jsonSummary, verificationRow } from '../services/run-verifier';
 import { decodeChunkResult, encodeChunkResult } from './chunk-codec';
+import { mailJobEnd, type JobMailOptions } from './job-mail';
 import { queueChunks, type ChunkMessage } from './queue';
 
 /**
@@ -181,7 +182,7 @@ export async function inactiveJobs(sequelize: Sequelize, jobIds: readonly string
  * over), `stage` (next stage queued), `finished`, or `ignored` (job over, stage passed, or counted before).
  */
 export async function completeChunk(
-  sequelize: Sequelize, boss: PgBoss, message: ChunkMessage, result: TaskResult,
+  sequelize: Sequelize, boss: PgBoss, message: ChunkMessage, result: TaskResult, mail?: JobMailOptions,
 ): Promise<'counted' | 'stage' | 'finished' | 'ignored'> {
   const bytes = encodeChunkResult(result);
   return sequelize.transaction(async (transaction) => {
@@ -205,12 +206,14 @@ export async function completeChunk(
       { bind: [job.id], transaction },
     );
     if (done < job.chunks_total) return 'counted';
-    return advance(sequelize, boss, transaction, job);
+    return advance(sequelize, boss, transaction, job, mail);
   });
 }
 
 /** Every chunk of the job done so far: the next stage, or the stored run. Runs under the job row's lock. */
-async function advance(sequelize: Sequelize, boss: PgBoss, transaction: Transaction, job: JobRow): Promise<'stage' | 'finished'> {
+async function advance(
+  sequelize: Sequelize, boss: PgBoss, transaction: Transaction, job: JobRow, mail: JobMailOptions | undefined,
+): Promise<'stage' | 'finished'> {
   const params = await revisionParams(sequelize, job.revision_id, transaction);
   const rows = await sequelize.query<{ stage: number; result: Buffer }>(
     `SELECT stage, result FROM job_chunks WHERE job_id = $1 AND state = 'done' ORDER BY stage, idx`,
@@ -229,6 +232,7 @@ async function advance(sequelize: Sequelize, boss: PgBoss, transaction: Transact
     return 'stage';
   }
   await finishJob(sequelize, transaction, job, params, plan.result);
+  await mailJobEnd(sequelize, transaction, job.id, mail);
   return 'finished';
 }
 
@@ -278,7 +282,7 @@ async function finishJob(sequelize: Sequelize, transaction: Transaction, job: Jo
 }
 
 /** Fails an active job with `message` (in words) and drops its chunks. False when it had already ended. */
-export async function failJob(sequelize: Sequelize, jobId: string, message: string): Promise<boolean> {
+export async function failJob(sequelize: Sequelize, jobId: string, message: string, mail?: JobMailOptions): Promise<boolean> {
   return sequelize.transaction(async (transaction) => {
     const rows = await sequelize.query<{ id: string; lab_id: string; case_id: string; submitted_by: string | null }>(
       `UPDATE jobs SET state = 'failed', error = $2, finished_at = now(), updated_at = now() WHERE id = $1 AND ${ACTIVE}
@@ -289,6 +293,7 @@ export async function failJob(sequelize: Sequelize, jobId: string, message: stri
     if (!job) return false;
     await sequelize.query('DELETE FROM job_chunks WHERE job_id = $1', { bind: [jobId], transaction });
     await audit(transaction, null, job.lab_id, 'job.failed', job.case_id, { jobId, error: message.slice(0, 500) });
+    await mailJobEnd(sequelize, transaction, jobId, mail);
     return true;
   });
 }

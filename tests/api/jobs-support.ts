@@ -34,7 +34,9 @@ export async function startJobsApi(): Promise<JobsApi> {
   const startWorker = async () => {
     if (worker) return;
     pool = createEnginePool(1);
-    worker = await startChunkWorker({ sequelize: base.sequelize, boss, pool, logger: quiet, chunkTimeoutSeconds: 120, chunkRetries: 2 });
+    worker = await startChunkWorker({ sequelize: base.sequelize, boss, pool, logger: quiet, chunkTimeoutSeconds: 120, chunkRetries: 2,
+      // every job mails its submitter here (the server's default waits 5 minutes), so the tests can read the mail
+      mail: { publicUrl: 'http://quiverpoint.example', afterSeconds: 0 } });
   };
   const stopWorker = async () => {
     await worker?.stop();

@@ -11,6 +11,7 @@ import { computeRun, defaultRunSettings, makeRunRecord, type RunSettings } from 
 import { startJobsApi, type JobsApi } from './jobs-support';
 import { client, createCaseVia, labWithEveryRole, quickCase, type LabFixture } from './library-support';
 import { errorOf } from './support';
+import { OutboxMail } from '../../server/db/models';
 
 let api: JobsApi;
 let fx: LabFixture;
@@ -87,6 +88,13 @@ describe('server jobs', () => {
       expect(run.verification?.state).toBe('verified');
       expect(run.author?.id).toBe(fx.people.analyst.id);
     }
+    // The submitter gets a mail per finished job, in words, with the revision's link.
+    const mails = await OutboxMail.findAll({ where: { toAddress: fx.people.analyst.email } });
+    const subjects = mails.map((m) => m.subject);
+    expect(subjects.filter((t) => t === 'Server job finished: Server jobs r1').length).toBeGreaterThanOrEqual(3);
+    const mapMail = mails.find((m) => m.textBody.startsWith('Outcome map of "Server jobs" r1 finished on the server'));
+    expect(mapMail?.textBody).toContain(`http://quiverpoint.example/cases/${caseId}/r/1/history`);
+    expect(mapMail?.textBody).toMatch(/after \d+ s \(5 chunks\)/);
     // Nothing of a finished job is left in the chunk table.
     const left = await api.sequelize.query('SELECT 1 FROM job_chunks WHERE job_id = ANY($1::uuid[])', {
       bind: [jobs.map((j) => j.id)], type: QueryTypes.SELECT,
@@ -176,6 +184,8 @@ describe('server jobs', () => {
     const done = await settled(job.id);
     expect(done.state).toBe('failed');
     expect(done.error).toMatch(/^A chunk could not be computed: /);
+    const mail = await OutboxMail.findOne({ where: { toAddress: fx.people.analyst.email, subject: 'Server job failed: Server jobs r1' } });
+    expect(mail?.textBody).toMatch(/^Sweep of "Server jobs" r1 stopped on the server after \d+ s: A chunk could not be computed: .*Nothing was stored\./);
     const tries = await api.sequelize.query<{ retry_count: number; state: string }>(
       `SELECT retry_count, state FROM pgboss.job WHERE data->>'jobId' = $1 AND (data->>'idx')::int = 0`,
       { bind: [job.id], type: QueryTypes.SELECT },
