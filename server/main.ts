@@ -12,7 +12,7 @@ import { createMailer } from './services/mailer';
 import { startOutboxSender } from './services/outbox-service';
 import { RunVerifier } from './services/run-verifier';
 import { JobService } from './jobs/job-service';
-import { startQueue } from './jobs/queue';
+import { queueOptions, startQueue } from './jobs/queue';
 
 async function main(): Promise<void> {
   const cfg = config();
@@ -24,12 +24,7 @@ async function main(): Promise<void> {
     logger.info({ smtp: `${cfg.smtpHost}:${sink.port}` }, 'local mail sink listening');
   }
   const verifier = new RunVerifier({ logger, threads: cfg.verifyThreads });
-  const boss = await startQueue({
-    databaseUrl: cfg.databaseUrl,
-    chunkTimeoutSeconds: cfg.chunkTimeoutSeconds,
-    chunkRetries: cfg.chunkRetries,
-    maintenanceSeconds: cfg.queueMaintenanceSeconds,
-  });
+  const boss = await startQueue(queueOptions(cfg));
   boss.on('error', (err) => logger.error({ err }, 'queue error'));
   const jobs = new JobService(sequelize, boss);
   const app = createApp({ config: cfg, sequelize, logger, verifier, jobs });

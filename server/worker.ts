@@ -8,19 +8,14 @@ import { config } from './config';
 import { createEnginePool } from './compute/engine-pool';
 import { createSequelize } from './db/sequelize';
 import { startChunkWorker } from './jobs/chunk-worker';
-import { startQueue } from './jobs/queue';
+import { queueOptions, startQueue } from './jobs/queue';
 import { createLogger } from './logger';
 
 async function main(): Promise<void> {
   const cfg = config();
   const logger = createLogger(cfg.logLevel);
   const sequelize = createSequelize(cfg.databaseUrl);
-  const boss = await startQueue({
-    databaseUrl: cfg.databaseUrl,
-    chunkTimeoutSeconds: cfg.chunkTimeoutSeconds,
-    chunkRetries: cfg.chunkRetries,
-    maintenanceSeconds: cfg.queueMaintenanceSeconds,
-  });
+  const boss = await startQueue(queueOptions(cfg));
   boss.on('error', (err) => logger.error({ err }, 'queue error'));
   const pool = createEnginePool(cfg.workerThreads);
   const worker = await startChunkWorker({

@@ -6,6 +6,7 @@
  */
 import PgBoss from 'pg-boss';
 import type { Transaction } from 'sequelize';
+import type { Config } from '../config';
 
 export const CHUNK_QUEUE = 'qp-chunks';
 export const DEAD_CHUNK_QUEUE = 'qp-chunks-dead';
@@ -25,6 +26,16 @@ export interface QueueOptions {
   chunkRetries: number;
   /** how often expired chunks are looked for */
   maintenanceSeconds: number;
+}
+
+/** The queue settings of the configuration (server and workers must agree on them). */
+export function queueOptions(cfg: Pick<Config, 'databaseUrl' | 'chunkTimeoutSeconds' | 'chunkRetries' | 'queueMaintenanceSeconds'>): QueueOptions {
+  return {
+    databaseUrl: cfg.databaseUrl,
+    chunkTimeoutSeconds: cfg.chunkTimeoutSeconds,
+    chunkRetries: cfg.chunkRetries,
+    maintenanceSeconds: cfg.queueMaintenanceSeconds,
+  };
 }
 
 /** Starts pg-boss (creating or upgrading its schema) and makes sure both queues exist with our settings. */
