@@ -18,6 +18,7 @@ import { downloadText } from '../../ui/csv';
 import { caseFileJson, caseFileName, readCaseFile } from './case-file';
 import { CASE_TABS } from './case-tabs';
 import { CaseRepositoryError } from './case-repository-error';
+import { CaseServerJobs } from './case-server-jobs';
 import { CaseWorkspace, messageOf } from './case-workspace';
 import { RevisionNoteData, RevisionNoteDialog, revisionNoteDrafts } from './revision-note-dialog';
 
@@ -37,7 +38,7 @@ import { RevisionNoteData, RevisionNoteDialog, revisionNoteDrafts } from './revi
     RouterLinkActive,
     RouterOutlet,
   ],
-  providers: [CaseWorkspace],
+  providers: [CaseWorkspace, CaseServerJobs],
   templateUrl: './case-page.html',
   styleUrl: './case-page.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

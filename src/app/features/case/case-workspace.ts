@@ -283,7 +283,33 @@ export class CaseWorkspace {
     });
   }
 
-  private showStored(result: RunResult, run: StoredRun, opened: OpenedCase): void {
+  /**
+   * Shows a run a server job stored with the opened revision in its tab, in place of what the tab showed: the user
+   * asked for it. Reads the revision's runs again, so the new run is among the stored runs as well.
+   */
+  showJobRun(runId: string): Observable<RunKind | null> {
+    const opened = this.openedState();
+    if (!opened) return of(null);
+    return this.repository.open(opened.caseId, opened.revision).pipe(
+      switchMap((again) => {
+        const current = this.openedState();
+        if (!current || current.caseId !== again.caseId || current.revision !== again.revision) return of(null);
+        const view: OpenedCase = { ...current, runs: again.runs };
+        this.openedState.set(view);
+        const run = again.runs.find((r) => r.id === runId);
+        if (!run || caseDigest(view.params) !== view.paramsDigest) return of(null);
+        return this.repository.runResult(view.caseId, view.revision, run.id).pipe(
+          map((result) => {
+            this.setNote(run.kind, null);
+            this.showStored(result, run, view, true);
+            return run.kind;
+          }),
+        );
+      }),
+    );
+  }
+
+  private showStored(result: RunResult, run: StoredRun, opened: OpenedCase, replace = false): void {
     if (result.kind !== run.kind) return;
     const stored: StoredOrigin = {
       runId: run.id,
@@ -294,25 +320,26 @@ export class CaseWorkspace {
       verification: run.verification,
     };
     const base = { params: opened.params, paramsDigest: opened.paramsDigest, settings: run.settings, stored };
-    // Each kind's view is set only while empty: a result computed here in the meantime stays.
+    // Each kind's view is set only while empty (unless replacing): a result computed here in the meantime stays.
+    const empty = (state: () => unknown) => replace || !state();
     switch (result.kind) {
       case 'motion':
-        if (!this.motionState()) this.motionState.set({ ...base, value: result.value });
+        if (empty(this.motionState)) this.motionState.set({ ...base, value: result.value });
         break;
       case 'margins':
-        if (!this.marginsState()) this.marginsState.set({ ...base, value: result.value });
+        if (empty(this.marginsState)) this.marginsState.set({ ...base, value: result.value });
         break;
       case 'sweep':
-        if (!this.sweepState()) this.sweepState.set({ ...base, value: result.value });
+        if (empty(this.sweepState)) this.sweepState.set({ ...base, value: result.value });
         break;
       case 'chart':
-        if (!this.chartState()) this.chartState.set({ ...base, value: result.value });
+        if (empty(this.chartState)) this.chartState.set({ ...base, value: result.value });
         break;
       case 'basin':
-        if (!this.basinState()) this.basinState.set({ ...base, value: result.value });
+        if (empty(this.basinState)) this.basinState.set({ ...base, value: result.value });
         break;
       case 'leanest':
-        if (!this.leanestState()) this.leanestState.set({ ...base, value: result.value });
+        if (empty(this.leanestState)) this.leanestState.set({ ...base, value: result.value });
         break;
       case 'holdprob':
         if (!this.holdprobState()) this.holdprobState.set({ ...base, value: result.value });

@@ -4,11 +4,13 @@ import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatSelectModule } from '@angular/material/select';
 
 import { defaultChartGrid } from '../../../../../shared/engine/chart';
+import type { RunSettings } from '../../../../../shared/engine/run-record';
 import { defaultBasinGrid } from '../../../../../shared/engine/sweep';
 import { Plot, type PlotCsv, type PlotSpec } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
 import { rangeProblem } from '../range-check';
 import { RunStrip } from '../run-strip';
+import { ServerRun } from '../server-run';
 import { StoredMark } from '../stored-mark';
 import { OUTCOME_COLOURS, OUTCOME_WORDS, outcomeWords } from '../../../../../shared/case/display';
 import { toDisplay, unitLabelOf } from '../../../core/units/display-units';
@@ -30,7 +32,7 @@ function outcomeColorscale(): Array<[number, string]> {
 /** The Map tab: the stability chart over drive frequency and amplitude, and the basin map over start angle and rate. */
 @Component({
   selector: 'qp-map-tab',
-  imports: [FormsModule, MatFormFieldModule, MatSelectModule, Plot, RunStrip, StoredMark],
+  imports: [FormsModule, MatFormFieldModule, MatSelectModule, Plot, RunStrip, ServerRun, StoredMark],
   templateUrl: './map-tab.html',
   styleUrl: '../tab.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -107,6 +109,9 @@ export class MapTab {
     const g = this.basinGrid();
     return rangeProblem(this.workspace.draft(), [g.x, g.y], this.units());
   });
+
+  protected readonly chartSettings = computed<RunSettings>(() => ({ kind: 'chart', grid: this.chartGrid() }));
+  protected readonly basinSettings = computed<RunSettings>(() => ({ kind: 'basin', grid: this.basinGrid() }));
 
   protected runChart(): void {
     this.workspace.runChart(this.chartGrid());

@@ -17,6 +17,7 @@ import { Plot } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
 import { rangeProblem } from '../range-check';
 import { RunStrip } from '../run-strip';
+import { ServerRun } from '../server-run';
 import { StoredMark } from '../stored-mark';
 import { leanestPlot } from './leanest-plot';
 
@@ -75,7 +76,7 @@ const COST_CHOICES = LEANEST_COSTS.map((c) => ({ value: c, label: capitalised(LE
   selector: 'qp-leanest-panel',
   imports: [
     FormsModule, MatButtonModule, MatButtonToggleModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule,
-    RouterLink, Plot, RunStrip, StoredMark,
+    RouterLink, Plot, RunStrip, ServerRun, StoredMark,
   ],
   templateUrl: './leanest-panel.html',
   styleUrls: ['../tab.scss', './leanest-panel.scss'],

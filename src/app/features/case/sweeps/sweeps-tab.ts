@@ -6,11 +6,13 @@ import { MatSelectModule } from '@angular/material/select';
 
 import { getField, sweepableFieldsFor, type SweepableField } from '../../../../../shared/case/case-fields';
 import { MAX_SWEEP_STEPS } from '../../../../../shared/engine/run-kinds';
+import type { RunSettings } from '../../../../../shared/engine/run-record';
 import type { SweepSpec } from '../../../../../shared/engine/sweep';
 import { Plot } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
 import { rangeProblem } from '../range-check';
 import { RunStrip } from '../run-strip';
+import { ServerRun } from '../server-run';
 import { StoredMark } from '../stored-mark';
 import { OUTCOME_WORDS, outcomeWords } from '../../../../../shared/case/display';
 import { formatNumber } from '../../../core/units/format-number';
@@ -31,6 +33,7 @@ import { ScrollRegion } from '../../../ui/scroll-region/scroll-region';
     MatSelectModule,
     Plot,
     RunStrip,
+    ServerRun,
     StoredMark,
     SweepTable,
   ],
@@ -162,21 +165,32 @@ export class SweepsTab {
     });
   }
 
-  protected run(): void {
+  /** The sweep the form asks for, in SI; null while the form cannot run (`problem` says why). */
+  protected readonly spec = computed<SweepSpec | null>(() => {
     const from = this.from();
     const to = this.to();
     const count = this.count();
-    if (this.problem() !== null || from === null || to === null || count === null) return;
+    if (this.problem() !== null || from === null || to === null || count === null) return null;
     const dimension = this.dimension();
     const units = this.units();
-    const spec: SweepSpec = {
+    return {
       field: this.field().path,
       from: fromDisplay(from, dimension, units),
       to: fromDisplay(to, dimension, units),
       steps: count,
       scale: this.scale(),
     };
-    this.workspace.runSweep(spec);
+  });
+
+  /** The same sweep as a server job's settings. */
+  protected readonly serverSettings = computed<RunSettings | null>(() => {
+    const spec = this.spec();
+    return spec ? { kind: 'sweep', spec } : null;
+  });
+
+  protected run(): void {
+    const spec = this.spec();
+    if (spec) this.workspace.runSweep(spec);
   }
 
   protected fmt(value: number | null): string {
