@@ -60,6 +60,11 @@ export const routes: Routes = [
         loadChildren: () => import('./features/case/case.routes').then((m) => m.CASE_ROUTES),
       },
       {
+        path: 'labs/:labId/jobs',
+        title: 'Server jobs · Quiverpoint',
+        loadComponent: () => import('./features/jobs/jobs-page').then((m) => m.JobsPage),
+      },
+      {
         path: 'labs/:labId',
         title: 'Lab · Quiverpoint',
         loadComponent: () => import('./features/labs/lab-page').then((m) => m.LabPage),

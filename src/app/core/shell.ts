@@ -65,7 +65,10 @@ export class Shell {
       { label: 'Case library', icon: 'library_books', link: '/library', exact: false },
     ];
     if (this.session.canWriteCases()) items.push({ label: 'New case', icon: 'add_circle', link: '/cases/new', exact: false });
-    if (lab) items.push({ label: 'Lab members', icon: 'group', link: `/labs/${lab.id}`, exact: false });
+    if (lab) {
+      items.push({ label: 'Lab members', icon: 'group', link: `/labs/${lab.id}`, exact: true });
+      items.push({ label: 'Server jobs', icon: 'cloud_sync', link: `/labs/${lab.id}/jobs`, exact: false });
+    }
     if (this.user()?.isSiteAdmin) items.push({ label: 'Mail', icon: 'mail', link: '/admin/mail', exact: false });
     return items;
   });
@@ -79,7 +82,9 @@ export class Shell {
 
   protected switchLab(labId: string): void {
     this.session.selectLab(labId);
-    if (this.router.url.startsWith('/labs/')) void this.router.navigate(['/labs', labId]);
+    if (this.router.url.startsWith('/labs/')) {
+      void this.router.navigate(this.router.url.endsWith('/jobs') ? ['/labs', labId, 'jobs'] : ['/labs', labId]);
+    }
   }
 
   protected signOut(): void {
