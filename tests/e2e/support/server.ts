@@ -12,7 +12,7 @@ import { checkoutPaths } from '../../../server/paths';
 import { prepareDatabase, recreateDatabase } from '../../../server/scripts/db-tasks';
 import { ensurePostgres, stopPostgres } from '../../../server/scripts/pg';
 import { holdRunLock } from '../../../server/scripts/run-lock';
-import { freePort, startServerProcess } from '../../../server/scripts/server-process';
+import { freePort, startServerProcess, startWorkerProcess, type WorkerProcess } from '../../../server/scripts/server-process';
 
 export { DEMO_ACCOUNTS, DEMO_LAB_NAME };
 
@@ -26,8 +26,9 @@ export interface E2eServer {
 /**
  * `database` defaults to `quiverpoint_e2e`; starting drops and recreates it, so another run (or a parallel test
  * file) using the same name waits until this one calls stop(). Parallel files should pass their own names.
+ * `workers` starts that many job worker processes beside the server (none by default: jobs then stay queued).
  */
-export async function startE2eServer(options: { database?: string } = {}): Promise<E2eServer> {
+export async function startE2eServer(options: { database?: string; workers?: number } = {}): Promise<E2eServer> {
   const { repoRoot } = checkoutPaths();
   if (!existsSync(join(repoRoot, 'dist', 'quiverpoint', 'browser', 'index.html'))) {
     throw new Error('the web client is not built: run `npx ng build` first');
@@ -43,26 +44,33 @@ export async function startE2eServer(options: { database?: string } = {}): Promi
     const databaseUrl = await recreateDatabase(cluster.url, database);
     await prepareDatabase(databaseUrl, { seed: true });
     const [port, smtpPort] = [await freePort(), await freePort()];
-    const server = await startServerProcess({
-      repoRoot,
-      mode: process.env['QP_E2E_SERVER'] === 'compiled' ? 'compiled' : 'tsx',
-      port,
-      env: {
-        ...process.env,
-        NODE_ENV: 'production',
-        DATABASE_URL: databaseUrl,
-        QP_MAIL_SINK: 'true',
-        QP_SMTP_PORT: String(smtpPort),
-        QP_PUBLIC_URL: `http://127.0.0.1:${port}`,
-        QP_SIGNIN_LIMIT: '1000',
-        LOG_LEVEL: process.env['LOG_LEVEL'] ?? 'warn',
-      },
-    });
+    const mode = process.env['QP_E2E_SERVER'] === 'compiled' ? 'compiled' : 'tsx';
+    const env = {
+      ...process.env,
+      NODE_ENV: 'production',
+      DATABASE_URL: databaseUrl,
+      QP_MAIL_SINK: 'true',
+      QP_SMTP_PORT: String(smtpPort),
+      QP_PUBLIC_URL: `http://127.0.0.1:${port}`,
+      QP_SIGNIN_LIMIT: '1000',
+      LOG_LEVEL: process.env['LOG_LEVEL'] ?? 'warn',
+    };
+    const server = await startServerProcess({ repoRoot, mode, port, env });
+    // Workers start after the server, which has created the job queue's tables.
+    const workers: WorkerProcess[] = [];
+    try {
+      for (let i = 0; i < (options.workers ?? 0); i++) workers.push(await startWorkerProcess({ repoRoot, mode, env }));
+    } catch (err) {
+      await Promise.all(workers.map((w) => w.stop()));
+      await server.stop();
+      throw err;
+    }
     return {
       baseUrl: server.baseUrl,
       databaseUrl,
       smtpPort,
       stop: async () => {
+        await Promise.all(workers.map((w) => w.stop()));
         await server.stop();
         await release();
       },
