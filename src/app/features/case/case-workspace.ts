@@ -342,7 +342,7 @@ export class CaseWorkspace {
         if (empty(this.leanestState)) this.leanestState.set({ ...base, value: result.value });
         break;
       case 'holdprob':
-        if (!this.holdprobState()) this.holdprobState.set({ ...base, value: result.value });
+        if (empty(this.holdprobState)) this.holdprobState.set({ ...base, value: result.value });
         break;
       case 'map':
         break;

@@ -18,6 +18,7 @@ import { formatIn, formatNumber, withUnit } from '../../../core/units/format-num
 import { Plot } from '../../../ui/plot/plot';
 import { CaseWorkspace } from '../case-workspace';
 import { RunStrip } from '../run-strip';
+import { ServerRun } from '../server-run';
 import { StoredMark } from '../stored-mark';
 import { holdProbabilityPlot } from './hold-probability-plot';
 
@@ -41,7 +42,7 @@ const pct = (p: number, digits = 3) => `${formatNumber(100 * p, digits)} %`;
  */
 @Component({
   selector: 'qp-hold-probability-panel',
-  imports: [FormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, Plot, RunStrip, StoredMark],
+  imports: [FormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, Plot, RunStrip, ServerRun, StoredMark],
   templateUrl: './hold-probability-panel.html',
   styleUrls: ['../tab.scss', './hold-probability-panel.scss'],
   changeDetection: ChangeDetectionStrategy.OnPush,
