@@ -143,7 +143,7 @@ export function simulateChainMotion(params: CaseParams, hooks: MotionHooks = {})
     (_tOld, t, _y, dense) => {
       if (!dense) return true;
       const at = (tk: number) => {
-        for (let c = 0; c < 2 * n; c++) state[c] = dense(c, tk);
+        dense.all(tk, state);
         return state;
       };
       while (kOut < nOut) {

@@ -7,8 +7,13 @@ const { cos, sin } = portable;
 /** y' = f(t, y); must return a new array (odex copies it). */
 export type Derivative = (t: number, y: number[]) => number[];
 
-/** Solution inside the last accepted step: component index, time in [tOld, t]. */
-export type DenseInterpolant = (component: number, t: number) => number;
+/**
+ * Solution inside the last accepted step: component index, time in [tOld, t]. `all(t, out)` writes every component
+ * at t into out, the same numbers as one call per component in one pass (the odex patch's contexAll).
+ */
+export type DenseInterpolant = ((component: number, t: number) => number) & {
+  readonly all: (t: number, out: Float64Array | number[]) => void;
+};
 
 /**
  * Called after every accepted step (not for the initial point). Return false to stop the integration early
@@ -97,7 +102,15 @@ export function integrate(
   let yReached = y0.slice();
   let accepted = 0;
   const checkEvery = Math.max(1, options.cancelCheckEvery ?? 64);
-  const observe = (_nr: number, tOld: number, t: number, y: number[], interp?: (c: number, x: number) => number): boolean => {
+  const observe = (_nr: number, tOld: number, t: number, y: number[], odexInterp?: (c: number, x: number) => number): boolean => {
+    // the patched odex hangs `all` on its interpolant (patches/odex+2.0.4.patch); an install with an older patch
+    // gets the same numbers one component at a time
+    if (odexInterp && !('all' in odexInterp)) {
+      (odexInterp as { all?: DenseInterpolant['all'] }).all = (x, out) => {
+        for (let c = 0; c < n; c++) out[c] = odexInterp(c, x);
+      };
+    }
+    const interp = odexInterp as DenseInterpolant | undefined;
     if (t === tOld && interp === undefined) return true; // odex reports the initial point too
     for (let i = 0; i < n; i++) {
       if (!Number.isFinite(y[i])) {

@@ -225,6 +225,8 @@ export function simulateMotion(input: CaseParams, hooks: MotionHooks = {}): Moti
 
   let nextProgress = 0.01;
   let cancelled = false;
+  // theta and rate from the dense interpolant, both in one pass
+  const state = new Float64Array(2);
   const driven = params.drive.amplitude > 0;
   const result = integrate(
     rigDerivative(model),
@@ -258,9 +260,13 @@ export function simulateMotion(input: CaseParams, hooks: MotionHooks = {}): Moti
       while (kOut < nOut) {
         const tk = kOut === nOut - 1 ? duration : kOut * dtOut;
         if (tk > t) break;
-        takeOutput(tk, dense(0, tk), dense(1, tk));
+        dense.all(tk, state);
+        takeOutput(tk, state[0], state[1]);
       }
-      while (tPhase <= t) takePhaseSample(tPhase, dense(0, tPhase), dense(1, tPhase));
+      while (tPhase <= t) {
+        dense.all(tPhase, state);
+        takePhaseSample(tPhase, state[0], state[1]);
+      }
       if (hooks.onProgress && t >= nextProgress * duration) {
         hooks.onProgress(Math.min(1, t / duration));
         nextProgress = Math.floor((t / duration) * 100 + 1) / 100;
