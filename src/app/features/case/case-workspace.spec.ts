@@ -46,7 +46,7 @@ describe('storedRunsToShow', () => {
       run('o1', 'map', '2026-12-01T10:00:00Z', 'verified'),
     ];
     const { show, pending } = storedRunsToShow(runs);
-    expect(show.map((r) => r.id)).toEqual(['m2']);
+    expect(show.map((r) => r.id)).toEqual(['m2', 'o1']);
     expect(pending).toEqual(['sweep']);
   });
 });
@@ -163,6 +163,43 @@ describe('CaseWorkspace', () => {
     expect(workspace.runs()).toHaveLength(0);
   });
 
+  it('runs an outcome map through the pool, its rows filling in as they finish, and records it for the next save', async () => {
+    workspace.startNew('shaker-tall-rod');
+    shortenRun(1);
+    const f = workspace.draft().drive.frequency;
+    const a = workspace.draft().drive.amplitude;
+    const grid = {
+      x: { field: 'drive.frequency', from: f / 2, to: f, count: 3 },
+      y: { field: 'drive.amplitude', from: a / 2, to: a, count: 2 },
+    };
+    workspace.runOutcomeMap(grid);
+    expect(workspace.outcomeMapJob.running()).toBe(true);
+    expect(workspace.outcomeMapPartial()?.cells).toEqual([null, null, null, null, null, null]);
+    await vi.waitFor(() => expect(workspace.outcomeMap()).not.toBeNull(), { timeout: 30_000 });
+    const value = workspace.outcomeMap()?.value;
+    expect(value?.cells).toHaveLength(6);
+    expect(value?.cells.every((c) => c.outcome !== null)).toBe(true);
+    expect(workspace.outcomeMap()?.settings).toEqual({ kind: 'map', grid });
+    expect(workspace.outcomeMapPartial()).toBeNull();
+    expect(workspace.runs().map((r) => r.kind)).toEqual(['map']);
+  });
+
+  it('cancels a running outcome map and records nothing', async () => {
+    workspace.startNew(null);
+    shortenRun(2);
+    const a = workspace.draft().drive.amplitude;
+    const f = workspace.draft().drive.frequency;
+    workspace.runOutcomeMap({
+      x: { field: 'drive.frequency', from: f / 2, to: f, count: 4 },
+      y: { field: 'drive.amplitude', from: a / 2, to: a, count: 8 },
+    });
+    await vi.waitFor(() => expect(workspace.outcomeMapPartial()?.done).toBeGreaterThan(0), { timeout: 30_000 });
+    workspace.outcomeMapJob.cancel();
+    expect(workspace.outcomeMapJob.cancelled()).toBe(true);
+    expect(workspace.outcomeMap()).toBeNull();
+    expect(workspace.runs()).toHaveLength(0);
+  });
+
   describe('stored runs of an opened revision', () => {
     const params = (() => {
       const p = templateCase();
@@ -174,7 +211,15 @@ describe('CaseWorkspace', () => {
       const repository = TestBed.inject(FakeCaseRepository);
       const created = await firstValueFrom(repository.create({ labId: null, title: 'Stored rig', tags: [], params, note: '' }));
       const a = params.drive.amplitude;
-      const runs: RunSettings[] = [{ kind: 'motion' }, { kind: 'sweep', spec: { field: 'drive.amplitude', from: a / 2, to: a * 1.5, steps: 3 } }];
+      const f = params.drive.frequency;
+      const runs: RunSettings[] = [
+        { kind: 'motion' },
+        { kind: 'sweep', spec: { field: 'drive.amplitude', from: a / 2, to: a * 1.5, steps: 3 } },
+        {
+          kind: 'map',
+          grid: { x: { field: 'drive.frequency', from: f / 2, to: f, count: 2 }, y: { field: 'drive.amplitude', from: a / 2, to: a, count: 2 } },
+        },
+      ];
       let motionId = '';
       for (const settings of runs) {
         const result = computeRun(params, settings);
@@ -193,6 +238,9 @@ describe('CaseWorkspace', () => {
       expect(workspace.motion()?.value.outcome).toBeTruthy();
       expect(workspace.sweep()?.value.points).toHaveLength(3);
       expect(workspace.sweep()?.stored?.kind).toBe('sweep');
+      await vi.waitFor(() => expect(workspace.outcomeMap()).not.toBeNull());
+      expect(workspace.outcomeMap()?.stored?.kind).toBe('map');
+      expect(workspace.outcomeMap()?.value.cells).toHaveLength(4);
       expect(workspace.margins()).toBeNull();
       expect(workspace.isStale(workspace.motion())).toBe(false);
       expect(workspace.storedNotes()).toEqual({});

@@ -55,8 +55,8 @@ export interface Computed<T> {
 export const STORED_PENDING_RECHECK_MS = 3000;
 export const STORED_PENDING_RECHECKS = 200;
 
-/** Run kinds a case tab shows (the outcome map has no tab of its own). */
-export const SHOWN_STORED_KINDS: readonly RunKind[] = ['motion', 'margins', 'sweep', 'chart', 'basin', 'leanest', 'holdprob'];
+/** Run kinds a case tab shows (every kind: the Map tab shows the chart, the outcome map and the basin map). */
+export const SHOWN_STORED_KINDS: readonly RunKind[] = ['motion', 'margins', 'sweep', 'chart', 'map', 'basin', 'leanest', 'holdprob'];
 
 /**
  * For each kind a tab shows, the stored run whose result to show: the latest the server has settled (verified or
@@ -72,6 +72,14 @@ export function storedRunsToShow(runs: readonly StoredRun[]): { show: StoredRun[
     else if (mine.length > 0) pending.push(kind);
   }
   return { show, pending };
+}
+
+/** The cells of a running outcome map finished so far: row-major, null where not yet computed. */
+export interface MapSoFar {
+  readonly grid: Grid2;
+  readonly cells: ReadonlyArray<MapCell | null>;
+  /** How many cells are finished. */
+  readonly done: number;
 }
 
 /** A save that went through: the revision now shown and how many runs were stored with it. */
@@ -107,6 +115,8 @@ export class CaseWorkspace {
   private readonly marginsState = signal<Computed<FloquetAnalysis> | null>(null);
   private readonly sweepState = signal<Computed<SweepResult> | null>(null);
   private readonly chartState = signal<Computed<StabilityChart> | null>(null);
+  private readonly outcomeMapState = signal<Computed<CellMap> | null>(null);
+  private readonly outcomeMapPartialState = signal<MapSoFar | null>(null);
   private readonly basinState = signal<Computed<CellMap> | null>(null);
   private readonly leanestState = signal<Computed<LeanestResult> | null>(null);
   private readonly holdprobState = signal<Computed<HoldProbResult> | null>(null);
@@ -161,6 +171,10 @@ export class CaseWorkspace {
   /** How many points the running (or last) sweep has. */
   readonly sweepSteps = this.sweepStepsState.asReadonly();
   readonly chart = this.chartState.asReadonly();
+  /** The outcome map (run kind `map`): outcome over a grid of two case fields. */
+  readonly outcomeMap = this.outcomeMapState.asReadonly();
+  /** The running outcome map's cells finished so far (null where not yet computed), with its grid. */
+  readonly outcomeMapPartial = this.outcomeMapPartialState.asReadonly();
   readonly basin = this.basinState.asReadonly();
   readonly leanest = this.leanestState.asReadonly();
   readonly holdprob = this.holdprobState.asReadonly();
@@ -177,6 +191,7 @@ export class CaseWorkspace {
   readonly marginsJob = new PoolJob<FloquetAnalysis>();
   readonly sweepJob = new PoolJob<SweepResult, SweepPoint[]>();
   readonly chartJob = new PoolJob<StabilityChart, RowsDone<Float64Array>>();
+  readonly outcomeMapJob = new PoolJob<CellMap, RowsDone<MapCell[]>>();
   readonly basinJob = new PoolJob<CellMap, RowsDone<MapCell[]>>();
   readonly leanestJob = new PoolJob<LeanestResult, RowsDone<Float64Array>>();
   readonly holdprobJob = new PoolJob<HoldProbResult, { from: number; samples: HoldSample[] }>();
@@ -335,6 +350,9 @@ export class CaseWorkspace {
       case 'chart':
         if (empty(this.chartState)) this.chartState.set({ ...base, value: result.value });
         break;
+      case 'map':
+        if (empty(this.outcomeMapState)) this.outcomeMapState.set({ ...base, value: result.value });
+        break;
       case 'basin':
         if (empty(this.basinState)) this.basinState.set({ ...base, value: result.value });
         break;
@@ -343,8 +361,6 @@ export class CaseWorkspace {
         break;
       case 'holdprob':
         if (empty(this.holdprobState)) this.holdprobState.set({ ...base, value: result.value });
-        break;
-      case 'map':
         break;
     }
   }
@@ -434,6 +450,31 @@ export class CaseWorkspace {
       this.chartState.set(this.computed(value, params, settings));
       this.record(params, settings, { kind: 'chart', value });
     });
+  }
+
+  /** Runs an outcome map; its rows show in `outcomeMapPartial` as they finish. */
+  runOutcomeMap(grid: Grid2): void {
+    if (!this.canRun()) return;
+    const params = this.draftState();
+    const settings: RunSettings = { kind: 'map', grid };
+    this.dropStale(this.outcomeMapState);
+    const nx = grid.x.count;
+    this.outcomeMapPartialState.set({ grid, cells: new Array<MapCell | null>(nx * grid.y.count).fill(null), done: 0 });
+    this.outcomeMapJob.start(
+      this.pool.outcomeMap(params, grid),
+      (value) => {
+        this.outcomeMapPartialState.set(null);
+        this.outcomeMapState.set(this.computed(value, params, settings));
+        this.record(params, settings, { kind: 'map', value });
+      },
+      (rows) =>
+        this.outcomeMapPartialState.update((sofar) => {
+          if (!sofar || sofar.grid !== grid) return sofar;
+          const cells = sofar.cells.slice();
+          cells.splice(rows.rowFrom * nx, rows.values.length, ...rows.values);
+          return { grid, cells, done: sofar.done + rows.values.length };
+        }),
+    );
   }
 
   runBasin(grid: Grid2): void {
@@ -600,7 +641,9 @@ export class CaseWorkspace {
   }
 
   private jobs(): Array<{ cancel(): void }> {
-    return [this.motionJob, this.marginsJob, this.sweepJob, this.chartJob, this.basinJob, this.leanestJob, this.holdprobJob];
+    return [
+      this.motionJob, this.marginsJob, this.sweepJob, this.chartJob, this.outcomeMapJob, this.basinJob, this.leanestJob, this.holdprobJob,
+    ];
   }
 
   private reset(): void {
@@ -612,6 +655,8 @@ export class CaseWorkspace {
     this.marginsState.set(null);
     this.sweepState.set(null);
     this.chartState.set(null);
+    this.outcomeMapState.set(null);
+    this.outcomeMapPartialState.set(null);
     this.basinState.set(null);
     this.leanestState.set(null);
     this.holdprobState.set(null);
