@@ -43,7 +43,7 @@ describe('outcome map plot', () => {
     expect(layout.xaxis.title.text).toBe('Drive frequency (Hz)');
     expect(layout.yaxis.title.text).toBe('Drive amplitude (mm)');
     const trace = plot.data[0] as { hovertemplate: string };
-    expect(trace.hovertemplate).toBe('Drive frequency %{x:.4g} Hz<br>Drive amplitude %{y:.4g} mm<br>%{text}<extra></extra>');
+    expect(trace.hovertemplate).toBe('Drive frequency %{x:.4~g} Hz<br>Drive amplitude %{y:.4~g} mm<br>%{text}<extra></extra>');
     expect(plot.csv.columns).toEqual([{ header: 'Drive frequency', unit: 'Hz' }, { header: 'Drive amplitude', unit: 'mm' }, { header: 'outcome' }]);
     expect(plot.csv.rows).toEqual([[10, 4, 'tumbles']]);
   });
@@ -55,6 +55,6 @@ describe('outcome map plot', () => {
     expect(xaxis.type).toBe('log');
     expect(xaxis.title.text).toBe('Damping ratio');
     expect(xaxis.tickvals).toEqual([0.01, 0.02, 0.05, 0.1]);
-    expect((plot.data[0] as { hovertemplate: string }).hovertemplate).toMatch(/^Damping ratio %\{x:\.4g\}<br>/);
+    expect((plot.data[0] as { hovertemplate: string }).hovertemplate).toMatch(/^Damping ratio %\{x:\.4~g\}<br>/);
   });
 });

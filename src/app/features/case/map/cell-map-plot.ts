@@ -105,7 +105,7 @@ export function cellMapPlot(map: MapCells, x: MapAxisView, y: MapAxisView): { da
     {
       type: 'heatmap', x: xs, y: ys, z, text, zmin: -0.5, zmax: NO_CASE + 0.5, colorscale: outcomeColorscale(), showscale: false,
       hoverongaps: false,
-      hovertemplate: `${x.label} ${withUnit(x, '%{x:.4g}')}<br>${y.label} ${withUnit(y, '%{y:.4g}')}<br>%{text}<extra></extra>`,
+      hovertemplate: `${x.label} ${withUnit(x, '%{x:.4~g}')}<br>${y.label} ${withUnit(y, '%{y:.4~g}')}<br>%{text}<extra></extra>`,
     },
   ];
   const layout: PlotSpec = { xaxis: axisLayout(x, xs), yaxis: axisLayout(y, ys) };
