@@ -376,7 +376,7 @@ function* sweepJob(params: CaseParams, { spec }: SweepSettings, context: JobCont
   const searches = brackets.map(startThresholdSearch);
   // Progress per round, from an estimate of the rounds: the steps the widest bracket needs at the first budgets.
   const firstBudgets = thresholdRoundBudgets(context.workers, searches.map((s) => s.bracket.kind));
-  const rounds = Math.max(1, ...searches.map((s, i) => Math.ceil(thresholdStepsLeft(spec, s, tolerance) / Math.floor(Math.log2(firstBudgets[i] + 1)))));
+  const rounds = Math.max(1, ...searches.map((s, i) => Math.ceil(thresholdStepsLeft(spec, s, tolerance) / (31 - Math.clz32(firstBudgets[i] + 1)))));
   for (let round = 0; ; round++) {
     const open = searches.filter((s) => thresholdSearchOpen(s, tolerance));
     if (open.length === 0) break;
