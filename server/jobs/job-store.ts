@@ -83,7 +83,20 @@ interface JobRow {
 
 const ACTIVE = `state IN ('queued', 'running')`;
 
+/** Parsed parameters of recent revisions: a revision never changes, and a worker takes many chunks of one. */
+const paramsCache = new Map<string, CaseParams>();
+const PARAMS_CACHE_SIZE = 32;
+
 async function revisionParams(sequelize: Sequelize, revisionId: string, transaction?: Transaction): Promise<CaseParams> {
+  const cached = paramsCache.get(revisionId);
+  if (cached) return cached;
+  const params = await readRevisionParams(sequelize, revisionId, transaction);
+  if (paramsCache.size >= PARAMS_CACHE_SIZE) paramsCache.delete(paramsCache.keys().next().value as string);
+  paramsCache.set(revisionId, params);
+  return params;
+}
+
+async function readRevisionParams(sequelize: Sequelize, revisionId: string, transaction?: Transaction): Promise<CaseParams> {
   const [row] = await sequelize.query<{ params: unknown }>('SELECT params FROM revisions WHERE id = $1', {
     bind: [revisionId], type: QueryTypes.SELECT, transaction,
   });
