@@ -10,6 +10,7 @@ import { resolve } from 'node:path';
 
 import { DESKTOP, NARROW, launchBrowser, screenshot, type TestBrowser } from './support/browser';
 import { DEMO_ACCOUNTS, startE2eServer, type E2eServer } from './support/server';
+import { openTab, signIn } from './support/session';
 
 /** This file's screenshots (each also runs the axe check), in their own folder. */
 const SHOTS = resolve(__dirname, '..', '..', 'test-results', 'chain');
@@ -20,21 +21,12 @@ let server: E2eServer;
 let browser: TestBrowser;
 let page: Page;
 
-async function openTab(p: Page, label: string): Promise<void> {
-  await p.getByRole('tab', { name: label, exact: true }).dispatchEvent('click');
-  await p.waitForURL((url) => url.pathname.endsWith(`/${label.toLowerCase()}`));
-}
-
 beforeAll(async () => {
   server = await startE2eServer({ database: 'quiverpoint_e2e_chain' });
   browser = await launchBrowser();
   page = await browser.newPage(DESKTOP);
   page.setDefaultTimeout(30_000);
-  await page.goto(`${server.baseUrl}/sign-in`);
-  await page.getByLabel('Email').fill(analyst.email);
-  await page.getByLabel('Password', { exact: true }).fill(analyst.password);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await page.waitForURL((url) => !url.pathname.startsWith('/sign-in'));
+  await signIn(page, server.baseUrl, analyst);
 }, 180_000);
 
 afterAll(async () => {

@@ -21,6 +21,7 @@ import { DESKTOP, NARROW, launchBrowser, screenshot as saveScreenshot, type Test
 import { contrastRatio, textAndBackground } from './support/axe';
 import { DEMO_LAB_NAME, startE2eServer, type E2eServer } from './support/server';
 import { apiClient, demoAccount } from './support/api-client';
+import { openTab, signIn } from './support/session';
 
 const CASE_TITLE = 'Tall rod on the long-stroke shaker';
 
@@ -38,18 +39,8 @@ let caseId = '';
 let visitorUrl = '';
 let r1Margins: ReturnType<typeof engineRun>;
 
-async function signIn(page: Page, role: string, returnUrl: string): Promise<void> {
-  const { email, password } = demoAccount(role);
-  await page.goto(`${server.baseUrl}/sign-in?returnUrl=${encodeURIComponent(returnUrl)}`);
-  await page.getByLabel('Email').fill(email);
-  await page.getByLabel('Password', { exact: true }).fill(password);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await page.waitForURL((url) => url.pathname === returnUrl.split('?')[0]);
-}
-
-async function openTab(page: Page, label: string): Promise<void> {
-  await page.getByRole('tab', { name: label, exact: true }).click();
-  await page.waitForURL((url) => url.pathname.endsWith(`/${label.toLowerCase()}`));
+async function signInAs(page: Page, role: string, returnUrl: string): Promise<void> {
+  await signIn(page, server.baseUrl, demoAccount(role), returnUrl);
 }
 
 async function noSideScroll(page: Page): Promise<void> {
@@ -98,7 +89,7 @@ afterAll(async () => {
 describe('case library', () => {
   it('lets an analyst change a stored case, save r2 with a run and ask for a recheck', async () => {
     const page = await browser.newPage(DESKTOP);
-    await signIn(page, 'analyst', '/library');
+    await signInAs(page, 'analyst', '/library');
     const row = page.getByRole('link', { name: CASE_TITLE });
     await row.waitFor();
     await expect.poll(() => page.locator('qp-recheck-chip').first().textContent()).toContain('Draft');
@@ -172,7 +163,7 @@ describe('case library', () => {
 
   it('takes bench traces: a bad row is named by its line, a good file is listed and plotted', async () => {
     const page = await browser.newPage(DESKTOP);
-    await signIn(page, 'analyst', `/cases/${caseId}/r/2/bench`);
+    await signInAs(page, 'analyst', `/cases/${caseId}/r/2/bench`);
     await page.getByRole('heading', { name: 'Upload a bench trace' }).waitFor();
     const bad = 'time,angle\n0,1.5\n0.01,x\n';
     await page.setInputFiles('#bench-file', { name: 'bad.csv', mimeType: 'text/csv', buffer: Buffer.from(bad) });
@@ -196,7 +187,7 @@ describe('case library', () => {
 
   it('lets the reviewer rerun r2 in the browser, see the same numbers and confirm', async () => {
     const page = await browser.newPage(DESKTOP);
-    await signIn(page, 'reviewer', `/cases/${caseId}/r/2/recheck`);
+    await signInAs(page, 'reviewer', `/cases/${caseId}/r/2/recheck`);
     await page.getByText('Amplitude raised to 9 mm').waitFor();
     await page.locator('.rerun-button').click();
     await expect.poll(() => page.locator('.run-state').allTextContents().then((t) => t.map((s) => s.trim())), { timeout: 90_000 }).toEqual(['same numbers, same digest']);
@@ -239,7 +230,7 @@ describe('case library', () => {
       );
 
     const page = await browser.newPage(DESKTOP);
-    await signIn(page, 'owner', '/admin/mail');
+    await signInAs(page, 'owner', '/admin/mail');
     await expect.poll(() => page.locator('.mail').count(), { timeout: 20_000 }).toBeGreaterThanOrEqual(2);
     await screenshot(page, 'admin-mail-desktop');
     await page.setViewportSize(NARROW);
@@ -250,7 +241,7 @@ describe('case library', () => {
 
   it('shows a visitor the case read-only through a case link, with reruns but no way to save', async () => {
     const analystPage = await browser.newPage(DESKTOP);
-    await signIn(analystPage, 'analyst', `/cases/${caseId}/r/2/history`);
+    await signInAs(analystPage, 'analyst', `/cases/${caseId}/r/2/history`);
     await analystPage.getByRole('button', { name: 'Case links' }).click();
     await analystPage.getByLabel('Expires after').fill('7');
     await analystPage.getByRole('button', { name: /Create link to r2/ }).click();
@@ -287,7 +278,7 @@ describe('case library', () => {
 
   it('fits phone screens: library, history, recheck and visitor pages', async () => {
     const analyst = await browser.newPage(NARROW);
-    await signIn(analyst, 'analyst', '/library');
+    await signInAs(analyst, 'analyst', '/library');
     await analyst.getByRole('link', { name: CASE_TITLE }).waitFor();
     await screenshot(analyst, 'library-phone');
     await noSideScroll(analyst);
@@ -301,7 +292,7 @@ describe('case library', () => {
     await noSideScroll(analyst);
 
     const reviewer = await browser.newPage(NARROW);
-    await signIn(reviewer, 'reviewer', `/cases/${caseId}/r/2/recheck`);
+    await signInAs(reviewer, 'reviewer', `/cases/${caseId}/r/2/recheck`);
     await reviewer.locator('.rerun-button').click();
     await expect.poll(() => reviewer.locator('.run-state').allTextContents().then((t) => t.map((s) => s.trim())), { timeout: 90_000 }).toEqual(['same numbers, same digest']);
     await screenshot(reviewer, 'recheck-phone');
@@ -317,7 +308,7 @@ describe('case library', () => {
   it('shows a viewer no New case and the case view only, its fields at full contrast', async () => {
     for (const [name, size] of [['desktop', DESKTOP], ['phone', NARROW]] as const) {
       const page = await browser.newPage(size);
-      await signIn(page, 'viewer', '/library');
+      await signInAs(page, 'viewer', '/library');
       await page.getByRole('link', { name: CASE_TITLE }).waitFor();
       expect(await page.getByRole('button', { name: 'New case' }).count()).toBe(0);
       if (name === 'phone') await page.getByRole('button', { name: 'Open navigation' }).click();
@@ -361,7 +352,7 @@ describe('case library', () => {
     expect((await api(`/api/cases/${caseId}/revisions/${rev}/runs`, { token: analyst, body: forged })).status).toBe(201);
 
     const page = await browser.newPage(DESKTOP);
-    await signIn(page, 'analyst', `/cases/${caseId}/r/${rev}/history`);
+    await signInAs(page, 'analyst', `/cases/${caseId}/r/${rev}/history`);
     const check = page.locator('qp-stored-runs-table td.check');
     await expect.poll(async () => { await page.reload(); await check.first().waitFor(); return (await check.first().textContent())?.trim(); }, { timeout: 60_000, interval: 2_000 })
       .toBe('Unreproduced: 1 number differs');

@@ -12,6 +12,7 @@ import { demoRigCase } from '../../shared/case/templates';
 import { DESKTOP, NARROW, launchBrowser, screenshot, type TestBrowser } from './support/browser';
 import { DEMO_LAB_NAME, startE2eServer, type E2eServer } from './support/server';
 import { apiClient, demoAccount } from './support/api-client';
+import { signIn } from './support/session';
 
 const SHOTS = process.env['QP_E2E_SHOTS'] ?? resolve(__dirname, '..', '..', 'test-results', 'outcome-map');
 
@@ -20,13 +21,8 @@ const { api, tokenOf } = apiClient(() => server.baseUrl);
 let browser: TestBrowser;
 let caseId = '';
 
-async function signIn(page: Page, role: string): Promise<void> {
-  const { email, password } = demoAccount(role);
-  await page.goto(`${server.baseUrl}/sign-in?returnUrl=${encodeURIComponent('/library')}`);
-  await page.getByLabel('Email').fill(email);
-  await page.getByLabel('Password', { exact: true }).fill(password);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await page.waitForURL((url) => url.pathname === '/library');
+async function signInAs(page: Page, role: string): Promise<void> {
+  await signIn(page, server.baseUrl, demoAccount(role), '/library');
 }
 
 async function pick(page: Page, testId: string, option: string): Promise<void> {
@@ -67,7 +63,7 @@ afterAll(async () => {
 describe('outcome map', () => {
   it('computes a 6 × 5 map in the browser, then on the server, and shows the stored map', async () => {
     const page = await browser.newPage(DESKTOP);
-    await signIn(page, 'analyst');
+    await signInAs(page, 'analyst');
     await page.goto(`${server.baseUrl}/cases/${caseId}/r/1/map`);
     await page.getByRole('heading', { name: 'Outcome map' }).waitFor();
 
@@ -139,7 +135,7 @@ describe('outcome map', () => {
 
     // Opening the revision again shows the stored map, its settings back in the form.
     const phone = await browser.newPage(NARROW);
-    await signIn(phone, 'analyst');
+    await signInAs(phone, 'analyst');
     await phone.goto(`${server.baseUrl}/cases/${caseId}/r/1/map`);
     await expect
       .poll(() => phone.locator('[data-testid=stored-mark][data-kind=map]').count(), { timeout: 60_000 })

@@ -12,6 +12,7 @@ import { demoRigCase } from '../../shared/case/templates';
 import { DESKTOP, NARROW, launchBrowser, screenshot as saveScreenshot, type TestBrowser } from './support/browser';
 import { DEMO_LAB_NAME, startE2eServer, type E2eServer } from './support/server';
 import { apiClient, demoAccount } from './support/api-client';
+import { signIn } from './support/session';
 
 const CASE_TITLE = 'Overnight tall rod';
 const SHOTS = process.env['QP_E2E_SHOTS'] ?? resolve(__dirname, '..', '..', 'test-results', 'server-jobs');
@@ -22,13 +23,8 @@ let browser: TestBrowser;
 let caseId = '';
 let labId = '';
 
-async function signIn(page: Page, role: string): Promise<void> {
-  const { email, password } = demoAccount(role);
-  await page.goto(`${server.baseUrl}/sign-in?returnUrl=${encodeURIComponent('/library')}`);
-  await page.getByLabel('Email').fill(email);
-  await page.getByLabel('Password', { exact: true }).fill(password);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await page.waitForURL((url) => url.pathname === '/library');
+async function signInAs(page: Page, role: string): Promise<void> {
+  await signIn(page, server.baseUrl, demoAccount(role), '/library');
 }
 
 beforeAll(async () => {
@@ -53,7 +49,7 @@ afterAll(async () => {
 describe('server jobs', () => {
   it('runs a sweep on the server, shows its stored run, and cancels a basin map after leaving and coming back', async () => {
     const page = await browser.newPage(DESKTOP);
-    await signIn(page, 'analyst');
+    await signInAs(page, 'analyst');
     await page.goto(`${server.baseUrl}/cases/${caseId}/r/1/sweeps`);
     await page.getByTestId('sweep-count').fill('6');
     const submit = page.getByTestId('server-sweep');
@@ -110,7 +106,7 @@ describe('server jobs', () => {
 
   it("lists the lab's jobs, running and finished, with their states and the stored run", async () => {
     const page = await browser.newPage(DESKTOP);
-    await signIn(page, 'analyst');
+    await signInAs(page, 'analyst');
     await page.getByRole('link', { name: 'Server jobs' }).click();
     await page.waitForURL((url) => url.pathname === `/labs/${labId}/jobs`);
     const finished = page.getByTestId('finished-jobs');
@@ -128,7 +124,7 @@ describe('server jobs', () => {
     await expect.poll(() => page.getByTestId('stored-mark').textContent(), { timeout: 30_000 }).toMatch(/Stored r1 · Sweep/);
 
     const phone = await browser.newPage(NARROW);
-    await signIn(phone, 'viewer');
+    await signInAs(phone, 'viewer');
     await phone.goto(`${server.baseUrl}/labs/${labId}/jobs`);
     await phone.getByTestId('finished-jobs').waitFor();
     expect(await phone.getByTestId('job-cancel').count()).toBe(0);

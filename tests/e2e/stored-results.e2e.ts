@@ -14,6 +14,7 @@ import { computeRun, makeRunRecord, type RunSettings } from '../../shared/engine
 import { DESKTOP, NARROW, launchBrowser, screenshot as saveScreenshot, type TestBrowser } from './support/browser';
 import { DEMO_LAB_NAME, startE2eServer, type E2eServer } from './support/server';
 import { apiClient, demoAccount } from './support/api-client';
+import { signIn } from './support/session';
 
 const CASE_TITLE = 'Stored tall rod';
 const SWEEP_POINTS = 5;
@@ -66,13 +67,8 @@ async function workerUse(page: Page): Promise<{ made: number; posted: number }> 
   return page.evaluate(() => (window as unknown as { __qpWorkers: { made: number; posted: number } }).__qpWorkers);
 }
 
-async function signIn(page: Page, role: string): Promise<void> {
-  const { email, password } = demoAccount(role);
-  await page.goto(`${server.baseUrl}/sign-in?returnUrl=${encodeURIComponent('/library')}`);
-  await page.getByLabel('Email').fill(email);
-  await page.getByLabel('Password', { exact: true }).fill(password);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await page.waitForURL((url) => url.pathname === '/library');
+async function signInAs(page: Page, role: string): Promise<void> {
+  await signIn(page, server.baseUrl, demoAccount(role), '/library');
 }
 
 /** Plotly drew at least one trace of the plot with this title. */
@@ -121,7 +117,7 @@ describe('stored results', () => {
   it('opens a revision with its stored motion and sweep, marked, without any worker job', async () => {
     const page = await browser.newPage(DESKTOP);
     await countWorkerUse(page);
-    await signIn(page, 'analyst');
+    await signInAs(page, 'analyst');
     await timeStoredMark(page);
 
     await page.goto(`${server.baseUrl}/cases/${caseId}/r/1/motion`);

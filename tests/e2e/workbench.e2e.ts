@@ -10,26 +10,13 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { templateCase } from '../../shared/case/templates';
 import { DESKTOP, NARROW, launchBrowser, screenshot, type TestBrowser } from './support/browser';
 import { DEMO_ACCOUNTS, startE2eServer, type E2eServer } from './support/server';
+import { openTab, signIn } from './support/session';
 
 const analyst = DEMO_ACCOUNTS.find((a) => a.role === 'analyst') ?? DEMO_ACCOUNTS[0];
 
 let server: E2eServer;
 let browser: TestBrowser;
 let page: Page;
-
-async function signIn(p: Page): Promise<void> {
-  await p.goto(`${server.baseUrl}/sign-in`);
-  await p.getByLabel('Email').fill(analyst.email);
-  await p.getByLabel('Password', { exact: true }).fill(analyst.password);
-  await p.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await p.waitForURL((url) => !url.pathname.startsWith('/sign-in'));
-}
-
-async function openTab(p: Page, label: string): Promise<void> {
-  // A dispatched click reaches tabs scrolled out of a narrow tab bar too.
-  await p.getByRole('tab', { name: label, exact: true }).dispatchEvent('click');
-  await p.waitForURL((url) => url.pathname.endsWith(`/${label.toLowerCase()}`));
-}
 
 /** Loads a case into the form through the case-file upload, as a user would. */
 async function uploadCase(p: Page, title: string, params: unknown): Promise<void> {
@@ -52,7 +39,7 @@ beforeAll(async () => {
   browser = await launchBrowser();
   page = await browser.newPage(DESKTOP);
   page.setDefaultTimeout(30_000);
-  await signIn(page);
+  await signIn(page, server.baseUrl, analyst);
 }, 180_000);
 
 afterAll(async () => {
