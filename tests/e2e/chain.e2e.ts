@@ -8,9 +8,9 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 
 import { resolve } from 'node:path';
 
-import { DESKTOP, NARROW, launchBrowser, screenshot, type TestBrowser } from './support/browser';
-import { DEMO_ACCOUNTS, startE2eServer, type E2eServer } from './support/server';
-import { openTab, signIn } from './support/session';
+import { NARROW, screenshot, type TestBrowser } from './support/browser';
+import { DEMO_ACCOUNTS, type E2eServer } from './support/server';
+import { type AnalystSession, openTab, startAnalystSession } from './support/session';
 
 /** This file's screenshots (each also runs the axe check), in their own folder. */
 const SHOTS = resolve(__dirname, '..', '..', 'test-results', 'chain');
@@ -21,17 +21,15 @@ let server: E2eServer;
 let browser: TestBrowser;
 let page: Page;
 
+let session: AnalystSession | undefined;
+
 beforeAll(async () => {
-  server = await startE2eServer({ database: 'quiverpoint_e2e_chain' });
-  browser = await launchBrowser();
-  page = await browser.newPage(DESKTOP);
-  page.setDefaultTimeout(30_000);
-  await signIn(page, server.baseUrl, analyst);
+  session = await startAnalystSession('quiverpoint_e2e_chain');
+  ({ server, browser, page } = session);
 }, 180_000);
 
 afterAll(async () => {
-  await browser?.close();
-  await server?.stop();
+  await session?.stop();
 });
 
 describe('two-link chain', () => {

@@ -7,27 +7,23 @@
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 
-import { DESKTOP, launchBrowser, screenshot, type TestBrowser } from './support/browser';
-import { DEMO_ACCOUNTS, startE2eServer, type E2eServer } from './support/server';
-import { openTab, signIn } from './support/session';
+import { screenshot } from './support/browser';
+import type { E2eServer } from './support/server';
+import { type AnalystSession, openTab, startAnalystSession } from './support/session';
 
-const analyst = DEMO_ACCOUNTS.find((a) => a.role === 'analyst') ?? DEMO_ACCOUNTS[0];
 
 let server: E2eServer;
-let browser: TestBrowser;
 let page: Page;
 
+let session: AnalystSession | undefined;
+
 beforeAll(async () => {
-  server = await startE2eServer({ database: 'quiverpoint_e2e_leanest' });
-  browser = await launchBrowser();
-  page = await browser.newPage(DESKTOP);
-  page.setDefaultTimeout(30_000);
-  await signIn(page, server.baseUrl, analyst);
+  session = await startAnalystSession('quiverpoint_e2e_leanest');
+  ({ server, page } = session);
 }, 180_000);
 
 afterAll(async () => {
-  await browser?.close();
-  await server?.stop();
+  await session?.stop();
 });
 
 describe('leanest drive', () => {

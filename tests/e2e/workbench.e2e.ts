@@ -8,14 +8,12 @@ import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 
 import { templateCase } from '../../shared/case/templates';
-import { DESKTOP, NARROW, launchBrowser, screenshot, type TestBrowser } from './support/browser';
-import { DEMO_ACCOUNTS, startE2eServer, type E2eServer } from './support/server';
-import { openTab, signIn } from './support/session';
+import { DESKTOP, NARROW, screenshot } from './support/browser';
+import type { E2eServer } from './support/server';
+import { type AnalystSession, openTab, startAnalystSession } from './support/session';
 
-const analyst = DEMO_ACCOUNTS.find((a) => a.role === 'analyst') ?? DEMO_ACCOUNTS[0];
 
 let server: E2eServer;
-let browser: TestBrowser;
 let page: Page;
 
 /** Loads a case into the form through the case-file upload, as a user would. */
@@ -33,18 +31,16 @@ function highFrequencyCase() {
   return c;
 }
 
+let session: AnalystSession | undefined;
+
 beforeAll(async () => {
   // A database of its own, so this file runs beside the other browser tests.
-  server = await startE2eServer({ database: 'quiverpoint_e2e_workbench' });
-  browser = await launchBrowser();
-  page = await browser.newPage(DESKTOP);
-  page.setDefaultTimeout(30_000);
-  await signIn(page, server.baseUrl, analyst);
+  session = await startAnalystSession('quiverpoint_e2e_workbench');
+  ({ server, page } = session);
 }, 180_000);
 
 afterAll(async () => {
-  await browser?.close();
-  await server?.stop();
+  await session?.stop();
 });
 
 describe('workbench', () => {
