@@ -175,12 +175,6 @@ export async function takeChunk(sequelize: Sequelize, message: ChunkMessage, wor
   return decodeTask(row.task, await revisionParams(sequelize, row.revision_id));
 }
 
-/** Whether the job is still queued or running (workers drop chunks of jobs that are not). */
-export async function jobIsActive(sequelize: Sequelize, jobId: string): Promise<boolean> {
-  const rows = await sequelize.query(`SELECT 1 FROM jobs WHERE id = $1 AND ${ACTIVE}`, { bind: [jobId], type: QueryTypes.SELECT });
-  return rows.length > 0;
-}
-
 /** Ids of the given jobs that are no longer active. */
 export async function inactiveJobs(sequelize: Sequelize, jobIds: readonly string[]): Promise<Set<string>> {
   if (jobIds.length === 0) return new Set();
