@@ -30,6 +30,7 @@ interface JobListRow {
   progress: number;
   chunks_done: number;
   chunks_total: number;
+  chunks_finished: number;
   stage: number;
   error: string | null;
   run_id: string | null;
@@ -63,8 +64,9 @@ function jobView(row: JobListRow): JobView {
     rerunMatches: row.rerun_matches,
     state: row.state,
     progress: Math.min(1, Math.max(0, row.progress)),
-    chunksDone: row.chunks_done,
-    chunksTotal: row.chunks_total,
+    // Counted over the whole job: the stages done so far and the one in progress (later stages are not known yet).
+    chunksDone: row.chunks_finished,
+    chunksTotal: row.chunks_finished - row.chunks_done + row.chunks_total,
     error: row.error,
     runId: row.run_id,
     submittedBy: row.submitted_by ? { id: row.submitted_by, name: row.submitted_name ?? '' } : null,

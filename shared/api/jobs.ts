@@ -52,6 +52,7 @@ export const jobSchema = z.strictObject({
   state: z.enum(JOB_STATES),
   /** 0..1, non-decreasing while the job runs */
   progress: z.number().min(0).max(1),
+  /** chunks computed and known so far over the whole job: a later stage (a sweep's thresholds) adds its chunks when it starts */
   chunksDone: z.number().int().min(0),
   chunksTotal: z.number().int().min(0),
   /** why a failed job stopped, in words */

@@ -81,6 +81,9 @@ describe('server jobs', () => {
       expect(done.state, done.error ?? '').toBe('succeeded');
       expect(done.progress).toBe(1);
       expect(done.runId).not.toBeNull();
+      // Chunks count over every stage: the sweep's 6 point chunks and its threshold chunks.
+      expect(done.chunksDone).toBe(done.chunksTotal);
+      if (i === 0) expect(done.chunksTotal).toBeGreaterThan(6);
       const settings = kinds[i];
       const expected = makeRunRecord(params, settings, computeRun(params, settings));
       const run = await storedRun(done.runId!);
